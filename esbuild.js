@@ -1,0 +1,16 @@
+// Bundles the extension host, the engine worker, the command line and the webview (browser) code into dist/.
+const esbuild = require('esbuild');
+const watch = process.argv.includes('--watch');
+const common = { bundle: true, sourcemap: true, logLevel: 'warning', minify: false, legalComments: 'none' };
+const builds = [
+  { ...common, entryPoints: ['src/host/extension.ts'], outfile: 'dist/extension.js', platform: 'node', format: 'cjs', target: 'node20', external: ['vscode'] },
+  { ...common, entryPoints: ['src/worker.ts'], outfile: 'dist/worker.js', platform: 'node', format: 'cjs', target: 'node20' },
+  { ...common, entryPoints: ['src/cli.ts'], outfile: 'dist/cli.js', platform: 'node', format: 'cjs', target: 'node20' },
+  { ...common, entryPoints: ['webview/main.ts'], outfile: 'dist/webview.js', platform: 'browser', format: 'iife', target: 'es2020' },
+];
+const fs = require('fs');
+(async () => {
+  const present = builds.filter(b => fs.existsSync(b.entryPoints[0]));
+  if (watch) { for (const b of present) (await esbuild.context(b)).watch(); return; }
+  await Promise.all(present.map(b => esbuild.build(b)));
+})().catch(e => { console.error(e.message || e); process.exit(1); });

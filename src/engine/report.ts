@@ -1,0 +1,305 @@
+// The contract everything downstream reads: fit-spec input types and the FitReport output (see DESIGN.md).
+// Keep in step with schema/fitspec.schema.json and schema/fitreport.schema.json (test/unit/schema.test.ts checks).
+
+/** A JSON path into the spec: keys and array indices, e.g. ["models", 0, "params", "K"]. */
+export type JsonPath = (string | number)[];
+
+// ---------------------------------------------------------------- fit spec (*.fitspec.json)
+
+export interface ParamSpec {
+  start?: number;
+  min?: number;
+  max?: number;
+  /** true holds the parameter at `start`. */
+  fixed?: boolean;
+}
+
+export interface SolverSpec {
+  maxIterations?: number;
+  /** number of starts for the generic multi-start search */
+  multiStart?: number;
+  /** time budget of one fit, seconds */
+  seconds?: number;
+}
+
+export interface ModelSpec {
+  name: string;
+  builtin?: string;
+  polynomial?: number;
+  formula?: string;
+  params?: Record<string, ParamSpec>;
+  solver?: SolverSpec;
+}
+
+export interface ExcludeSpec {
+  row: number;
+  reason: string;
+}
+
+export interface DataSpec {
+  file: string;
+  /** string: column or expression bound to `x`; object: variable name -> column or expression */
+  x: string | Record<string, string>;
+  y: string;
+  sigma?: string;
+  weight?: string;
+  sigmaMode?: 'relative' | 'absolute';
+  where?: string;
+  exclude?: ExcludeSpec[];
+  delimiter?: 'auto' | ',' | ';' | '\t';
+  decimal?: '.' | ',';
+  badRows?: 'drop' | 'fail';
+}
+
+export type ExpectSpec = { value: number; tol: number } | { value: number; rel: number };
+
+export interface FitSpec {
+  title?: string;
+  data: DataSpec;
+  models: ModelSpec[];
+  confidence?: number;
+  predict?: (number | Record<string, number>)[];
+  solveFor?: number[];
+  output?: string;
+  expect?: Record<string, Record<string, ExpectSpec>>;
+  thresholds?: Partial<Thresholds>;
+}
+
+/** Problem-detection defaults; one table, documented in docs/problems.md, overridable by `thresholds` in a spec. */
+export interface Thresholds {
+  /** |r| between two parameter estimates above which they are reported as correlated */
+  paramCorrelation: number;
+  /** relative standard error above which a parameter is poorly determined */
+  relativeSe: number;
+  /** cross-validated RMSE / in-sample RMSE above which the model is flagged as overfitting */
+  cvRatio: number;
+  /** fewer residual degrees of freedom than this is overfitting */
+  minDof: number;
+  /** more parameters than n times this is overfitting */
+  paramsPerPoint: number;
+  /** runs-test p-value below which residuals are systematic */
+  runsP: number;
+  /** normality-test p-value below which residuals are strongly non-normal */
+  normalityP: number;
+  /** Cook's distance above this multiple of 1/n marks an influential point (4 gives the usual 4/n) */
+  cooksFactor: number;
+  /** |r| of y with an x at or above which a straight line is suggested (common practice) */
+  linearHint: number;
+  /** significance level of the extra-sum-of-squares F-test */
+  fTestAlpha: number;
+}
+
+// ---------------------------------------------------------------- FitReport
+
+export type Severity = 'error' | 'warning' | 'info';
+
+export interface FileLocation {
+  file: string;
+  /** 1-based line in the file */
+  line?: number;
+  /** 1-based column (character) in the line, for spec text; or a CSV column name */
+  column?: number | string;
+  /** 1-based data row (first row after the header is 1) */
+  row?: number;
+}
+
+export interface Problem {
+  /** stable code, documented in docs/problems.md */
+  code: string;
+  severity: Severity;
+  /** written for the user: what happened, why it matters, what to try */
+  message: string;
+  /** where in the spec it belongs */
+  path: JsonPath;
+  /** where in a data file or the spec text, when that applies */
+  location?: FileLocation;
+  /** data rows it concerns (dropped, influential, ...) */
+  rows?: number[];
+}
+
+export type Termination =
+  | 'relative-reduction'
+  | 'step-size'
+  | 'gradient'
+  | 'exact'
+  | 'iteration-limit'
+  | 'singular'
+  | 'non-finite'
+  | 'cancelled'
+  | 'time-limit';
+
+export interface ParamReport {
+  value: number;
+  se: number | null;
+  t: number | null;
+  p: number | null;
+  /** Wald interval at the spec's confidence */
+  ci: [number | null, number | null] | null;
+  /** profile-likelihood interval; a bound that does not exist is null */
+  profileCi: [number | null, number | null] | null;
+  fixed: boolean;
+  /** which bound the estimate sits on, or null */
+  atBound: 'min' | 'max' | null;
+}
+
+export interface FitStats {
+  n: number;
+  dof: number;
+  sse: number;
+  sigma: number | null;
+  rmse: number;
+  r2: number | null;
+  adjR2: number | null;
+  /** true when r2 is uncentred (linear model with no constant term) */
+  r2Uncentred?: boolean;
+  chi2: number | null;
+  reducedChi2: number | null;
+  /** p-value of chi2 (absolute sigma mode only) */
+  chi2P?: number | null;
+  logLik: number | null;
+  aic: number | null;
+  aicc: number | null;
+  bic: number | null;
+  cvRmse: number | null;
+  cvFolds: number | null;
+}
+
+export interface ResidualTests {
+  runs: { runs: number; expected: number; z: number; p: number } | null;
+  normality: { test: 'shapiro-wilk' | 'dagostino-pearson'; statistic: number; p: number } | null;
+  durbinWatson: number | null;
+}
+
+export interface PointsReport {
+  row: number[];
+  /** one array per x variable */
+  x: Record<string, number[]>;
+  y: number[];
+  fitted: number[];
+  residual: number[];
+  standardized: number[];
+  leverage: number[];
+  cooks: number[];
+  /** weights used (omitted when unweighted) */
+  weight?: number[];
+}
+
+export interface BandReport {
+  /** the x variable the band runs along (single-variable models only) */
+  variable?: string;
+  x: number[];
+  fit: number[];
+  ciLow: number[];
+  ciHigh: number[];
+  piLow: number[];
+  piHigh: number[];
+}
+
+export interface PredictionReport {
+  /** a number for a single x variable, an object for several */
+  x: number | Record<string, number>;
+  y: number | null;
+  ci: [number, number] | null;
+  pi: [number, number] | null;
+  extrapolated: boolean;
+}
+
+export interface InverseReport {
+  y: number;
+  roots: { x: number; interval: [number | null, number | null] }[];
+  extrapolated: boolean;
+}
+
+export interface ModelReport {
+  name: string;
+  kind: 'builtin' | 'polynomial' | 'formula';
+  /** the formula as fitted, in the formula language */
+  formula: string;
+  /** linear in its parameters (solved directly) */
+  linear: boolean;
+  status: 'converged' | 'failed';
+  termination: Termination;
+  iterations: number;
+  /** starting values actually used, and where they came from */
+  start?: { values: Record<string, number>; source: 'spec' | 'self-start' | 'multi-start' | 'linear' };
+  paramOrder: string[];
+  params: Record<string, ParamReport>;
+  /** in paramOrder; null where undefined (singular fit) */
+  covariance: (number | null)[][] | null;
+  correlation: (number | null)[][] | null;
+  stats: FitStats;
+  residualTests: ResidualTests | null;
+  points?: PointsReport;
+  pointsOmitted?: boolean;
+  band: BandReport | null;
+  predictions: PredictionReport[];
+  inverse: InverseReport[];
+  problems: Problem[];
+}
+
+export interface ComparisonReport {
+  ranking: { name: string; aicc: number | null; deltaAicc: number | null; weight: number | null; cvRmse: number | null }[];
+  fTests: { simpler: string; richer: string; F: number; df1: number; df2: number; p: number }[];
+  best: string | null;
+  reason: string;
+}
+
+export interface DataReport {
+  file: string;
+  rows: number;
+  used: number;
+  dropped: { row: number; line: number; column: string; reason: string }[];
+  excluded: { row: number; reason: string }[];
+  /** rows left out by `where` */
+  filtered?: number;
+  range: { x: Record<string, [number, number]> | [number, number]; y: [number, number] };
+  /** Pearson r of y with each x variable */
+  correlation: Record<string, number | null>;
+}
+
+export interface ExpectResult {
+  model: string;
+  param: string;
+  value: number;
+  tol?: number;
+  rel?: number;
+  actual: number | null;
+  ok: boolean;
+}
+
+export interface ReportMeta {
+  engine: string;
+  specHash: string;
+  dataHash: string;
+  seed: number;
+}
+
+export interface FitReport {
+  version: 1;
+  /** spec file name as given (relative path) */
+  spec: string;
+  title?: string;
+  meta: ReportMeta;
+  data: DataReport;
+  models: ModelReport[];
+  comparison: ComparisonReport | null;
+  best: string | null;
+  problems: Problem[];
+  expect: ExpectResult[];
+  /** confidence level of every interval */
+  confidence: number;
+}
+
+export interface ErrorReport {
+  version: 1;
+  spec: string;
+  error: { message: string; path?: JsonPath; location?: FileLocation; problems?: Problem[] };
+}
+
+export type RunResult = FitReport | ErrorReport;
+
+export function isErrorReport(r: RunResult): r is ErrorReport {
+  return (r as ErrorReport).error !== undefined;
+}
+
+export const ENGINE_VERSION = 'curvewright 0.1.0';

@@ -1,0 +1,218 @@
+// The one message protocol of Curvewright: host <-> webview panel and host <-> engine worker.
+// Every message is a plain JSON-able object with a `type` discriminant. Requests carry an `id` and are
+// answered by a message with `inReplyTo` = that id. Both the webview and the worker begin with a Ready
+// handshake carrying PROTOCOL_VERSION; the host sends nothing to a webview before its 'ready'.
+// Owned by the host side (H6); the webview (H7) imports the types only (`import type`), so this file must
+// stay free of runtime imports of vscode, the engine or node modules.
+import type { JsonPath, RunResult } from './engine/report';
+
+/** Bump when a message changes shape incompatibly; both ends compare it in the Ready handshake. */
+export const PROTOCOL_VERSION = 1;
+
+// ------------------------------------------------------------------ shared shapes
+
+/** Theme kind as the webview should draw it (mirrors vscode.ColorThemeKind without importing vscode). */
+export type ThemeKind = 'light' | 'dark' | 'high-contrast' | 'high-contrast-light';
+
+/** Export formats the panel offers. */
+export type ExportFormat = 'png' | 'csv' | 'json';
+
+/** What the webview stores with `acquireVsCodeApi().setState(...)`, so the host's WebviewPanelSerializer can
+ *  restore the panel after a window reload. The webview must set it when it receives a 'report'. */
+export interface WebviewState {
+  /** URI string of the spec the panel shows */
+  specUri: string;
+  /** name of the model the user last selected, if any */
+  selectedModel?: string;
+}
+
+// ------------------------------------------------------------------ host -> webview
+
+/** A fresh run result for the panel's spec; sent after 'ready' and again after every refit (panel updates in place). */
+export interface ReportMessage {
+  type: 'report';
+  report: RunResult;
+  /** URI string of the spec file (vscode.Uri.toString()) */
+  specUri: string;
+  /** display name of the spec file, e.g. "culture-b.fitspec.json" */
+  specName: string;
+  /** increases with every refit of this spec; the webview may ignore a report older than the one it shows */
+  version: number;
+  /** true when the report came from unsaved editor text */
+  dirty?: boolean;
+}
+
+/** A fit is running (busy: true) or finished/cancelled (busy: false); message is a short human status. */
+export interface BusyMessage {
+  type: 'busy';
+  busy: boolean;
+  message?: string;
+}
+
+/** The colour theme changed: the webview re-reads its colours from the --vscode-* CSS variables and redraws. */
+export interface ThemeMessage {
+  type: 'theme';
+  kind: ThemeKind;
+}
+
+/** Answer to an ExportRequest: the file written (null when the user cancelled the save dialog) or an error. */
+export interface ExportResultMessage {
+  type: 'exported';
+  inReplyTo: number;
+  path: string | null;
+  error?: string;
+}
+
+/** Test hook: the host asks the webview to describe what it shows; answered by a 'snapshot' message. */
+export interface SnapshotRequest {
+  type: 'snapshot?';
+  id: number;
+}
+
+export type HostToWebview = ReportMessage | BusyMessage | ThemeMessage | ExportResultMessage | SnapshotRequest;
+
+// ------------------------------------------------------------------ webview -> host
+
+/** Ready handshake: the webview's script has loaded and its message listener is installed. */
+export interface ReadyMessage {
+  type: 'ready';
+  version: number;
+}
+
+/** The user clicked something that belongs to a place in the spec: select that JSON path in the spec editor. */
+export interface RevealMessage {
+  type: 'reveal';
+  path: JsonPath;
+}
+
+/** The user clicked a data point or a problem tied to a CSV row: open the data file at that 1-based data row. */
+export interface RevealRowMessage {
+  type: 'revealRow';
+  /** 1-based data row (first row after the header is 1) */
+  row: number;
+}
+
+/** Save something from the panel. png: `data` is a data URL of the chart (image/png;base64).
+ *  csv/json: `data` may carry the text to save; when omitted the host writes the model's results (csv: one row per
+ *  parameter; json: the serialized report). Answered by an ExportResultMessage. */
+export interface ExportRequest {
+  type: 'export';
+  id: number;
+  format: ExportFormat;
+  data?: string;
+  /** model the export concerns (default: the whole report / best model) */
+  model?: string;
+  /** suggested file name without folder, e.g. "culture-b-logistic.png" */
+  suggestedName?: string;
+}
+
+/** Ask the host to refit now (e.g. a "Refit" button). */
+export interface RefitRequest {
+  type: 'refit';
+}
+
+/** Forward a message from the webview to the host's "Curvewright" output channel (e.g. a render error). */
+export interface LogMessage {
+  type: 'log';
+  level: 'info' | 'warn' | 'error';
+  message: string;
+}
+
+/** Answer to a SnapshotRequest, used by integration tests to check what the panel shows. */
+export interface SnapshotMessage {
+  type: 'snapshot';
+  inReplyTo: number;
+  /** version of the report shown, or null when none yet */
+  version: number | null;
+  /** number of <canvas> elements drawn */
+  canvases: number;
+  /** visible text of the panel (trimmed, may be shortened) */
+  text: string;
+}
+
+export type WebviewToHost =
+  | ReadyMessage
+  | RevealMessage
+  | RevealRowMessage
+  | ExportRequest
+  | RefitRequest
+  | LogMessage
+  | SnapshotMessage;
+
+// ------------------------------------------------------------------ host -> worker
+
+/** Run one spec. specText is the live editor text (may be unsaved); without it the worker reads specPath. */
+export interface RunRequest {
+  type: 'run';
+  id: number;
+  /** absolute file-system path of the spec */
+  specPath: string;
+  specText?: string;
+  /** absolute path of the workspace folder (outputs must stay inside it) */
+  workspaceRoot?: string;
+  /** also write the spec's `output` results file after a successful run (engine's writeResults) */
+  writeResults?: boolean;
+}
+
+/** Stop run `id` as soon as possible (the engine polls shouldStop); answered by a 'result' whose models end 'cancelled', or a 'cancelled'. */
+export interface CancelRequest {
+  type: 'cancel';
+  id: number;
+}
+
+export type HostToWorker = RunRequest | CancelRequest;
+
+// ------------------------------------------------------------------ worker -> host
+
+/** Ready handshake: the worker thread has loaded the engine. */
+export interface WorkerReadyMessage {
+  type: 'ready';
+  version: number;
+}
+
+/** The result of run `inReplyTo` (a FitReport or an ErrorReport). written = path of the results file written, if any. */
+export interface WorkerResultMessage {
+  type: 'result';
+  inReplyTo: number;
+  result: RunResult;
+  written?: string | null;
+  /** message when writing the results file failed (the fit itself succeeded) */
+  writeError?: string;
+  /** milliseconds the run took inside the worker */
+  ms?: number;
+}
+
+/** A short progress note for run `inReplyTo` (e.g. "fitting model 2 of 4: logistic4"). */
+export interface WorkerProgressMessage {
+  type: 'progress';
+  inReplyTo: number;
+  message: string;
+}
+
+/** Run `inReplyTo` was cancelled before it produced a result. */
+export interface WorkerCancelledMessage {
+  type: 'cancelled';
+  inReplyTo: number;
+}
+
+/** The engine threw unexpectedly for run `inReplyTo` (a bug, not a user error); message is for the log. */
+export interface WorkerFailureMessage {
+  type: 'failure';
+  inReplyTo: number;
+  message: string;
+}
+
+export type WorkerToHost =
+  | WorkerReadyMessage
+  | WorkerResultMessage
+  | WorkerProgressMessage
+  | WorkerCancelledMessage
+  | WorkerFailureMessage;
+
+// ------------------------------------------------------------------ webview HTML shell (contract with H7)
+
+/** The element id the host's HTML gives the webview to render into: `<div id="curvewright-root"></div>`.
+ *  The host loads dist/webview.js (with a CSP nonce) and, when present, media/panel.css. The CSP allows
+ *  scripts only by nonce, styles from the extension and inline style attributes, images from the extension,
+ *  data: and blob:. No network. */
+export const WEBVIEW_ROOT_ID = 'curvewright-root';

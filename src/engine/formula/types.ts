@@ -8,7 +8,13 @@ export interface Span {
 
 export type Node =
   | { type: 'num'; value: number; span: Span }
-  | { type: 'ident'; name: string; span: Span }
+  | {
+      type: 'ident';
+      name: string;
+      span: Span;
+      /** written in backticks (`OD 600`): always a name, even when spelled like a constant or function */
+      quoted?: boolean;
+    }
   | { type: 'unary'; op: '-' | '+' | 'not'; arg: Node; span: Span }
   | {
       type: 'binary';
@@ -57,7 +63,10 @@ export interface CompiledFormula {
   readonly params: string[];
   /** true when every ∂f/∂θ_j is free of θ (the model is linear in its parameters) */
   readonly linear: boolean;
-  /** true when the formula contains a term with no parameter at all that is a constant (has an intercept-like column): set by the compiler for the R² convention */
+  /**
+   * true when some ∂f/∂θ_j is a nonzero constant, independent of the variables and of θ (an intercept-like
+   * column, e.g. c0 in c0 + c1*x), decided symbolically; used for the R² convention
+   */
   readonly hasConstantTerm: boolean;
   evaluate(theta: ArrayLike<number>, X: ArrayLike<number>[], out: Float64Array): void;
   evaluateWithJacobian(theta: ArrayLike<number>, X: ArrayLike<number>[], out: Float64Array, J: Float64Array): void;

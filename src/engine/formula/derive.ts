@@ -1,0 +1,142 @@
+// Exact symbolic derivatives on the expression graph (chain rule, one pass in topological order), with
+// power rule n*u^(n-1) for exponents free of the parameter (no log of a negative base) and subgradients for abs/min/max.
+
+import { Graph } from './graph';
+
+/**
+ * ∂f/∂θ_j as a graph node, for every node reachable from `root` (returned: derivative of root).
+ * `j` is the parameter index. Nodes are visited in increasing id order, which is topological (arguments are
+ * always created before their users).
+ */
+export function derivative(g: Graph, root: number, j: number): number {
+  const reach = reachable(g, [root]);
+  const d = new Map<number, number>();
+  const zero = g.num(0);
+  const one = g.num(1);
+  for (const id of reach) {
+    const n = g.get(id);
+    if (!n.hasParam) {
+      d.set(id, zero);
+      continue;
+    }
+    const a = n.args[0];
+    const b = n.args[1];
+    const da = a === undefined ? zero : (d.get(a) as number);
+    const db = b === undefined ? zero : (d.get(b) as number);
+    const isZero = (x: number) => x === zero;
+    let r: number;
+    switch (n.op) {
+      case 'param':
+        r = n.index === j ? one : zero;
+        break;
+      case 'add':
+        r = g.add(da, db);
+        break;
+      case 'sub':
+        r = g.sub(da, db);
+        break;
+      case 'neg':
+        r = g.neg(da);
+        break;
+      case 'mul':
+        r = g.add(g.mul(da, b), g.mul(a, db));
+        break;
+      case 'div':
+        // (a/b)' = (a' - (a/b)*b') / b — reuses the quotient itself
+        r = isZero(db) ? g.div(da, b) : g.div(g.sub(da, g.mul(id, db)), b);
+        break;
+      case 'pow': {
+        if (isZero(db)) {
+          // exponent free of θ_j: b*a^(b-1)*a'
+          const nb = g.get(b);
+          const expo = nb.op === 'const' ? g.num(nb.value - 1) : g.raw('sub', [b, one]);
+          r = g.mul(g.mul(b, g.pow(a, expo)), da);
+        } else if (isZero(da)) {
+          // base free of θ_j: a^b * ln(a) * b'
+          r = g.mul(g.mul(id, g.call('log', a)), db);
+        } else {
+          // general: a^b * (b' ln a + b a'/a)
+          r = g.mul(id, g.add(g.mul(db, g.call('log', a)), g.div(g.mul(b, da), a)));
+        }
+        break;
+      }
+      case 'fn':
+        if (isZero(da)) r = zero;
+        else if (n.fn === 'log' || n.fn === 'sqrt' || n.fn === 'log10') r = unaryQuotient(g, n.fn, a, id, da);
+        else r = g.mul(unaryDerivative(g, n.fn, a, id), da);
+        break;
+      case 'min':
+      case 'max': {
+        if (da === db) {
+          r = da;
+        } else {
+          // subgradient: the derivative of the argument that is selected (the first one on ties)
+          const test = g.raw('cmp', [a, b], n.op === 'min' ? '<=' : '>=');
+          r = g.raw('select', [test, da, db]);
+        }
+        break;
+      }
+      case 'select': {
+        const dx = d.get(n.args[1]) as number;
+        const dy = d.get(n.args[2]) as number;
+        r = dx === dy ? dx : g.raw('select', [a, dx, dy]);
+        break;
+      }
+      case 'sign':
+      case 'cmp':
+      case 'and':
+      case 'or':
+      case 'not':
+        r = zero; // piecewise constant
+        break;
+      default:
+        r = zero; // const, var
+    }
+    d.set(id, r);
+  }
+  return d.get(root) as number;
+}
+
+/** f'(u) for f(u) = node (u = argument), for the functions whose derivative is a factor. */
+function unaryDerivative(g: Graph, fn: string, u: number, node: number): number {
+  const one = g.num(1);
+  switch (fn) {
+    case 'exp': return node;
+    case 'abs': return g.raw('sign', [u]);
+    case 'sin': return g.call('cos', u);
+    case 'cos': return g.neg(g.call('sin', u));
+    case 'tan': return g.add(one, g.pow(node, g.num(2)));
+    case 'asin': return g.div(one, g.call('sqrt', g.sub(one, g.pow(u, g.num(2)))));
+    case 'acos': return g.neg(g.div(one, g.call('sqrt', g.sub(one, g.pow(u, g.num(2))))));
+    case 'atan': return g.div(one, g.add(one, g.pow(u, g.num(2))));
+    case 'sinh': return g.call('cosh', u);
+    case 'cosh': return g.call('sinh', u);
+    case 'tanh': return g.sub(one, g.pow(node, g.num(2)));
+  }
+  throw new Error(`internal: no derivative rule for ${fn}`);
+}
+
+/** u'/u, u'/(u ln 10), u'/(2 sqrt u) */
+function unaryQuotient(g: Graph, fn: string, u: number, node: number, du: number): number {
+  switch (fn) {
+    case 'log': return g.div(du, u);
+    case 'log10': return g.div(du, g.mul(g.num(Math.LN10), u));
+    case 'sqrt': return g.div(du, g.mul(g.num(2), node));
+  }
+  throw new Error(`internal: no quotient rule for ${fn}`);
+}
+
+/** Ids of the nodes reachable from `roots`, in increasing (topological) order. */
+export function reachable(g: Graph, roots: readonly number[]): number[] {
+  const seen = new Uint8Array(g.nodes.length);
+  const stack = [...roots];
+  while (stack.length > 0) {
+    const id = stack.pop() as number;
+    if (seen[id]) continue;
+    seen[id] = 1;
+    for (const a of g.get(id).args) if (!seen[a]) stack.push(a);
+  }
+  const out: number[] = [];
+  for (let id = 0; id < seen.length; id++) if (seen[id]) out.push(id);
+  return out;
+}

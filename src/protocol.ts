@@ -4,7 +4,7 @@
 // handshake carrying PROTOCOL_VERSION; the host sends nothing to a webview before its 'ready'.
 // Owned by the host side (H6); the webview (H7) imports the types only (`import type`), so this file must
 // stay free of runtime imports of vscode, the engine or node modules.
-import type { JsonPath, RunResult } from './engine/report';
+import type { JsonPath, ModelSpec, RunResult } from './engine/report';
 
 /** Bump when a message changes shape incompatibly; both ends compare it in the Ready handshake. */
 export const PROTOCOL_VERSION = 1;
@@ -160,7 +160,15 @@ export interface CancelRequest {
   id: number;
 }
 
-export type HostToWorker = RunRequest | CancelRequest;
+/** Read a CSV's header and first rows and propose x, y and candidate models (engine's suggestSpec), off the host thread. */
+export interface SuggestRequest {
+  type: 'suggest';
+  id: number;
+  /** absolute file-system path of the CSV */
+  csvPath: string;
+}
+
+export type HostToWorker = RunRequest | CancelRequest | SuggestRequest;
 
 // ------------------------------------------------------------------ worker -> host
 
@@ -202,7 +210,31 @@ export interface WorkerFailureMessage {
   message: string;
 }
 
+/** Answer to a SuggestRequest: the engine's suggestion, or a user-facing error message (unreadable CSV, ...). */
+export interface WorkerSuggestionMessage {
+  type: 'suggestion';
+  inReplyTo: number;
+  suggestion?: SpecSuggestion;
+  error?: string;
+}
+
+/** What suggestSpec (src/engine/starter.ts) returns: columns, proposed x and y, and candidate models. */
+export interface SpecSuggestion {
+  columns: string[];
+  x: string;
+  y: string;
+  candidates: { id: string; label: string; recommended: boolean; model: ModelSpec }[];
+}
+
+/** Data shared with each worker at start (workerData): cancel[0] holds the id of a run to stop. The host sets it with
+ *  Atomics.store so a run busy in a synchronous solver loop sees the cancel through shouldStop() without waiting
+ *  for its event loop to deliver the 'cancel' message. */
+export interface WorkerInit {
+  cancel: SharedArrayBuffer;
+}
+
 export type WorkerToHost =
+  | WorkerSuggestionMessage
   | WorkerReadyMessage
   | WorkerResultMessage
   | WorkerProgressMessage

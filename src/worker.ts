@@ -1,0 +1,75 @@
+// worker_threads entry: runs the engine off the extension host thread. Receives 'run' / 'cancel' / 'suggest'
+// (src/protocol.ts), calls runSpecFile with a shouldStop that sees cancels through a shared Int32Array
+// (synchronous solver loops never yield to this thread's event loop), and posts the result.
+import { parentPort, workerData } from 'worker_threads';
+import { runSpecFile, writeResults } from './engine/run';
+import { suggestSpec } from './engine/starter';
+import { isErrorReport } from './engine/report';
+import type { HostToWorker, RunRequest, WorkerInit, WorkerToHost } from './protocol';
+import { PROTOCOL_VERSION } from './protocol';
+
+const port = parentPort;
+if (!port) throw new Error('src/worker.ts must run as a worker thread');
+const init = workerData as WorkerInit | undefined;
+const cancelSlot = init?.cancel ? new Int32Array(init.cancel) : new Int32Array(1);
+const cancelled = new Set<number>();
+
+function post(m: WorkerToHost): void { port!.postMessage(m); }
+
+/** Runs one at a time, in arrival order; a cancelled run still queued is answered 'cancelled' without starting. */
+const queue: RunRequest[] = [];
+let running = false;
+
+async function pump(): Promise<void> {
+  if (running) return;
+  running = true;
+  try {
+    while (queue.length) {
+      const req = queue.shift()!;
+      if (isCancelled(req.id)) { post({ type: 'cancelled', inReplyTo: req.id }); cancelled.delete(req.id); continue; }
+      await runOne(req);
+      cancelled.delete(req.id);
+    }
+  } finally { running = false; }
+}
+
+function isCancelled(id: number): boolean {
+  return cancelled.has(id) || Atomics.load(cancelSlot, 0) === id;
+}
+
+async function runOne(req: RunRequest): Promise<void> {
+  const t0 = Date.now();
+  try {
+    const result = await runSpecFile(req.specPath, {
+      specText: req.specText,
+      workspaceRoot: req.workspaceRoot,
+      shouldStop: () => isCancelled(req.id),
+      onProgress: message => post({ type: 'progress', inReplyTo: req.id, message }),
+    });
+    if (isCancelled(req.id)) { post({ type: 'cancelled', inReplyTo: req.id }); return; }
+    let written: string | null = null;
+    let writeError: string | undefined;
+    if (req.writeResults && !isErrorReport(result)) {
+      try { written = await writeResults(result, req.specPath, { workspaceRoot: req.workspaceRoot }); }
+      catch (e) { writeError = (e as Error).message; }
+    }
+    post({ type: 'result', inReplyTo: req.id, result, written, writeError, ms: Date.now() - t0 });
+  } catch (e) {
+    post({ type: 'failure', inReplyTo: req.id, message: (e as Error)?.stack || String(e) });
+  }
+}
+
+port.on('message', (m: HostToWorker) => {
+  switch (m.type) {
+    case 'run': queue.push(m); void pump(); break;
+    case 'cancel': cancelled.add(m.id); break;
+    case 'suggest':
+      suggestSpec(m.csvPath).then(
+        suggestion => post({ type: 'suggestion', inReplyTo: m.id, suggestion }),
+        e => post({ type: 'suggestion', inReplyTo: m.id, error: (e as Error).message || String(e) }),
+      );
+      break;
+  }
+});
+
+post({ type: 'ready', version: PROTOCOL_VERSION });

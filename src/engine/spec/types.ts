@@ -1,0 +1,44 @@
+// The checked, defaulted form of a fit spec that everything after validation reads.
+import type { DataSpec, ExcludeSpec, FitSpec, ModelSpec, ParamSpec, SolverSpec, Thresholds } from '../report';
+
+export interface NormalizedData extends DataSpec {
+  /** absolute path of the CSV file (resolved against the spec file's folder) */
+  file: string;
+  /** data.file exactly as written in the spec */
+  fileGiven: string;
+  /** variable name -> column or expression; a string `x` in the spec becomes { x: "..." } */
+  x: Record<string, string>;
+  sigmaMode: 'relative' | 'absolute';
+  exclude: ExcludeSpec[];
+  delimiter: 'auto' | ',' | ';' | '\t';
+  decimal: '.' | ',';
+  badRows: 'drop' | 'fail';
+}
+
+export interface NormalizedModel extends ModelSpec {
+  /** which of builtin / polynomial / formula the model uses */
+  kind: 'builtin' | 'polynomial' | 'formula';
+  /** position in the spec's models array (for JSON paths) */
+  index: number;
+  params: Record<string, ParamSpec>;
+  solver: Required<SolverSpec>;
+}
+
+export interface NormalizedSpec extends FitSpec {
+  /** absolute path of the spec file */
+  specFile: string;
+  /** the spec file name as given to validateSpec */
+  specGiven: string;
+  title?: string;
+  data: NormalizedData;
+  models: NormalizedModel[];
+  confidence: number;
+  predict: (number | Record<string, number>)[];
+  solveFor: number[];
+  /** absolute path of the results file, when `output` is set */
+  output?: string;
+  /** output exactly as written in the spec */
+  outputGiven?: string;
+  expect: Record<string, Record<string, { value: number; tol: number } | { value: number; rel: number }>>;
+  thresholds: Partial<Thresholds>;
+}

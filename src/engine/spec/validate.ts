@@ -1,0 +1,680 @@
+// Checks a parsed fit spec completely (every problem at once, each with its JSON path and text location) and
+// normalises it: defaults filled, data.x always an object, file paths absolute.
+import * as path from 'path';
+import { formulaIdentifiers, formulaParameters, parseFormula, suggest, FormulaError, CONSTANTS, FUNCTIONS } from '../formula';
+import type { ExcludeSpec, FileLocation, JsonPath, ParamSpec, Problem, Severity } from '../report';
+import { BUILTIN_IDS, BUILTIN_PARAMS, isBuiltinId, polynomialParams } from './catalogue';
+import { DEFAULTS, THRESHOLD_KEYS } from './defaults';
+import { locateInString, locateNearest } from './locate';
+import type { NormalizedData, NormalizedModel, NormalizedSpec } from './types';
+
+export interface ValidateContext {
+  /** spec file path (as shown in messages; resolved against the current directory for absolute paths) */
+  file: string;
+  /** spec text, to give each problem a line and column */
+  text?: string;
+  /** header of the data file, to check column names */
+  columns?: string[];
+  /** root that `output` must stay inside; default: the current directory */
+  workspaceRoot?: string;
+  /** display name of the data file in messages (default: data.file as written) */
+  dataLabel?: string;
+}
+
+export interface ValidateResult {
+  /** null when any error-level problem was found */
+  spec: NormalizedSpec | null;
+  problems: Problem[];
+}
+
+const TOP_KEYS = ['$schema', 'title', 'data', 'models', 'confidence', 'predict', 'solveFor', 'output', 'expect', 'thresholds'];
+const DATA_KEYS = ['file', 'x', 'y', 'sigma', 'weight', 'sigmaMode', 'where', 'exclude', 'delimiter', 'decimal', 'badRows'];
+const MODEL_KEYS = ['name', 'builtin', 'polynomial', 'formula', 'params', 'solver'];
+const PARAM_KEYS = ['start', 'min', 'max', 'fixed'];
+const SOLVER_KEYS = ['maxIterations', 'multiStart', 'seconds'];
+const EXPECT_KEYS = ['value', 'tol', 'rel'];
+const EXCLUDE_KEYS = ['row', 'reason'];
+
+type Obj = Record<string, unknown>;
+
+function isObj(v: unknown): v is Obj {
+  return typeof v === 'object' && v !== null && !Array.isArray(v);
+}
+function isNum(v: unknown): v is number {
+  return typeof v === 'number' && Number.isFinite(v);
+}
+function typeName(v: unknown): string {
+  if (v === null) return 'null';
+  if (Array.isArray(v)) return 'a list';
+  if (typeof v === 'object') return 'an object';
+  if (typeof v === 'string') return `the text ${JSON.stringify(v)}`;
+  return `${typeof v} ${JSON.stringify(v)}`;
+}
+function quoteList(names: readonly string[], max = 8): string {
+  const shown = names.slice(0, max).map((n) => `'${n}'`).join(', ');
+  return names.length > max ? `${shown}, … (${names.length} in all)` : shown;
+}
+function didYouMean(word: string, candidates: readonly string[]): string {
+  const s = suggest(word, candidates);
+  return s === undefined ? '' : ` — did you mean '${s}'?`;
+}
+const PLAIN_IDENT = /^[\p{L}_][\p{L}\p{N}_]*$/u;
+/** Formula-language spelling of a column name: as is when it is a plain identifier, else in backticks. */
+export function columnRef(name: string): string {
+  return PLAIN_IDENT.test(name) && !CONSTANTS.includes(name) && !FUNCTIONS.includes(name) && !['and', 'or', 'not'].includes(name)
+    ? name
+    : '`' + name + '`';
+}
+
+/** Readable form of a JSON path: models[0].params.K */
+export function pathText(p: JsonPath): string {
+  let s = '';
+  for (const k of p) s += typeof k === 'number' ? `[${k}]` : s === '' ? k : `.${k}`;
+  return s === '' ? '(the whole spec)' : s;
+}
+
+class Checker {
+  readonly problems: Problem[] = [];
+  constructor(private readonly ctx: ValidateContext) {}
+
+  get errors(): number {
+    return this.problems.filter((p) => p.severity === 'error').length;
+  }
+
+  add(code: string, p: JsonPath, message: string, opts: { severity?: Severity; key?: boolean; charIndex?: number } = {}): void {
+    const problem: Problem = { code, severity: opts.severity ?? 'error', message, path: p };
+    const text = this.ctx.text;
+    if (text !== undefined) {
+      const loc = opts.charIndex !== undefined ? locateInString(text, p, opts.charIndex) ?? locateNearest(text, p) : locateNearest(text, p, { key: opts.key });
+      if (loc) {
+        const location: FileLocation = { file: this.ctx.file, line: loc.line, column: loc.column };
+        problem.location = location;
+      }
+    }
+    this.problems.push(problem);
+  }
+
+  keys(obj: Obj, allowed: readonly string[], p: JsonPath, where: string): void {
+    for (const k of Object.keys(obj)) {
+      if (allowed.includes(k)) continue;
+      this.add('spec-unknown-key', [...p, k], `unknown key '${k}' in ${where}${didYouMean(k, allowed)} (allowed: ${quoteList(allowed, 12)})`, { key: true });
+    }
+  }
+
+  type(p: JsonPath, expected: string, got: unknown): void {
+    this.add('spec-type', p, `${pathText(p)} must be ${expected}, not ${typeName(got)}`);
+  }
+
+  required(p: JsonPath, what: string): void {
+    this.add('spec-required', p, `missing ${pathText(p)}: ${what}`);
+  }
+
+  /** an optional string; returns it, or undefined (reporting a wrong type) */
+  str(obj: Obj, key: string, p: JsonPath, opts: { required?: string; nonEmpty?: boolean } = {}): string | undefined {
+    const v = obj[key];
+    if (v === undefined) {
+      if (opts.required) this.required([...p, key], opts.required);
+      return undefined;
+    }
+    if (typeof v !== 'string') {
+      this.type([...p, key], 'a string in double quotes', v);
+      return undefined;
+    }
+    if (opts.nonEmpty && v.trim() === '') {
+      this.add('spec-type', [...p, key], `${pathText([...p, key])} is empty — write ${opts.required ?? 'a value'}`);
+      return undefined;
+    }
+    return v;
+  }
+
+  num(obj: Obj, key: string, p: JsonPath, opts: { integer?: boolean; min?: number; exclusiveMin?: number } = {}): number | undefined {
+    const v = obj[key];
+    if (v === undefined) return undefined;
+    const q = [...p, key];
+    if (!isNum(v)) {
+      this.type(q, opts.integer ? 'a whole number' : 'a number', v);
+      return undefined;
+    }
+    if (opts.integer && !Number.isInteger(v)) {
+      this.add('spec-type', q, `${pathText(q)} must be a whole number, not ${v}`);
+      return undefined;
+    }
+    if (opts.min !== undefined && v < opts.min) {
+      this.add('spec-range', q, `${pathText(q)} must be at least ${opts.min}, not ${v}`);
+      return undefined;
+    }
+    if (opts.exclusiveMin !== undefined && v <= opts.exclusiveMin) {
+      this.add('spec-range', q, `${pathText(q)} must be greater than ${opts.exclusiveMin}, not ${v}`);
+      return undefined;
+    }
+    return v;
+  }
+
+  oneOf<T extends string>(obj: Obj, key: string, p: JsonPath, values: readonly T[]): T | undefined {
+    const v = obj[key];
+    if (v === undefined) return undefined;
+    const q = [...p, key];
+    if (typeof v !== 'string' || !(values as readonly string[]).includes(v)) {
+      const shown = values.map((s) => JSON.stringify(s)).join(', ');
+      const hint = typeof v === 'string' ? didYouMean(v, values) : '';
+      this.add('spec-type', q, `${pathText(q)} must be one of ${shown}, not ${typeName(v)}${hint}`);
+      return undefined;
+    }
+    return v as T;
+  }
+}
+
+interface ExprEnv {
+  /** names an expression may use, besides columns */
+  extra: string[];
+  logic?: boolean;
+}
+
+/** Checks one data expression (syntax, and column names when the header is known). Returns its normalized text. */
+function checkExpression(c: Checker, ctx: ValidateContext, text: string, p: JsonPath, role: string, env: ExprEnv): string | undefined {
+  const columns = ctx.columns;
+  if (columns && columns.includes(text)) return columnRef(text);
+  let ids: { name: string; span: { start: number; end: number } }[];
+  try {
+    parseFormula(text, { logic: env.logic });
+    ids = formulaIdentifiers(text, { logic: env.logic });
+  } catch (e) {
+    if (e instanceof FormulaError) {
+      let hint = '';
+      const odd = columns?.find((name) => !PLAIN_IDENT.test(name) && text.includes(name));
+      if (odd !== undefined) hint = ` (a column name with spaces or symbols is written in backticks: \`${odd}\`)`;
+      c.add('spec-expression', p, `${role} ${JSON.stringify(text)} is not a valid expression: ${e.message}${hint}`, { charIndex: e.span.start });
+      return undefined;
+    }
+    throw e;
+  }
+  if (columns) {
+    const known = [...columns, ...env.extra];
+    const label = ctx.dataLabel ?? 'the data file';
+    for (const id of ids) {
+      if (known.includes(id.name)) continue;
+      const extra = env.extra.length > 0 ? ` (or ${quoteList(env.extra)})` : '';
+      c.add(
+        'spec-unknown-column',
+        p,
+        `${role} uses '${id.name}', which is not a column of ${label}${didYouMean(id.name, known)} (columns: ${quoteList(columns, 12)}${extra})`,
+        { charIndex: id.span.start },
+      );
+    }
+  }
+  return text;
+}
+
+/** Parameter names a model has, or undefined when its kind or formula is broken. */
+function modelParams(m: Obj, variables: string[]): string[] | undefined {
+  if (typeof m.builtin === 'string') return isBuiltinId(m.builtin) ? [...BUILTIN_PARAMS[m.builtin]] : undefined;
+  if (typeof m.polynomial === 'number' && Number.isInteger(m.polynomial) && m.polynomial >= 0) return polynomialParams(m.polynomial);
+  if (typeof m.formula === 'string') {
+    try {
+      return formulaParameters(m.formula, variables);
+    } catch {
+      return undefined;
+    }
+  }
+  return undefined;
+}
+
+/**
+ * Checks a parsed spec and returns its normalized form (null when an error was found) with every problem:
+ * unknown keys, types, required keys, model definitions and formulas, parameters, columns, expressions, output path.
+ */
+export function validateSpec(raw: unknown, ctx: ValidateContext): ValidateResult {
+  const c = new Checker(ctx);
+  if (!isObj(raw)) {
+    c.add('spec-type', [], `a fit spec must be a JSON object { "data": {...}, "models": [...] }, not ${typeName(raw)}`);
+    return { spec: null, problems: c.problems };
+  }
+  c.keys(raw, TOP_KEYS, [], 'the spec');
+  const specFile = path.resolve(ctx.file);
+  const specDir = path.dirname(specFile);
+
+  if (raw.title !== undefined && typeof raw.title !== 'string') c.type(['title'], 'a string', raw.title);
+  if (raw.$schema !== undefined && typeof raw.$schema !== 'string') c.type(['$schema'], 'a string', raw.$schema);
+
+  // ------------------------------------------------------------------ data
+  let data: NormalizedData | undefined;
+  let variables: string[] = ['x'];
+  const d = raw.data;
+  if (d === undefined) c.required(['data'], 'an object { "file": "….csv", "x": "column", "y": "column" }');
+  else if (!isObj(d)) c.type(['data'], 'an object { "file": …, "x": …, "y": … }', d);
+  else data = checkData(c, ctx, d, specDir, (v) => (variables = v));
+
+  // ------------------------------------------------------------------ models
+  const models: NormalizedModel[] = [];
+  const paramsByModel = new Map<string, string[] | undefined>();
+  const ms = raw.models;
+  if (ms === undefined) c.required(['models'], 'a list of models, e.g. [{ "name": "line", "polynomial": 1 }]');
+  else if (!Array.isArray(ms)) c.type(['models'], 'a list [ {...}, ... ]', ms);
+  else if (ms.length === 0) c.add('spec-required', ['models'], 'models is empty — add at least one model, e.g. { "name": "line", "polynomial": 1 }');
+  else {
+    const seen = new Map<string, number>();
+    ms.forEach((m, i) => {
+      const nm = checkModel(c, ctx, m, i, variables, seen);
+      if (nm) {
+        models.push(nm);
+      }
+      if (isObj(m) && typeof m.name === 'string' && !paramsByModel.has(m.name)) paramsByModel.set(m.name, modelParams(m, variables));
+    });
+  }
+
+  // ------------------------------------------------------------------ confidence, predict, solveFor
+  let confidence: number = DEFAULTS.confidence;
+  if (raw.confidence !== undefined) {
+    if (!isNum(raw.confidence)) c.type(['confidence'], 'a number between 0 and 1, e.g. 0.95', raw.confidence);
+    else if (!(raw.confidence > 0 && raw.confidence < 1)) {
+      const hint = raw.confidence > 1 && raw.confidence < 100 ? ` — did you mean ${raw.confidence / 100}?` : ' — e.g. 0.95';
+      c.add('spec-range', ['confidence'], `confidence must be strictly between 0 and 1, not ${raw.confidence}${hint}`);
+    } else confidence = raw.confidence;
+  }
+
+  const predict: (number | Record<string, number>)[] = [];
+  if (raw.predict !== undefined) {
+    if (!Array.isArray(raw.predict)) c.type(['predict'], 'a list of x values, e.g. [24, 60]', raw.predict);
+    else
+      raw.predict.forEach((v, i) => {
+        const q: JsonPath = ['predict', i];
+        if (isNum(v)) {
+          if (variables.length > 1) c.add('spec-predict', q, `predict[${i}] is a number, but data.x defines ${variables.length} variables — write an object ${exampleObj(variables)}`);
+          else predict.push(v);
+        } else if (isObj(v)) {
+          const out: Record<string, number> = {};
+          let ok = true;
+          for (const k of Object.keys(v)) {
+            if (!variables.includes(k)) {
+              c.add('spec-predict', [...q, k], `predict[${i}] names '${k}', which is not a variable bound in data.x${didYouMean(k, variables)} (variables: ${quoteList(variables)})`, { key: true });
+              ok = false;
+            } else if (!isNum(v[k])) {
+              c.type([...q, k], 'a number', v[k]);
+              ok = false;
+            } else out[k] = v[k] as number;
+          }
+          for (const name of variables)
+            if (ok && !(name in v)) {
+              c.add('spec-predict', q, `predict[${i}] gives no value for variable '${name}' — write ${exampleObj(variables)}`);
+              ok = false;
+            }
+          if (ok) predict.push(variables.length === 1 ? out[variables[0]] : out);
+        } else c.type(q, variables.length > 1 ? `an object ${exampleObj(variables)}` : 'a number', v);
+      });
+  }
+
+  const solveFor: number[] = [];
+  if (raw.solveFor !== undefined) {
+    if (!Array.isArray(raw.solveFor)) c.type(['solveFor'], 'a list of y values, e.g. [1.0]', raw.solveFor);
+    else {
+      if (variables.length > 1 && raw.solveFor.length > 0)
+        c.add('spec-solve-for', ['solveFor'], `solveFor reads x off the curve, which needs a single x variable; data.x defines ${quoteList(variables)}`);
+      raw.solveFor.forEach((v, i) => {
+        if (!isNum(v)) c.type(['solveFor', i], 'a number (a y value)', v);
+        else solveFor.push(v);
+      });
+    }
+  }
+
+  // ------------------------------------------------------------------ output
+  let output: string | undefined;
+  let outputGiven: string | undefined;
+  if (raw.output !== undefined) {
+    const o = c.str(raw, 'output', [], { nonEmpty: true, required: 'a results file path, e.g. "results/fit.json"' });
+    if (o !== undefined) {
+      const abs = path.resolve(specDir, o);
+      const root = path.resolve(ctx.workspaceRoot ?? process.cwd());
+      const rel = path.relative(root, abs);
+      const same = (a: string, b: string) => (process.platform === 'win32' || process.platform === 'darwin' ? a.toLowerCase() === b.toLowerCase() : a === b);
+      if (rel === '' || rel.startsWith('..') || path.isAbsolute(rel))
+        c.add('spec-output', ['output'], `output ${JSON.stringify(o)} points outside the workspace folder — write a path inside it, relative to the spec file, e.g. "results/fit.json"`);
+      else if (same(abs, specFile)) c.add('spec-output', ['output'], `output ${JSON.stringify(o)} is the spec file itself — results would overwrite it; choose another file, e.g. "results/fit.json"`);
+      else if (data && same(abs, data.file)) c.add('spec-output', ['output'], `output ${JSON.stringify(o)} is the data file — results would overwrite it; choose another file, e.g. "results/fit.json"`);
+      else {
+        output = abs;
+        outputGiven = o;
+      }
+    }
+  }
+
+  // ------------------------------------------------------------------ expect
+  const expect: NormalizedSpec['expect'] = {};
+  if (raw.expect !== undefined) {
+    if (!isObj(raw.expect)) c.type(['expect'], 'an object { "model": { "param": { "value": …, "tol": … } } }', raw.expect);
+    else {
+      const names = [...paramsByModel.keys()];
+      for (const [mname, entries] of Object.entries(raw.expect)) {
+        const q: JsonPath = ['expect', mname];
+        if (!paramsByModel.has(mname)) {
+          c.add('spec-expect', q, `expect refers to model '${mname}', which is not in models${didYouMean(mname, names)} (models: ${quoteList(names)})`, { key: true });
+          continue;
+        }
+        if (!isObj(entries)) {
+          c.type(q, 'an object { "param": { "value": …, "tol": … } }', entries);
+          continue;
+        }
+        const known = paramsByModel.get(mname);
+        const out: Record<string, { value: number; tol: number } | { value: number; rel: number }> = {};
+        for (const [pname, e] of Object.entries(entries)) {
+          const qp = [...q, pname];
+          if (known && !known.includes(pname)) {
+            c.add('spec-expect', qp, `expect names parameter '${pname}', which model '${mname}' does not have${didYouMean(pname, known)} (parameters: ${quoteList(known)})`, { key: true });
+            continue;
+          }
+          if (!isObj(e)) {
+            c.type(qp, 'an object { "value": …, "tol": … } or { "value": …, "rel": … }', e);
+            continue;
+          }
+          c.keys(e, EXPECT_KEYS, qp, `expect.${mname}.${pname}`);
+          const value = c.num(e, 'value', qp);
+          if (e.value === undefined) c.required([...qp, 'value'], 'the expected value');
+          const tol = c.num(e, 'tol', qp, { min: 0 });
+          const rel = c.num(e, 'rel', qp, { min: 0 });
+          if (e.tol !== undefined && e.rel !== undefined) c.add('spec-expect', qp, `expect.${mname}.${pname} gives both "tol" and "rel" — keep one (tol: absolute, rel: relative)`);
+          else if (e.tol === undefined && e.rel === undefined) c.add('spec-expect', qp, `expect.${mname}.${pname} needs "tol" (absolute tolerance) or "rel" (relative tolerance)`);
+          else if (value !== undefined && tol !== undefined) out[pname] = { value, tol };
+          else if (value !== undefined && rel !== undefined) out[pname] = { value, rel };
+        }
+        expect[mname] = out;
+      }
+    }
+  }
+
+  // ------------------------------------------------------------------ thresholds
+  const thresholds: NormalizedSpec['thresholds'] = {};
+  if (raw.thresholds !== undefined) {
+    if (!isObj(raw.thresholds)) c.type(['thresholds'], 'an object of threshold names and numbers', raw.thresholds);
+    else {
+      c.keys(raw.thresholds, THRESHOLD_KEYS, ['thresholds'], 'thresholds');
+      for (const k of THRESHOLD_KEYS) {
+        const v = c.num(raw.thresholds, k, ['thresholds'], { min: 0 });
+        if (v !== undefined) thresholds[k] = v;
+      }
+    }
+  }
+
+  if (c.errors > 0 || !data) return { spec: null, problems: c.problems };
+  const spec: NormalizedSpec = {
+    specFile,
+    specGiven: ctx.file,
+    data,
+    models,
+    confidence,
+    predict,
+    solveFor,
+    expect,
+    thresholds,
+  };
+  if (typeof raw.title === 'string') spec.title = raw.title;
+  if (output !== undefined) {
+    spec.output = output;
+    spec.outputGiven = outputGiven;
+  }
+  return { spec, problems: c.problems };
+}
+
+function exampleObj(variables: string[]): string {
+  return '{ ' + variables.map((v) => `"${v}": …`).join(', ') + ' }';
+}
+
+function checkData(c: Checker, ctx: ValidateContext, d: Obj, specDir: string, setVariables: (v: string[]) => void): NormalizedData | undefined {
+  const P: JsonPath = ['data'];
+  c.keys(d, DATA_KEYS, P, 'data');
+  const errorsBefore = c.errors;
+  const file = c.str(d, 'file', P, { required: 'the CSV file, relative to the spec file, e.g. "culture-b.csv"', nonEmpty: true });
+
+  // variables bound by x
+  const x: Record<string, string> = {};
+  let variables: string[] = [];
+  const rx = d.x;
+  if (rx === undefined) c.required(['data', 'x'], 'the x column or expression, e.g. "hours" (or { "t": "hours", "T": "temp_c" } for several)');
+  else if (typeof rx === 'string') {
+    variables = ['x'];
+  } else if (isObj(rx)) {
+    variables = Object.keys(rx);
+    if (variables.length === 0) c.add('spec-required', ['data', 'x'], 'data.x is an empty object — bind at least one variable, e.g. { "x": "hours" }');
+    for (const v of variables) {
+      const q: JsonPath = ['data', 'x', v];
+      if (!PLAIN_IDENT.test(v)) c.add('spec-variable', q, `variable name '${v}' must be a plain name (letters, digits, _; not starting with a digit)`, { key: true });
+      else if (CONSTANTS.includes(v) || FUNCTIONS.includes(v) || ['and', 'or', 'not'].includes(v))
+        c.add('spec-variable', q, `'${v}' cannot be a variable name: it is a ${CONSTANTS.includes(v) ? 'constant' : FUNCTIONS.includes(v) ? 'function' : 'word'} of the formula language — choose another name`, { key: true });
+      else if (v === 'y') c.add('spec-variable', q, `'y' cannot be an x variable: it names the response in weight and where expressions — choose another name`, { key: true });
+      if (typeof rx[v] !== 'string') c.type(q, 'a column name or expression in double quotes', rx[v]);
+    }
+  } else c.type(['data', 'x'], 'a column name or expression, or an object { "variable": "column" }', rx);
+  if (variables.length > 0) setVariables(variables);
+
+  const y = c.str(d, 'y', P, { required: 'the y column or expression, e.g. "od600"', nonEmpty: true });
+  const sigma = c.str(d, 'sigma', P, { nonEmpty: true });
+  const weight = c.str(d, 'weight', P, { nonEmpty: true });
+  if (d.sigma !== undefined && d.weight !== undefined)
+    c.add('spec-sigma-weight', ['data', 'weight'], 'data gives both "sigma" and "weight" — keep one: sigma (standard deviations, weights 1/σ²) or weight (weights directly)');
+  const where = c.str(d, 'where', P, { nonEmpty: true });
+  const sigmaMode = c.oneOf(d, 'sigmaMode', P, ['relative', 'absolute'] as const);
+  if (sigmaMode === 'absolute' && d.sigma === undefined && d.weight === undefined)
+    c.add('spec-sigma-mode', ['data', 'sigmaMode'], 'sigmaMode "absolute" needs data.sigma (the known standard deviations) — add it or remove sigmaMode', { severity: 'warning' });
+  const delimiter = c.oneOf(d, 'delimiter', P, ['auto', ',', ';', '\t'] as const);
+  const decimal = c.oneOf(d, 'decimal', P, ['.', ','] as const);
+  const badRows = c.oneOf(d, 'badRows', P, ['drop', 'fail'] as const);
+  if (decimal === ',' && delimiter === ',')
+    c.add('spec-delimiter', ['data', 'delimiter'], 'with decimal "," the delimiter cannot also be "," — use ";" or "\\t" (or "auto")');
+
+  const exclude: ExcludeSpec[] = [];
+  if (d.exclude !== undefined) {
+    if (!Array.isArray(d.exclude)) c.type(['data', 'exclude'], 'a list of { "row": N, "reason": "…" }', d.exclude);
+    else {
+      const rows = new Set<number>();
+      d.exclude.forEach((e, i) => {
+        const q: JsonPath = ['data', 'exclude', i];
+        if (!isObj(e)) {
+          c.type(q, 'an object { "row": N, "reason": "…" }', e);
+          return;
+        }
+        c.keys(e, EXCLUDE_KEYS, q, `data.exclude[${i}]`);
+        let row: number | undefined;
+        if (e.row === undefined) c.required([...q, 'row'], 'the 1-based data row (the first row after the header is 1)');
+        else if (!isNum(e.row) || !Number.isInteger(e.row) || e.row < 1)
+          c.add('spec-exclude', [...q, 'row'], `data.exclude[${i}].row must be a positive whole number (the first row after the header is 1), not ${typeName(e.row)}`);
+        else row = e.row;
+        const reason = c.str(e, 'reason', q, { required: 'a short reason, kept for review (e.g. "bubble in cuvette")', nonEmpty: true });
+        if (row !== undefined && rows.has(row)) c.add('spec-exclude', [...q, 'row'], `row ${row} is excluded twice — remove one entry`, { severity: 'warning' });
+        if (row !== undefined) rows.add(row);
+        if (row !== undefined && reason !== undefined) exclude.push({ row, reason });
+      });
+    }
+  }
+
+  // expressions
+  const label = ctx.dataLabel ?? (file !== undefined ? file : undefined);
+  const ectx = { ...ctx, dataLabel: label };
+  const nx: Record<string, string> = {};
+  if (typeof rx === 'string') {
+    if (rx.trim() === '') c.add('spec-type', ['data', 'x'], 'data.x is empty — write a column name, e.g. "hours"');
+    else {
+      const t = checkExpression(c, ectx, rx, ['data', 'x'], 'data.x', { extra: [] });
+      if (t !== undefined) nx.x = t;
+    }
+  } else if (isObj(rx)) {
+    for (const v of variables) {
+      const t = rx[v];
+      if (typeof t !== 'string') continue;
+      if (t.trim() === '') {
+        c.add('spec-type', ['data', 'x', v], `data.x.${v} is empty — write a column name`);
+        continue;
+      }
+      const r = checkExpression(c, ectx, t, ['data', 'x', v], `data.x.${v}`, { extra: [] });
+      if (r !== undefined) nx[v] = r;
+    }
+  }
+  Object.assign(x, nx);
+  const ny = y !== undefined ? checkExpression(c, ectx, y, ['data', 'y'], 'data.y', { extra: [] }) : undefined;
+  const nsigma = sigma !== undefined ? checkExpression(c, ectx, sigma, ['data', 'sigma'], 'data.sigma', { extra: [] }) : undefined;
+  const extra = [...variables, 'y'];
+  const nweight = weight !== undefined ? checkExpression(c, ectx, weight, ['data', 'weight'], 'data.weight', { extra }) : undefined;
+  const nwhere = where !== undefined ? checkExpression(c, ectx, where, ['data', 'where'], 'data.where', { extra, logic: true }) : undefined;
+
+  if (c.errors > errorsBefore || file === undefined || ny === undefined) return undefined;
+  const out: NormalizedData = {
+    file: path.resolve(specDir, file),
+    fileGiven: file,
+    x,
+    y: ny,
+    sigmaMode: sigmaMode ?? DEFAULTS.data.sigmaMode,
+    exclude,
+    delimiter: delimiter ?? DEFAULTS.data.delimiter,
+    decimal: decimal ?? DEFAULTS.data.decimal,
+    badRows: badRows ?? DEFAULTS.data.badRows,
+  };
+  if (nsigma !== undefined) out.sigma = nsigma;
+  if (nweight !== undefined) out.weight = nweight;
+  if (nwhere !== undefined) out.where = nwhere;
+  return out;
+}
+
+function checkModel(c: Checker, ctx: ValidateContext, m: unknown, i: number, variables: string[], seen: Map<string, number>): NormalizedModel | undefined {
+  const P: JsonPath = ['models', i];
+  if (!isObj(m)) {
+    c.type(P, 'an object { "name": …, "builtin" | "polynomial" | "formula": … }', m);
+    return undefined;
+  }
+  const errorsBefore = c.errors;
+  c.keys(m, MODEL_KEYS, P, `models[${i}]`);
+  const name = c.str(m, 'name', P, { required: 'a unique name for this model, e.g. "logistic"', nonEmpty: true });
+  if (name !== undefined) {
+    const first = seen.get(name);
+    if (first !== undefined) c.add('spec-duplicate-name', [...P, 'name'], `model name '${name}' is already used by models[${first}] — names must be unique`);
+    else seen.set(name, i);
+  }
+  const who = name !== undefined ? `model '${name}'` : `models[${i}]`;
+
+  const kinds = (['builtin', 'polynomial', 'formula'] as const).filter((k) => m[k] !== undefined);
+  let kind: NormalizedModel['kind'] | undefined;
+  let params: string[] | undefined;
+  if (kinds.length === 0) c.add('spec-model-kind', P, `${who} needs one of "builtin" (a catalogue id), "polynomial" (a degree) or "formula"`);
+  else if (kinds.length > 1) c.add('spec-model-kind', [...P, kinds[1]], `${who} gives ${kinds.map((k) => `"${k}"`).join(' and ')} — keep exactly one`);
+  else kind = kinds[0];
+
+  let formulaSpans: Map<string, number> | undefined;
+  if (kind === 'builtin') {
+    const b = m.builtin;
+    if (typeof b !== 'string') c.type([...P, 'builtin'], `a catalogue id such as "logistic4"`, b);
+    else if (!isBuiltinId(b)) c.add('spec-unknown-builtin', [...P, 'builtin'], `unknown built-in model '${b}'${didYouMean(b, BUILTIN_IDS)} (available: ${BUILTIN_IDS.join(', ')})`);
+    else {
+      params = [...BUILTIN_PARAMS[b]];
+      if (!variables.includes('x'))
+        c.add('spec-builtin-variable', [...P, 'builtin'], `built-in models are written in the variable x, but data.x binds ${quoteList(variables)} — bind one as "x" or use a formula`);
+    }
+  } else if (kind === 'polynomial') {
+    const n = m.polynomial;
+    if (!isNum(n) || !Number.isInteger(n) || n < 0)
+      c.add('spec-polynomial-degree', [...P, 'polynomial'], `"polynomial" is the degree: a whole number 0, 1, 2, …, not ${typeName(n)}`);
+    else {
+      params = polynomialParams(n);
+      if (variables.length !== 1)
+        c.add('spec-polynomial-variables', [...P, 'polynomial'], `a polynomial needs a single x variable, but data.x binds ${quoteList(variables)} — use a formula for several variables`);
+    }
+  } else if (kind === 'formula') {
+    const f = m.formula;
+    if (typeof f !== 'string') c.type([...P, 'formula'], 'a formula in double quotes, e.g. "a*exp(-k*x)"', f);
+    else if (f.trim() === '') c.add('spec-formula', [...P, 'formula'], `the formula of ${who} is empty — write one, e.g. "a*exp(-k*x)"`);
+    else {
+      try {
+        parseFormula(f);
+        params = formulaParameters(f, variables);
+        formulaSpans = new Map();
+        for (const id of formulaIdentifiers(f)) if (!formulaSpans.has(id.name)) formulaSpans.set(id.name, id.span.start);
+        if (params.length === 0) c.add('spec-formula', [...P, 'formula'], `the formula of ${who} has no parameters to fit — every name in it is a variable or constant`);
+      } catch (e) {
+        if (!(e instanceof FormulaError)) throw e;
+        c.add('spec-formula', [...P, 'formula'], `the formula of ${who} does not parse: ${e.message}`, { charIndex: e.span.start });
+      }
+      if (params && ctx.columns)
+        for (const pn of params)
+          if (ctx.columns.includes(pn))
+            c.add(
+              'spec-param-named-like-column',
+              [...P, 'formula'],
+              `'${pn}' in the formula of ${who} is fitted as a parameter, but it is also a column of the data — to use the column, bind it in data.x (e.g. "x": { "x": …, "${pn}": "${pn}" })`,
+              { severity: 'warning', charIndex: formulaSpans?.get(pn) },
+            );
+    }
+  }
+
+  // params
+  const nparams: Record<string, ParamSpec> = {};
+  const rp = m.params;
+  if (rp !== undefined) {
+    if (!isObj(rp)) c.type([...P, 'params'], 'an object { "K": { "start": …, "min": …, "max": …, "fixed": … } }', rp);
+    else {
+      if (params) {
+        for (const pn of Object.keys(rp))
+          if (!params.includes(pn)) {
+            const hint = didYouMean(pn, params);
+            const what = kind === 'formula' ? `is not in the formula of ${who}` : `is not a parameter of ${who}`;
+            c.add('spec-unknown-param', [...P, 'params', pn], `parameter '${pn}' ${what}${hint} (parameters: ${quoteList(params)})`, { key: true });
+          }
+        if (kind === 'formula' && typeof m.formula === 'string')
+          for (const pn of params)
+            if (!(pn in rp)) {
+              const hint = didYouMean(pn, Object.keys(rp));
+              c.add(
+                'spec-undeclared-param',
+                [...P, 'formula'],
+                `the formula of ${who} uses '${pn}', which params does not declare${hint} — declare it (e.g. "${pn}": {}) or fix the spelling; names bound in data.x are the variables (${quoteList(variables)})`,
+                { charIndex: formulaSpans?.get(pn) },
+              );
+            }
+      }
+      for (const [pn, ps] of Object.entries(rp)) {
+        const q: JsonPath = [...P, 'params', pn];
+        if (!isObj(ps)) {
+          if (isNum(ps)) c.type(q, `an object; for a start value write { "start": ${ps} }`, ps);
+          else c.type(q, 'an object { "start": …, "min": …, "max": …, "fixed": … }', ps);
+          continue;
+        }
+        c.keys(ps, PARAM_KEYS, q, `params.${pn}`);
+        const start = c.num(ps, 'start', q);
+        const min = c.num(ps, 'min', q);
+        const max = c.num(ps, 'max', q);
+        let fixed: boolean | undefined;
+        if (ps.fixed !== undefined) {
+          if (typeof ps.fixed !== 'boolean') c.type([...q, 'fixed'], 'true or false', ps.fixed);
+          else fixed = ps.fixed;
+        }
+        if (min !== undefined && max !== undefined && min > max) c.add('spec-bounds', [...q, 'min'], `parameter '${pn}' of ${who}: min ${min} is greater than max ${max} — swap them`);
+        else if (start !== undefined && ((min !== undefined && start < min) || (max !== undefined && start > max)))
+          c.add('spec-start-outside', [...q, 'start'], `parameter '${pn}' of ${who}: start ${start} lies outside [${min ?? '-∞'}, ${max ?? '∞'}] — move it inside the bounds`);
+        if (fixed === true && start === undefined) c.add('spec-fixed-no-start', [...q, 'fixed'], `parameter '${pn}' of ${who} is fixed but has no start — give "start": the value to hold it at`);
+        const out: ParamSpec = {};
+        if (start !== undefined) out.start = start;
+        if (min !== undefined) out.min = min;
+        if (max !== undefined) out.max = max;
+        if (fixed !== undefined) out.fixed = fixed;
+        nparams[pn] = out;
+      }
+    }
+  }
+
+  // solver
+  const solver = { ...DEFAULTS.solver } as { maxIterations: number; multiStart: number; seconds: number };
+  if (m.solver !== undefined) {
+    if (!isObj(m.solver)) c.type([...P, 'solver'], 'an object { "maxIterations": …, "multiStart": …, "seconds": … }', m.solver);
+    else {
+      const q: JsonPath = [...P, 'solver'];
+      c.keys(m.solver, SOLVER_KEYS, q, 'solver');
+      const it = c.num(m.solver, 'maxIterations', q, { integer: true, min: 1 });
+      const ms = c.num(m.solver, 'multiStart', q, { integer: true, min: 1 });
+      const s = c.num(m.solver, 'seconds', q, { exclusiveMin: 0 });
+      if (it !== undefined) solver.maxIterations = it;
+      if (ms !== undefined) solver.multiStart = ms;
+      if (s !== undefined) solver.seconds = s;
+    }
+  }
+
+  if (c.errors > errorsBefore || name === undefined || kind === undefined) return undefined;
+  const out: NormalizedModel = { name, kind, index: i, params: nparams, solver };
+  if (kind === 'builtin') out.builtin = m.builtin as string;
+  if (kind === 'polynomial') out.polynomial = m.polynomial as number;
+  if (kind === 'formula') out.formula = m.formula as string;
+  return out;
+}

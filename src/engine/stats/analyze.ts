@@ -1,0 +1,628 @@
+// Everything a fitted model reports: estimates with SE from s²(JᵀWJ)⁻¹, t, p, Wald and profile-t intervals, fit
+// statistics (R², information criteria after R's conventions), residual diagnostics, bands, predictions, inverse
+// predictions, cross-validation and the problems found along the way (docs/problems.md).
+import type { FitStats, ModelReport, ParamReport, PointsReport, Problem, ResidualTests } from '../report';
+import type { LsqProblem } from '../solve/types';
+import type { ModelAnalysisInput } from './api';
+import { covarianceFromJacobian, leverage } from './covariance';
+import { chi2Sf, normalQuantile, tQuantile, tTwoSidedP, normalSf } from './distributions';
+import { informationCriteria } from './information';
+import { durbinWatson, normalityTest, runsTest } from './residualTests';
+import { profileIntervals } from './profile';
+import { crossValidate } from './crossval';
+import { computeBand, computeInverse, computePrediction, predictionPoint, variableRange, type PredictionContext } from './predict';
+import { fmt } from './format';
+
+/** LsqProblem over the given data for a compiled formula. */
+export function lsqProblem(input: Pick<ModelAnalysisInput, 'compiled' | 'X' | 'y' | 'w' | 'params'>): LsqProblem {
+  const { compiled, X, y, w } = input;
+  return {
+    n: y.length,
+    p: input.params.length,
+    y,
+    w: w ?? undefined,
+    model: (theta, out, J) => (J ? compiled.evaluateWithJacobian(theta, X, out, J) : compiled.evaluate(theta, X, out)),
+  };
+}
+
+/** true when the constant vector lies in the span of the free Jacobian columns (a linear model "with intercept"). */
+export function hasConstantColumn(J: Float64Array, n: number, p: number, free: boolean[]): boolean {
+  if (n === 0) return false;
+  const basis: Float64Array[] = [];
+  for (let j = 0; j < p; j++) {
+    if (!free[j]) continue;
+    const q = Float64Array.from(J.subarray(j * n, (j + 1) * n));
+    let norm0 = 0;
+    for (let i = 0; i < n; i++) norm0 += q[i] * q[i];
+    norm0 = Math.sqrt(norm0);
+    if (!(norm0 > 0) || !Number.isFinite(norm0)) continue;
+    for (let pass = 0; pass < 2; pass++) {
+      for (const b of basis) {
+        let d = 0;
+        for (let i = 0; i < n; i++) d += b[i] * q[i];
+        for (let i = 0; i < n; i++) q[i] -= d * b[i];
+      }
+    }
+    let norm = 0;
+    for (let i = 0; i < n; i++) norm += q[i] * q[i];
+    norm = Math.sqrt(norm);
+    if (norm > 1e-10 * norm0) {
+      for (let i = 0; i < n; i++) q[i] /= norm;
+      basis.push(q);
+    }
+  }
+  // residual of projecting 1/√n onto the basis
+  const one = new Float64Array(n).fill(1 / Math.sqrt(n));
+  for (let pass = 0; pass < 2; pass++) {
+    for (const b of basis) {
+      let d = 0;
+      for (let i = 0; i < n; i++) d += b[i] * one[i];
+      for (let i = 0; i < n; i++) one[i] -= d * b[i];
+    }
+  }
+  let r = 0;
+  for (let i = 0; i < n; i++) r += one[i] * one[i];
+  return Math.sqrt(r) < 1e-8;
+}
+
+const PROFILE_SECONDS = 2;
+const CV_SECONDS = 2;
+
+function emptyStats(n: number, dof: number, sse: number): FitStats {
+  return {
+    n, dof, sse,
+    sigma: dof > 0 && Number.isFinite(sse) ? Math.sqrt(sse / dof) : null,
+    rmse: n > 0 ? Math.sqrt(sse / n) : NaN,
+    r2: null, adjR2: null, chi2: null, reducedChi2: null, logLik: null, aic: null, aicc: null, bic: null,
+    cvRmse: null, cvFolds: null,
+  };
+}
+
+/** Sort order of the rows by the first x variable (ties by row order). */
+export function orderByX(X: Float64Array[], n: number): number[] {
+  const x = X[0];
+  const idx = Array.from({ length: n }, (_, i) => i);
+  if (x) idx.sort((a, b) => x[a] - x[b] || a - b);
+  return idx;
+}
+
+function finiteOrNull(v: number): number | null {
+  return Number.isFinite(v) ? v : null;
+}
+
+export function analyzeModel(input: ModelAnalysisInput): ModelReport {
+  const { result: res, params, compiled, X, y, w, thresholds: th } = input;
+  const opts = input.options ?? {};
+  const base: (string | number)[] = ['models', input.index];
+  const paramPath = (name: string) => [...base, 'params', name];
+  const problems: Problem[] = [];
+  const n = y.length;
+  const p = params.length;
+  const free = input.fixed.map((f) => !f);
+  const pFree = free.filter(Boolean).length;
+  const theta = Float64Array.from(res.theta);
+  const f = res.f;
+  const J = res.J;
+  const weighted = w !== null;
+  const absolute = input.sigmaMode === 'absolute' && weighted;
+
+  // residuals e = y − f and weighted residuals r = √w e
+  const e = new Float64Array(n);
+  const r = new Float64Array(n);
+  let sse = 0;
+  const badRows: number[] = [];
+  for (let i = 0; i < n; i++) {
+    e[i] = y[i] - f[i];
+    r[i] = (weighted ? Math.sqrt(w![i]) : 1) * e[i];
+    if (!Number.isFinite(f[i])) badRows.push(input.rows[i]);
+    sse += r[i] * r[i];
+  }
+
+  const report: ModelReport = {
+    name: input.name,
+    kind: input.kind,
+    formula: input.formula,
+    linear: input.linear,
+    status: res.converged && badRows.length === 0 ? 'converged' : 'failed',
+    termination: res.termination,
+    iterations: res.iterations,
+    paramOrder: params.slice(),
+    params: {},
+    covariance: null,
+    correlation: null,
+    stats: emptyStats(n, n - pFree, sse),
+    residualTests: null,
+    band: null,
+    predictions: [],
+    inverse: [],
+    problems,
+  };
+  if (input.startValues && input.startSource) {
+    const values: Record<string, number> = {};
+    params.forEach((name, j) => (values[name] = input.startValues![j]));
+    report.start = { values, source: input.startSource };
+  }
+  const points: PointsReport = {
+    row: Array.from(input.rows as ArrayLike<number>),
+    x: Object.fromEntries(input.variables.map((v, k) => [v, Array.from(X[k])])),
+    y: Array.from(y),
+    fitted: Array.from(f),
+    residual: Array.from(e),
+    standardized: new Array(n).fill(NaN),
+    leverage: new Array(n).fill(NaN),
+    cooks: new Array(n).fill(NaN),
+  };
+  if (weighted) points.weight = Array.from(w!);
+  report.points = points;
+
+  // ------------------------------------------------------------ failure: report what we have, no inference
+  if (report.status === 'failed') {
+    if (badRows.length > 0 || res.termination === 'non-finite') {
+      const rowsText = badRows.length ? ` at data row${badRows.length > 1 ? 's' : ''} ${listRows(badRows)}` : '';
+      problems.push({
+        code: 'non-finite-values',
+        severity: 'error',
+        message:
+          `${input.name}: the model gives a non-finite value (NaN or infinity)${rowsText}. ` +
+          `The formula cannot be evaluated there with these parameter values (e.g. log or sqrt of a negative number, division by zero, overflow in exp). ` +
+          `Try other start values, bounds that keep the parameters in the valid region (min/max), or exclude the rows concerned.`,
+        path: base,
+        ...(badRows.length ? { rows: badRows.slice(0, 100) } : {}),
+      });
+    }
+    if (!res.converged) {
+      problems.push({
+        code: 'no-convergence',
+        severity: 'error',
+        message:
+          `${input.name} did not converge: the solver stopped with '${res.termination}' after ${res.iterations} iteration${res.iterations === 1 ? '' : 's'}` +
+          `${res.message ? ` (${res.message})` : ''}. The estimates are not a least-squares solution, so no uncertainty is reported. ` +
+          terminationAdvice(res.termination),
+        path: base,
+      });
+    }
+    for (let j = 0; j < p; j++) {
+      report.params[params[j]] = { value: theta[j], se: null, t: null, p: null, ci: null, profileCi: null, fixed: input.fixed[j], atBound: res.atBound[j] ?? null };
+    }
+    report.predictions = input.predict.map((entry) => ({ x: entry, y: null, ci: null, pi: null, extrapolated: false }));
+    report.inverse = input.solveFor.map((yv) => ({ y: yv, roots: [], extrapolated: false }));
+    return report;
+  }
+
+  // ------------------------------------------------------------ covariance and parameters
+  const covInfo0 = covarianceFromJacobian(J, n, p, w, free, 1);
+  const rank = covInfo0.rank;
+  const dof = n - rank;
+  const s2 = dof > 0 ? sse / dof : NaN;
+  const scale = absolute ? 1 : s2;
+  const cov = new Float64Array(p * p);
+  for (let k = 0; k < p * p; k++) cov[k] = covInfo0.cov[k] * scale;
+  const unidentifiable = covInfo0.unidentifiable;
+  const level = input.confidence;
+  const qWald = absolute ? normalQuantile((1 + level) / 2) : dof > 0 ? tQuantile((1 + level) / 2, dof) : NaN;
+  report.stats = emptyStats(n, dof, sse);
+
+  const se = new Float64Array(p).fill(NaN);
+  for (let j = 0; j < p; j++) {
+    const name = params[j];
+    const fixed = input.fixed[j];
+    const pr: ParamReport = { value: theta[j], se: null, t: null, p: null, ci: null, profileCi: null, fixed, atBound: fixed ? null : res.atBound[j] ?? null };
+    const v = cov[j * p + j];
+    if (!fixed && Number.isFinite(v) && v >= 0) {
+      se[j] = Math.sqrt(v);
+      pr.se = se[j];
+      if (se[j] > 0) {
+        pr.t = theta[j] / se[j];
+        pr.p = absolute ? Math.min(1, 2 * normalSf(Math.abs(pr.t))) : tTwoSidedP(pr.t, dof);
+      }
+      if (Number.isFinite(qWald)) {
+        pr.ci = [theta[j] - qWald * se[j], theta[j] + qWald * se[j]];
+        if (input.linear) pr.profileCi = pr.ci.slice() as [number, number]; // linear models: profile-t equals Wald exactly
+      }
+    }
+    report.params[name] = pr;
+  }
+  const covOut: (number | null)[][] = [];
+  const corOut: (number | null)[][] = [];
+  for (let a = 0; a < p; a++) {
+    covOut.push([]);
+    corOut.push([]);
+    for (let b = 0; b < p; b++) {
+      covOut[a].push(finiteOrNull(cov[a * p + b]));
+      const c = cov[a * p + b] / Math.sqrt(cov[a * p + a] * cov[b * p + b]);
+      corOut[a].push(a === b && Number.isFinite(c) ? 1 : finiteOrNull(Math.max(-1, Math.min(1, c))));
+    }
+  }
+  report.covariance = covOut;
+  report.correlation = corOut;
+
+  // ------------------------------------------------------------ fit statistics
+  const stats = report.stats;
+  let sw = 0;
+  let swy = 0;
+  let swy2 = 0;
+  let nPos = 0;
+  let sumLogW = 0;
+  for (let i = 0; i < n; i++) {
+    const wi = weighted ? w![i] : 1;
+    sw += wi;
+    swy += wi * y[i];
+    swy2 += wi * y[i] * y[i];
+    if (wi > 0) {
+      nPos++;
+      if (weighted) sumLogW += Math.log(wi);
+    }
+  }
+  const uncentred = input.linear && !hasConstantColumn(J, n, p, free);
+  const ybar = sw > 0 ? swy / sw : NaN;
+  let sst = 0;
+  for (let i = 0; i < n; i++) sst += (weighted ? w![i] : 1) * (y[i] - ybar) ** 2;
+  const denom = uncentred ? swy2 : sst;
+  if (denom > 0) {
+    stats.r2 = 1 - sse / denom;
+    if (dof > 0) stats.adjR2 = 1 - ((1 - stats.r2) * (n - (uncentred ? 0 : 1))) / dof;
+  }
+  if (uncentred) stats.r2Uncentred = true;
+  if (weighted) {
+    stats.chi2 = sse;
+    stats.reducedChi2 = dof > 0 ? sse / dof : null;
+    stats.chi2P = absolute && dof > 0 ? chi2Sf(sse, dof) : null;
+  }
+  const ic = informationCriteria(sse, nPos, pFree, sumLogW);
+  stats.logLik = ic.logLik;
+  stats.aic = ic.aic;
+  stats.aicc = ic.aicc;
+  stats.bic = ic.bic;
+
+  // ------------------------------------------------------------ points: leverage, standardized residuals, Cook's D
+  const h = leverage(J, n, p, w, free);
+  for (let i = 0; i < n; i++) {
+    const hi = h[i];
+    points.leverage[i] = hi;
+    const denomS = Math.sqrt(scale * (1 - hi));
+    points.standardized[i] = 1 - hi > 1e-12 && denomS > 0 ? r[i] / denomS : NaN;
+    points.cooks[i] = 1 - hi > 1e-12 && scale > 0 && rank > 0 ? (r[i] * r[i] * hi) / (rank * scale * (1 - hi) * (1 - hi)) : NaN;
+  }
+
+  // ------------------------------------------------------------ residual tests (weighted residuals, ordered by x)
+  const order = orderByX(X, n);
+  const rOrdered = Float64Array.from(order, (i) => r[i]);
+  const allZero = rOrdered.every((v) => Math.abs(v) <= 1e-14 * (Math.abs(y[0]) + 1));
+  const runs = allZero ? null : runsTest(rOrdered);
+  const normality = allZero ? null : normalityTest(rOrdered);
+  const tests: ResidualTests = {
+    runs: runs ? { runs: runs.runs, expected: runs.expected, z: runs.z, p: runs.p } : null,
+    normality: normality ? { test: normality.test, statistic: normality.statistic, p: normality.p } : null,
+    durbinWatson: allZero ? null : durbinWatson(rOrdered),
+  };
+  report.residualTests = tests;
+
+  // ------------------------------------------------------------ cross-validation
+  if (opts.crossValidate !== false) {
+    const cv = crossValidate({
+      compiled, X, y, w, theta, lower: input.lower, upper: input.upper, fixed: input.fixed, linear: input.linear,
+      maxIterations: input.solverOptions?.maxIterations,
+      deadline: Date.now() + 1000 * (opts.cvSeconds ?? CV_SECONDS), shouldStop: input.shouldStop,
+    });
+    stats.cvRmse = cv.rmse;
+    stats.cvFolds = cv.folds;
+    if (cv.rmse === null && cv.reason === 'timeout') {
+      problems.push({
+        code: 'cv-incomplete',
+        severity: 'info',
+        message: `${input.name}: cross-validation did not finish within its time budget (${opts.cvSeconds ?? CV_SECONDS} s), so no cross-validated RMSE is reported. Fewer rows or a simpler model make it faster.`,
+        path: base,
+      });
+    }
+  }
+
+  // ------------------------------------------------------------ profile-likelihood intervals (nonlinear only)
+  const openProfile = new Set<number>();
+  if (!input.linear && opts.profile !== false && dof > 0 && Number.isFinite(qWald)) {
+    const seconds = opts.profileSeconds ?? PROFILE_SECONDS;
+    const prof = profileIntervals({
+      problem: lsqProblem(input), theta, lower: input.lower, upper: input.upper, fixed: input.fixed,
+      sseHat: sse, scale, q: qWald, se, maxIterations: input.solverOptions?.maxIterations,
+      deadline: Date.now() + 1000 * seconds, shouldStop: input.shouldStop,
+    });
+    const timedOut: string[] = [];
+    prof.ci.forEach((b, j) => {
+      if (!b) return;
+      report.params[params[j]].profileCi = [b[0].value, b[1].value];
+      if (b[0].status === 'timeout' || b[1].status === 'timeout') timedOut.push(params[j]);
+      else if (b[0].value === null || b[1].value === null) openProfile.add(j);
+    });
+    if (timedOut.length) {
+      problems.push({
+        code: 'profile-incomplete',
+        severity: 'info',
+        message:
+          `${input.name}: the profile-likelihood interval of ${quoteList(timedOut)} was not finished within the ${seconds} s budget, so those bounds are null (not computed). ` +
+          `The Wald interval (ci) is still reported; a model with fewer parameters or fewer rows profiles faster.`,
+        path: base,
+      });
+    }
+  }
+
+  // ------------------------------------------------------------ band, predictions, inverse
+  const pctx: PredictionContext = { compiled, theta, cov, free, q: qWald, scale, X, w };
+  if (input.variables.length === 1) report.band = computeBand(pctx, input.variables[0], opts.bandPoints ?? 200);
+  const ranges = variableRange(X);
+  input.predict.forEach((entry, k) => {
+    const pt = predictionPoint(entry, input.variables);
+    if ('error' in pt) {
+      report.predictions.push({ x: entry, y: null, ci: null, pi: null, extrapolated: false });
+      problems.push({
+        code: 'prediction-invalid',
+        severity: 'warning',
+        message: `predict[${k}] ${pt.error}, so ${input.name} cannot be evaluated there.`,
+        path: ['predict', k],
+      });
+      return;
+    }
+    const pr = computePrediction(pctx, entry, pt.x);
+    report.predictions.push(pr);
+    if (pr.extrapolated) {
+      problems.push({
+        code: 'extrapolation',
+        severity: 'warning',
+        message:
+          `${input.name}: the prediction at ${describePoint(entry)} lies outside the data range (${describeRanges(input.variables, ranges)}). ` +
+          `Its intervals assume the model still holds there, which the data cannot confirm; treat it with care or collect data that cover it.`,
+        path: ['predict', k],
+      });
+    }
+  });
+  input.solveFor.forEach((yv, k) => {
+    if (input.variables.length !== 1) {
+      report.inverse.push({ y: yv, roots: [], extrapolated: false });
+      problems.push({
+        code: 'inverse-no-root',
+        severity: 'warning',
+        message: `${input.name} has several x variables (${input.variables.join(', ')}); solving for x at y = ${fmt(yv)} needs a single x variable.`,
+        path: ['solveFor', k],
+      });
+      return;
+    }
+    const inv = computeInverse(pctx, yv);
+    report.inverse.push(inv);
+    const [lo, hi] = ranges[0];
+    if (inv.roots.length === 0) {
+      problems.push({
+        code: 'inverse-no-root',
+        severity: 'warning',
+        message:
+          `${input.name} does not reach y = ${fmt(yv)} within or near the data range (${input.variables[0]} from ${fmt(lo)} to ${fmt(hi)}), so no x is reported for it. ` +
+          `Check that the value is inside the range of the curve (fitted ${fmt(Math.min(...f))} to ${fmt(Math.max(...f))}) and in the same units as y.`,
+        path: ['solveFor', k],
+      });
+    } else if (inv.extrapolated) {
+      problems.push({
+        code: 'inverse-extrapolation',
+        severity: 'warning',
+        message:
+          `${input.name} reaches y = ${fmt(yv)} only outside the data range (at ${input.variables[0]} = ${inv.roots.map((rt) => fmt(rt.x)).join(', ')}; data from ${fmt(lo)} to ${fmt(hi)}). ` +
+          `The value is extrapolated from the model's shape; extend the measured range (e.g. add standards) to read it reliably.`,
+        path: ['solveFor', k],
+      });
+    }
+  });
+
+  // ------------------------------------------------------------ problems
+  detectProblems(input, report, { rank, dof, unidentifiable, se, openProfile, h, n, pFree });
+  return report;
+}
+
+function terminationAdvice(t: string): string {
+  switch (t) {
+    case 'iteration-limit':
+      return 'Raise solver.maxIterations, or give start values closer to the solution.';
+    case 'time-limit':
+      return 'Raise solver.seconds, or give start values closer to the solution.';
+    case 'singular':
+      return 'The parameters cannot all be determined from these data: fix one, simplify the formula, or add data that vary more.';
+    case 'non-finite':
+      return 'Give start values and bounds (min/max) that keep the formula finite over the data.';
+    case 'cancelled':
+      return 'The run was cancelled; run it again.';
+    default:
+      return 'Try other start values or bounds.';
+  }
+}
+
+export function listRows(rows: number[], max = 10): string {
+  const shown = rows.slice(0, max).join(', ');
+  return rows.length > max ? `${shown} and ${rows.length - max} more` : shown;
+}
+
+function quoteList(names: string[]): string {
+  return names.map((s) => `'${s}'`).join(', ');
+}
+
+function describePoint(entry: number | Record<string, number>): string {
+  return typeof entry === 'number' ? `x = ${fmt(entry)}` : Object.entries(entry).map(([k, v]) => `${k} = ${fmt(v)}`).join(', ');
+}
+
+function describeRanges(vars: string[], ranges: [number, number][]): string {
+  return vars.map((v, k) => `${v} from ${fmt(ranges[k][0])} to ${fmt(ranges[k][1])}`).join('; ');
+}
+
+interface Facts {
+  rank: number;
+  dof: number;
+  unidentifiable: number[];
+  se: Float64Array;
+  openProfile: Set<number>;
+  h: Float64Array;
+  n: number;
+  pFree: number;
+}
+
+function detectProblems(input: ModelAnalysisInput, report: ModelReport, k: Facts): void {
+  const { params, thresholds: th } = input;
+  const problems = report.problems;
+  const base: (string | number)[] = ['models', input.index];
+  const name = input.name;
+  const p = params.length;
+
+  if (k.unidentifiable.length > 0) {
+    const names = k.unidentifiable.map((j) => params[j]);
+    problems.push({
+      code: 'rank-deficient',
+      severity: 'error',
+      message:
+        `${name}: the fit is singular (rank ${k.rank} of ${k.pFree} free parameters) — ${quoteList(names)} cannot be determined from these data, ` +
+        `because a change in ${names.length > 1 ? 'them' : 'it'} can be offset exactly by the other parameters or the data do not vary enough. ` +
+        `Their standard errors are not reported. Fix ${names.length > 1 ? 'one of them' : 'it'} ("fixed": true with a start), remove a redundant term, or add data that vary more.`,
+      path: names.length === 1 ? [...base, 'params', names[0]] : base,
+    });
+  }
+
+  for (let j = 0; j < p; j++) {
+    const pr = report.params[params[j]];
+    if (pr.fixed) continue;
+    if (pr.atBound) {
+      const bound = pr.atBound === 'min' ? input.lower[j] : input.upper[j];
+      problems.push({
+        code: 'param-at-bound',
+        severity: 'warning',
+        message:
+          `${name}: ${params[j]} = ${fmt(pr.value)} sits on its ${pr.atBound} bound (${fmt(bound)}). The best fit may lie beyond the bound, ` +
+          `and standard errors and intervals computed at a bound are not reliable. Check whether the bound is physically required; if not, relax it.`,
+        path: [...base, 'params', params[j]],
+      });
+    }
+    const rel = pr.se !== null && pr.value !== 0 ? pr.se / Math.abs(pr.value) : null;
+    const open = k.openProfile.has(j);
+    if ((rel !== null && rel > th.relativeSe) || open) {
+      const why: string[] = [];
+      if (rel !== null && rel > th.relativeSe) why.push(`its standard error is ${fmt(100 * rel, 3)}% of the estimate (above ${fmt(100 * th.relativeSe, 3)}%)`);
+      if (open) {
+        const ci = pr.profileCi!;
+        const side = ci[0] === null && ci[1] === null ? 'on either side' : ci[0] === null ? 'below' : 'above';
+        why.push(`its profile-likelihood interval does not close ${side} the estimate`);
+      }
+      problems.push({
+        code: 'poorly-determined',
+        severity: 'warning',
+        message:
+          `${name}: ${params[j]} = ${fmt(pr.value)} is poorly determined — ${why.join(' and ')}. The data say little about its value; ` +
+          `consider fixing it, bounding it, a simpler model, or data over a range where it matters (e.g. further along the curve).`,
+        path: [...base, 'params', params[j]],
+      });
+    }
+  }
+
+  // pairwise correlation of the estimates
+  const cor = report.correlation;
+  if (cor) {
+    for (let a = 0; a < p; a++) {
+      for (let b = a + 1; b < p; b++) {
+        const c = cor[a][b];
+        if (c !== null && Math.abs(c) > th.paramCorrelation) {
+          problems.push({
+            code: 'param-correlation',
+            severity: 'warning',
+            message:
+              `${name}: the estimates of ${params[a]} and ${params[b]} are correlated (r = ${c.toFixed(4)}, beyond ±${th.paramCorrelation}). ` +
+              `The data mainly determine a combination of the two, so each alone is uncertain and sensitive to the start. ` +
+              `Reparametrise (e.g. centre x), fix one of them, or collect data that separate their effects.`,
+            path: [...base, 'params', params[a]],
+          });
+        }
+      }
+    }
+  }
+
+  // overfitting
+  let paramsFired = false;
+  if (k.dof < th.minDof) {
+    problems.push({
+      code: 'overfit-dof',
+      severity: 'warning',
+      message:
+        `${name} leaves ${k.dof} residual degree${k.dof === 1 ? '' : 's'} of freedom (${k.n} rows, ${k.rank} estimated parameters; fewer than ${th.minDof} is flagged). ` +
+        `With so few, the curve follows the noise and the uncertainty estimates are unreliable or undefined. Use a model with fewer parameters or add data.`,
+      path: base,
+    });
+  }
+  if (k.pFree > k.n * th.paramsPerPoint) {
+    paramsFired = true;
+    problems.push({
+      code: 'overfit-params',
+      severity: 'warning',
+      message:
+        `${name} estimates ${k.pFree} parameters from ${k.n} rows (more than ${fmt(th.paramsPerPoint, 3)} per row). ` +
+        `Such a flexible model can fit noise rather than the trend. Compare with a simpler model or add data.`,
+      path: base,
+    });
+  }
+  if (input.kind === 'polynomial' && input.degree !== undefined && !paramsFired) {
+    const distinct = new Set(Array.from(input.X[0] ?? [])).size;
+    if (input.degree + 1 > distinct * th.paramsPerPoint) {
+      problems.push({
+        code: 'overfit-degree',
+        severity: 'warning',
+        message:
+          `${name}: a polynomial of degree ${input.degree} is high for ${distinct} distinct x value${distinct === 1 ? '' : 's'} ` +
+          `(${input.degree + 1} coefficients; more than ${fmt(th.paramsPerPoint, 3)} per distinct x is flagged). It will wiggle between the x values and extrapolate badly. Try a lower degree or a model with a mechanism.`,
+        path: [...base, 'polynomial'],
+      });
+    }
+  }
+  const st = report.stats;
+  if (st.cvRmse !== null && st.rmse > 0 && st.cvRmse > th.cvRatio * st.rmse) {
+    problems.push({
+      code: 'overfit-cv',
+      severity: 'warning',
+      message:
+        `${name}: the cross-validated RMSE (${fmt(st.cvRmse)}, ${st.cvFolds}-fold) is ${fmt(st.cvRmse / st.rmse, 3)} times the in-sample RMSE (${fmt(st.rmse)}; above ${th.cvRatio}× is flagged). ` +
+        `The model predicts left-out rows much worse than the rows it was fitted to — a sign of overfitting or of a few rows driving the fit. Try a simpler model, and look at the influential points.`,
+      path: base,
+    });
+  }
+
+  // residual structure
+  const tests = report.residualTests;
+  if (tests?.runs && tests.runs.p < th.runsP) {
+    const few = tests.runs.runs < tests.runs.expected;
+    problems.push({
+      code: 'systematic-residuals',
+      severity: 'warning',
+      message:
+        `${name}: the residuals ordered by x have ${tests.runs.runs} runs of the same sign where about ${fmt(tests.runs.expected, 3)} are expected by chance (runs test p = ${fmt(tests.runs.p, 2)}, below ${th.runsP}). ` +
+        (few
+          ? `Long stretches above and below the curve mean the model misses a systematic pattern in the data. Look at the residual plot and try a model of a different shape.`
+          : `The signs alternate more than chance allows, which suggests correlated measurements or a periodic effect. Look at the residual plot.`),
+      path: base,
+    });
+  }
+  if (tests?.normality && tests.normality.p < th.normalityP) {
+    problems.push({
+      code: 'non-normal-residuals',
+      severity: 'info',
+      message:
+        `${name}: the residuals are far from normal (${tests.normality.test === 'shapiro-wilk' ? 'Shapiro–Wilk W' : "D'Agostino–Pearson K²"} = ${fmt(tests.normality.statistic, 4)}, p = ${fmt(tests.normality.p, 2)}, below ${th.normalityP}). ` +
+        `The p-values and intervals assume normal errors. Check for outliers, a skewed measurement scale (e.g. fit log(y)), or weights that vary with y.`,
+      path: base,
+    });
+  }
+  const pts = report.points!;
+  const cut = th.cooksFactor / k.n;
+  const influential: number[] = [];
+  for (let i = 0; i < k.n; i++) {
+    const d = pts.cooks[i];
+    if (d > cut || (Number.isNaN(d) && k.h[i] >= 1 - 1e-12 && k.dof > 0)) influential.push(pts.row[i]);
+  }
+  if (influential.length > 0 && k.dof > 0) {
+    problems.push({
+      code: 'influential-points',
+      severity: 'info',
+      message:
+        `${name}: ${influential.length} point${influential.length === 1 ? ' has' : 's have'} a large influence on the fit (Cook's distance above ${fmt(th.cooksFactor, 3)}/n = ${fmt(cut, 3)}): data row${influential.length === 1 ? '' : 's'} ${listRows(influential)}. ` +
+        `Removing ${influential.length === 1 ? 'it' : 'one of them'} would move the estimates noticeably. Check these rows for errors; if one is a genuine mistake, exclude it with a reason in data.exclude.`,
+      path: base,
+      rows: influential,
+    });
+  }
+}

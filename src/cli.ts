@@ -1,0 +1,40 @@
+// Entry of the headless command line (bundled to dist/cli.js, started by bin/curvewright.js). In a worker thread
+// started by the CLI itself it runs specs instead (src/cli/pool.ts). Every failure ends in a message and an exit
+// code, never a stack trace: 2 for bad arguments, 3 for a bug (with a hint to report it).
+import { UsageError } from './cli/args';
+import { processIo } from './cli/io';
+import { main } from './cli/main';
+import { InternalError, isCliWorker, startCliWorker } from './cli/pool';
+
+function internal(e: unknown): void {
+  const detail = e instanceof InternalError ? e.detail : e instanceof Error ? e.stack : undefined;
+  const message = e instanceof Error ? e.message : String(e);
+  process.stderr.write(
+    `curvewright: internal error: ${message}\n` +
+      '  This is a bug in Curvewright, not a problem with your files. Please report it with the command you ran\n' +
+      '  (and, if you can, the spec and data). Set CURVEWRIGHT_DEBUG=1 to print the details.\n',
+  );
+  if (process.env.CURVEWRIGHT_DEBUG && detail) process.stderr.write(detail + '\n');
+  process.exitCode = 3;
+}
+
+if (isCliWorker()) {
+  startCliWorker();
+} else {
+  process.stdout.on('error', (e: NodeJS.ErrnoException) => {
+    if (e.code === 'EPIPE') process.exit(process.exitCode ?? 0); // reader went away (e.g. `| head`)
+  });
+  process.on('uncaughtException', internal);
+  process.on('unhandledRejection', internal);
+  main(process.argv.slice(2), processIo).then(
+    code => {
+      process.exitCode = code;
+    },
+    e => {
+      if (e instanceof UsageError) {
+        process.stderr.write(`curvewright: ${e.message}\n`);
+        process.exitCode = 2;
+      } else internal(e);
+    },
+  );
+}

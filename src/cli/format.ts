@@ -1,0 +1,135 @@
+// Human-readable text of run results: the per-spec summary table of `fit`, problem lines, and check verdicts.
+// Numbers are rounded here for reading only; the JSON never is.
+import * as path from 'path';
+import type { ErrorReport, FitReport, ModelReport, Problem } from '../engine/report';
+
+/** A number to `digits` significant digits, in exponent form when very large or small. */
+export function num(v: number | null | undefined, digits = 4): string {
+  if (v === null || v === undefined || !Number.isFinite(v)) return '—';
+  if (v === 0) return '0';
+  const a = Math.abs(v);
+  if (a >= 10 ** digits && a < 1e9) return String(Math.round(v));
+  if (a >= 1e9 || a < 1e-3) {
+    const [m, e] = v.toExponential(digits - 1).split('e');
+    return `${trimZeros(m)}e${e.replace('+', '')}`;
+  }
+  return trimZeros(v.toPrecision(digits));
+}
+
+function trimZeros(s: string): string {
+  return s.includes('.') && !s.includes('e') ? s.replace(/0+$/, '').replace(/\.$/, '') : s;
+}
+
+function table(rows: string[][], indent = '  '): string[] {
+  const widths = rows[0].map((_, j) => Math.max(...rows.map(r => (r[j] ?? '').length)));
+  return rows.map(r => indent + r.map((c, j) => (j === r.length - 1 ? c : c.padEnd(widths[j]))).join('  ').trimEnd());
+}
+
+function paramText(m: ModelReport, max = 4): string {
+  const names = m.paramOrder;
+  const parts = names.slice(0, max).map(n => {
+    const p = m.params[n];
+    if (!p) return `${n}=—`;
+    const se = p.fixed ? ' (fixed)' : p.se !== null && Number.isFinite(p.se) ? `±${num(p.se, 2)}` : '';
+    return `${n}=${num(p.value)}${se}`;
+  });
+  if (names.length > max) parts.push(`… (+${names.length - max})`);
+  return parts.join(' ');
+}
+
+/** "path:line:column" or "path" for a problem, relative to the spec's folder when the problem names a file. */
+export function where(p: Problem, specShown: string): string {
+  if (p.location) {
+    const loc = p.location;
+    const file = loc.file && !loc.file.endsWith('.fitspec.json') && !path.isAbsolute(loc.file)
+      ? path.join(path.dirname(specShown), loc.file)
+      : specShown;
+    if (loc.line !== undefined) return `${file}:${loc.line}${typeof loc.column === 'number' ? `:${loc.column}` : ''}`;
+    if (loc.row !== undefined) return `${file} row ${loc.row}`;
+    return file;
+  }
+  return specShown;
+}
+
+export function pathText(p: (string | number)[]): string {
+  let s = '';
+  for (const k of p) s += typeof k === 'number' ? `[${k}]` : s === '' ? k : `.${k}`;
+  return s;
+}
+
+export function problemLine(p: Problem, specShown: string): string {
+  const at = p.path && p.path.length ? ` [${pathText(p.path)}]` : '';
+  return `${where(p, specShown)}: ${p.severity}${at}: ${p.message} (${p.code})`;
+}
+
+/** Every problem of a report: the spec/data ones, then each model's (with the model named). */
+export function allProblems(r: FitReport): { problem: Problem; model?: string }[] {
+  return [...r.problems.map(problem => ({ problem })), ...r.models.flatMap(m => m.problems.map(problem => ({ problem, model: m.name })))];
+}
+
+/** Text of an ErrorReport: the spec's place, the message, and every problem found. */
+export function errorText(r: ErrorReport, specShown: string): string {
+  const lines: string[] = [];
+  const problems = r.error.problems ?? [];
+  if (problems.length) {
+    for (const p of problems) lines.push(`${problemLine(p, specShown)}`);
+  } else {
+    const loc = r.error.location;
+    const at = loc && loc.line !== undefined ? `${specShown}:${loc.line}${typeof loc.column === 'number' ? `:${loc.column}` : ''}` : specShown;
+    const jp = r.error.path && r.error.path.length ? ` [${pathText(r.error.path)}]` : '';
+    lines.push(`${at}: error${jp}: ${r.error.message}`);
+  }
+  return lines.join('\n');
+}
+
+/** The summary `fit` prints for one spec. */
+export function summaryText(r: FitReport, specShown: string, written: string | null): string {
+  const out: string[] = [];
+  out.push(`${specShown}${r.title ? ` — ${r.title}` : ''}`);
+  const d = r.data;
+  const notes: string[] = [];
+  if (d.filtered) notes.push(`${d.filtered} filtered by where`);
+  if (d.dropped.length) notes.push(`${d.dropped.length} dropped`);
+  if (d.excluded.length) notes.push(`${d.excluded.length} excluded`);
+  out.push(`  data: ${d.file}, ${d.used} of ${d.rows} rows used${notes.length ? ` (${notes.join(', ')})` : ''}`);
+  const rows: string[][] = [['', 'model', 'status', 'parameters (± SE)', 'AICc', 'R²', 'problems']];
+  for (const m of r.models) {
+    const status = m.status === 'converged' ? 'converged' : `FAILED (${m.termination})`;
+    const counted = m.problems.filter(p => p.severity !== 'info').length;
+    rows.push([r.best === m.name ? '*' : '', m.name, status, paramText(m), num(m.stats.aicc, 5), num(m.stats.r2, 5), String(counted)]);
+  }
+  out.push(...table(rows));
+  if (r.comparison && r.best) out.push(`  best: ${r.best}${r.comparison.reason ? ` — ${r.comparison.reason}` : ''}`);
+  const best = r.models.find(m => m.name === r.best) ?? r.models.find(m => m.status === 'converged');
+  if (best) {
+    for (const p of best.predictions) {
+      const x = typeof p.x === 'number' ? num(p.x) : Object.entries(p.x).map(([k, v]) => `${k}=${num(v)}`).join(', ');
+      out.push(`  predict (${best.name}) at ${x}: ${num(p.y, 5)}${p.ci ? ` [${num(p.ci[0])}, ${num(p.ci[1])}]` : ''}${p.extrapolated ? ' (extrapolated)' : ''}`);
+    }
+    for (const inv of best.inverse) {
+      const roots = inv.roots.length
+        ? inv.roots.map(rt => `${num(rt.x)} [${num(rt.interval[0])}, ${num(rt.interval[1])}]`).join(' or ')
+        : 'no x in range gives this y';
+      out.push(`  solveFor (${best.name}) y = ${num(inv.y, 6)}: x = ${roots}${inv.extrapolated ? ' (extrapolated)' : ''}`);
+    }
+  }
+  if (r.expect.length) {
+    const met = r.expect.filter(e => e.ok).length;
+    out.push(`  expect: ${met} of ${r.expect.length} met${met < r.expect.length ? ` — ${r.expect.filter(e => !e.ok).map(expectText).join('; ')}` : ''}`);
+  }
+  const problems = allProblems(r).filter(x => x.problem.severity !== 'info');
+  const shown = problems.slice(0, 12);
+  for (const { problem, model } of shown) {
+    const named = model !== undefined && !problem.message.startsWith(`${model}:`);
+    out.push(`  ${problem.severity}${named ? ` (${model})` : ''}: ${problem.message} [${problem.code}]`);
+  }
+  if (problems.length > shown.length) out.push(`  … and ${problems.length - shown.length} more problems (see the results file or --json)`);
+  if (written) out.push(`  wrote ${written}`);
+  return out.join('\n');
+}
+
+export function expectText(e: FitReport['expect'][number]): string {
+  const allowed = e.tol !== undefined ? `± ${num(e.tol)}` : `± ${num((e.rel ?? 0) * 100)} %`;
+  const got = e.actual === null ? 'no estimate (model failed or parameter unknown)' : `got ${num(e.actual, 6)}`;
+  return `${e.model}.${e.param} = ${num(e.value, 6)} ${allowed}: ${got}`;
+}

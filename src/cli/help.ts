@@ -1,0 +1,128 @@
+// The commands, their options and their --help texts (one table, so help and parsing cannot drift apart).
+import type { OptionDef } from './args';
+
+export interface CommandDef {
+  name: string;
+  usage: string;
+  summary: string;
+  details: string[];
+  options: OptionDef[];
+}
+
+const HELP: OptionDef = { name: 'help', short: 'h', help: 'show this help' };
+
+export const EXIT_CODES = [
+  '0  everything ran (fit) / every check passed (check)',
+  '1  a check failed (check: non-converged model, error-level problem, unmet expect, stale results file)',
+  '2  bad input: a spec, a data file or the command-line arguments',
+  '3  internal error (a bug in Curvewright — please report it)',
+  'With several specs the highest code wins.',
+];
+
+export const COMMANDS: CommandDef[] = [
+  {
+    name: 'fit',
+    usage: 'curvewright fit <spec...> [--json] [--jobs N]',
+    summary: 'fit every model of each spec, write its results file, print a summary',
+    details: [
+      'Each spec\'s "output" results file is written atomically (a temporary file, then rename).',
+      'A <spec> may be a file, a folder (its *.fitspec.json files) or a pattern like examples/*.fitspec.json.',
+      'Exits 0 when every spec ran, even if a model failed to converge (the summary says so); 2 for bad input.',
+    ],
+    options: [
+      { name: 'json', help: 'print one FitReport per line (JSON), in the order the specs were given, instead of the summary' },
+      { name: 'jobs', short: 'j', value: true, meta: 'N', help: 'run up to N specs at once on worker threads (default: number of CPUs)' },
+      HELP,
+    ],
+  },
+  {
+    name: 'check',
+    usage: 'curvewright check <spec...> [--strict] [--update] [--json] [--jobs N]',
+    summary: 'fit and fail (exit 1) when a model does not converge, an error is found, an expect is not met, or results are stale',
+    details: [
+      'A results file is stale when its meta.specHash or meta.dataHash differ from the current spec and data.',
+      'check does not write results files, except with --update.',
+    ],
+    options: [
+      { name: 'strict', help: 'fail on warnings too' },
+      { name: 'update', help: 'set every expect value in the spec to the current estimate (comments and layout kept) and rewrite the results file' },
+      { name: 'json', help: 'print one FitReport per line (JSON) instead of the check summary' },
+      { name: 'jobs', short: 'j', value: true, meta: 'N', help: 'run up to N specs at once on worker threads (default: number of CPUs)' },
+      HELP,
+    ],
+  },
+  {
+    name: 'report',
+    usage: 'curvewright report <spec...> -o report.html',
+    summary: 'fit the specs and write one self-contained HTML report (plots, tables, problems)',
+    details: ['The page needs no network and no server: open it in any browser or attach it to a review.'],
+    options: [
+      { name: 'output', short: 'o', value: true, meta: 'FILE', help: 'HTML file to write (default: report.html)' },
+      { name: 'jobs', short: 'j', value: true, meta: 'N', help: 'run up to N specs at once on worker threads (default: number of CPUs)' },
+      HELP,
+    ],
+  },
+  {
+    name: 'new',
+    usage: 'curvewright new <csv> [--x COLUMN] [--y COLUMN] [-o SPEC]',
+    summary: 'write a starter fit spec for a CSV file, with candidate models chosen from the shape of the data',
+    details: [
+      'x defaults to the first numeric column that rises or falls steadily, y to the next numeric column.',
+      'The spec is written next to the CSV file as <name>.fitspec.json unless -o is given; an existing file is never overwritten.',
+    ],
+    options: [
+      { name: 'x', value: true, meta: 'COLUMN', help: 'column to use as x' },
+      { name: 'y', value: true, meta: 'COLUMN', help: 'column to use as y' },
+      { name: 'output', short: 'o', value: true, meta: 'SPEC', help: 'spec file to write' },
+      HELP,
+    ],
+  },
+];
+
+function optionLines(options: OptionDef[]): string[] {
+  const rows = options.map(o => [`${o.short ? `-${o.short}, ` : '    '}--${o.name}${o.value ? ` ${o.meta ?? 'VALUE'}` : ''}`, o.help]);
+  const w = Math.max(...rows.map(r => r[0].length));
+  return rows.map(([a, b]) => `  ${a.padEnd(w)}  ${b}`);
+}
+
+export function commandHelp(cmd: CommandDef): string {
+  return [
+    `Usage: ${cmd.usage}`,
+    '',
+    `${cmd.summary[0].toUpperCase()}${cmd.summary.slice(1)}.`,
+    ...cmd.details.map(d => `  ${d}`),
+    '',
+    'Options:',
+    ...optionLines(cmd.options),
+    '',
+    'Exit codes:',
+    ...EXIT_CODES.map(l => `  ${l}`),
+    '',
+  ].join('\n');
+}
+
+export function programHelp(version: string): string {
+  const w = Math.max(...COMMANDS.map(c => c.name.length));
+  return [
+    `${version} — fit linear, polynomial and nonlinear models to CSV data described by *.fitspec.json files.`,
+    '',
+    'Usage: curvewright <command> [options]',
+    '',
+    'Commands:',
+    ...COMMANDS.map(c => `  ${c.name.padEnd(w)}  ${c.summary}`),
+    '',
+    'Options:',
+    '  -h, --help     show help (also `curvewright <command> --help`)',
+    '  -v, --version  print the version',
+    '',
+    'Examples:',
+    '  curvewright fit examples/*.fitspec.json',
+    '  curvewright check examples/ --strict',
+    '  curvewright report examples/*.fitspec.json -o report.html',
+    '  curvewright new data/plate-7.csv --x conc --y absorbance',
+    '',
+    'Exit codes:',
+    ...EXIT_CODES.map(l => `  ${l}`),
+    '',
+  ].join('\n');
+}

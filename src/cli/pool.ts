@@ -1,0 +1,97 @@
+// Runs many specs in parallel on worker threads. The workers run this same bundle (dist/cli.js) in worker mode
+// (workerData.curvewrightCliWorker), so no extra entry point is needed. Unbundled (tests under tsx) or with one
+// job, specs run in this thread instead.
+import * as os from 'os';
+import { Worker, isMainThread, parentPort, workerData } from 'worker_threads';
+import { runSpecFile } from '../engine/run';
+import type { RunResult } from '../engine/report';
+
+interface JobMessage { id: number; specPath: string; workspaceRoot: string }
+type ReplyMessage = { id: number; result: RunResult } | { id: number; failure: string };
+
+export const WORKER_FLAG = 'curvewrightCliWorker';
+
+export function defaultJobs(): number {
+  return Math.max(1, os.cpus().length);
+}
+
+/** True in a worker thread started by runAll. */
+export function isCliWorker(): boolean {
+  return !isMainThread && !!workerData && (workerData as Record<string, unknown>)[WORKER_FLAG] === true;
+}
+
+/** The worker side: answer each job with its RunResult. */
+export function startCliWorker(): void {
+  const port = parentPort!;
+  port.on('message', async (job: JobMessage) => {
+    let reply: ReplyMessage;
+    try {
+      reply = { id: job.id, result: await runSpecFile(job.specPath, { workspaceRoot: job.workspaceRoot }) };
+    } catch (e) {
+      reply = { id: job.id, failure: e instanceof Error ? e.stack ?? e.message : String(e) };
+    }
+    port.postMessage(reply);
+  });
+}
+
+export class InternalError extends Error {
+  constructor(message: string, readonly detail?: string) {
+    super(message);
+    this.name = 'InternalError';
+  }
+}
+
+/**
+ * Runs every spec (absolute or cwd-relative paths) and calls onResult(index, result) as each finishes (any order).
+ * Resolves with the results in the order given.
+ */
+export async function runAll(
+  specs: string[],
+  opts: { jobs: number; workspaceRoot: string },
+  onResult: (index: number, result: RunResult) => void = () => undefined,
+): Promise<RunResult[]> {
+  const results: RunResult[] = new Array(specs.length);
+  const bundled = __filename.endsWith('.js');
+  const jobs = Math.min(opts.jobs, specs.length);
+  if (!bundled || jobs <= 1) {
+    for (let i = 0; i < specs.length; i++) {
+      results[i] = await runSpecFile(specs[i], { workspaceRoot: opts.workspaceRoot });
+      onResult(i, results[i]);
+    }
+    return results;
+  }
+  let next = 0;
+  const workers: Worker[] = [];
+  try {
+    await new Promise<void>((resolve, reject) => {
+      let done = 0;
+      const feed = (w: Worker) => {
+        if (next >= specs.length) return;
+        const id = next++;
+        w.postMessage({ id, specPath: specs[id], workspaceRoot: opts.workspaceRoot } satisfies JobMessage);
+      };
+      for (let k = 0; k < jobs; k++) {
+        const w = new Worker(__filename, { workerData: { [WORKER_FLAG]: true } });
+        workers.push(w);
+        w.on('message', (m: ReplyMessage) => {
+          if ('failure' in m) {
+            reject(new InternalError(`a worker failed on ${specs[m.id]}`, m.failure));
+            return;
+          }
+          results[m.id] = m.result;
+          onResult(m.id, m.result);
+          if (++done === specs.length) resolve();
+          else feed(w);
+        });
+        w.on('error', e => reject(new InternalError(`a worker thread stopped: ${e.message}`, e.stack)));
+        w.on('exit', code => {
+          if (done < specs.length && code !== 0) reject(new InternalError(`a worker thread exited with code ${code}`));
+        });
+        feed(w);
+      }
+    });
+  } finally {
+    await Promise.all(workers.map(w => w.terminate()));
+  }
+  return results;
+}

@@ -1,0 +1,580 @@
+// The run layer: spec text + CSV file -> FitReport (or ErrorReport), its deterministic JSON, and the atomic results file.
+// Pipeline: parseSpecText -> validateSpec -> readHeader -> validateSpec(columns) -> readTable -> prepareData
+//   -> per model: buildModel, fitModel, analyzeModel -> compareModels -> expect checks.
+// Never throws for user input: every user mistake becomes an ErrorReport naming the file, place and fix.
+import { createHash, randomBytes } from 'crypto';
+import { promises as fsp } from 'fs';
+import * as path from 'path';
+import { parse as parseJsonc } from 'jsonc-parser';
+import {
+  ENGINE_VERSION,
+  type DataReport,
+  type ErrorReport,
+  type ExpectResult,
+  type FileLocation,
+  type FitReport,
+  type JsonPath,
+  type ModelReport,
+  type ParamReport,
+  type Problem,
+  type RunResult,
+  type Thresholds,
+} from './report';
+import { FormulaError } from './formula/types';
+import { formulaIdentifiers } from './formula';
+import { parseSpecText, validateSpec, locatePath } from './spec';
+import type { NormalizedSpec } from './spec/types';
+import { DataError, prepareData, readHeader, readTable } from './data';
+import type { Table } from './data/types';
+import { buildModel, fitModel } from './models';
+import { analyzeModel, compareModels, DEFAULT_THRESHOLDS } from './stats';
+import type { ModelAnalysisInput } from './stats/api';
+
+export interface RunOptions {
+  /** spec text to use instead of the file on disk (e.g. unsaved editor text) */
+  specText?: string;
+  /** folder outputs must stay inside (default: the current directory) */
+  workspaceRoot?: string;
+  /** polled during the fits; true cancels */
+  shouldStop?: () => boolean;
+  /** short progress notes ("fitting model 2 of 3: gompertz") */
+  onProgress?: (msg: string) => void;
+}
+
+/** Seed of every randomised step (multi-start); fixed so that the same spec and data give the same report. */
+export const RUN_SEED = 1;
+
+/** Results files leave out per-point arrays above this many rows (the report says pointsOmitted: true). */
+export const MAX_POINTS_IN_FILE = 10000;
+
+export function sha256(text: string | Buffer): string {
+  return 'sha256:' + createHash('sha256').update(text).digest('hex');
+}
+
+/** The spec's name in reports: its file name, so that results do not depend on the folder the run started in. */
+function specDisplayName(specPath: string): string {
+  return path.basename(specPath);
+}
+
+// ------------------------------------------------------------------ errors
+
+function errorReport(spec: string, message: string, extra: { path?: JsonPath; location?: FileLocation; problems?: Problem[] } = {}): ErrorReport {
+  const error: ErrorReport['error'] = { message };
+  if (extra.path) error.path = extra.path;
+  if (extra.location) error.location = extra.location;
+  if (extra.problems && extra.problems.length) error.problems = extra.problems;
+  return { version: 1, spec, error };
+}
+
+function fromProblems(spec: string, problems: Problem[]): ErrorReport {
+  const errors = problems.filter(p => p.severity === 'error');
+  const first = errors[0];
+  const more = errors.length > 1 ? ` (and ${errors.length - 1} more problem${errors.length > 2 ? 's' : ''})` : '';
+  return errorReport(spec, first.message + more, { path: first.path, location: first.location, problems });
+}
+
+function locationOf(text: string, file: string, jsonPath: JsonPath): FileLocation | undefined {
+  try {
+    const at = locatePath(text, jsonPath);
+    return at ? { file, line: at.line, column: at.column } : undefined;
+  } catch {
+    return undefined;
+  }
+}
+
+/** Message of something thrown that is not a user error: a bug, worded so the user knows to report it. */
+function internalMessage(e: unknown, doing: string): string {
+  const m = e instanceof Error ? e.message : String(e);
+  return `internal error while ${doing}: ${m} — this is a bug in Curvewright; please report it with the spec and data file`;
+}
+
+// ------------------------------------------------------------------ columns
+
+/** Columns of the CSV the spec reads: identifiers of data.x, y, sigma, weight and where that name a header column. */
+export function columnsNeeded(spec: NormalizedSpec, header: string[]): string[] {
+  const wanted = new Set<string>();
+  const texts: { text: string; logic: boolean }[] = [];
+  for (const expr of Object.values(spec.data.x)) texts.push({ text: expr, logic: false });
+  texts.push({ text: spec.data.y, logic: false });
+  if (spec.data.sigma) texts.push({ text: spec.data.sigma, logic: false });
+  if (spec.data.weight) texts.push({ text: spec.data.weight, logic: false });
+  if (spec.data.where) texts.push({ text: spec.data.where, logic: true });
+  const columns = new Set(header);
+  for (const { text, logic } of texts) {
+    if (columns.has(text)) {
+      wanted.add(text);
+      continue;
+    }
+    for (const id of formulaIdentifiers(text, { logic })) if (columns.has(id.name)) wanted.add(id.name);
+  }
+  return header.filter(c => wanted.has(c));
+}
+
+// ------------------------------------------------------------------ output path checks
+
+function isInside(root: string, file: string): boolean {
+  const rel = path.relative(root, file);
+  return rel === '' || (!rel.startsWith('..') && !path.isAbsolute(rel));
+}
+
+async function realOrSelf(p: string): Promise<string> {
+  // resolve symlinks of the deepest existing ancestor, so that a link cannot smuggle the output elsewhere
+  let head = p;
+  const tail: string[] = [];
+  for (;;) {
+    try {
+      const real = await fsp.realpath(head);
+      return path.join(real, ...tail.reverse());
+    } catch {
+      const parent = path.dirname(head);
+      if (parent === head) return p;
+      tail.push(path.basename(head));
+      head = parent;
+    }
+  }
+}
+
+/** Why `output` may not be written, or null when it may. */
+export async function outputRefusal(
+  outputAbs: string,
+  inputs: { spec: string; data: string },
+  workspaceRoot: string | undefined,
+): Promise<string | null> {
+  const out = await realOrSelf(path.resolve(outputAbs));
+  if (workspaceRoot !== undefined) {
+    const root = await realOrSelf(path.resolve(workspaceRoot));
+    if (!isInside(root, out))
+      return `the results file ${outputAbs} is outside the workspace ${workspaceRoot} — give "output" a path inside it, e.g. "results/<name>.fitresult.json"`;
+  }
+  for (const [what, file] of [['spec', inputs.spec], ['data', inputs.data]] as const) {
+    if ((await realOrSelf(path.resolve(file))) === out)
+      return `"output" names the ${what} file ${file} itself — it would be overwritten; write results to a separate file such as "results/<name>.fitresult.json"`;
+  }
+  if (/\.(csv|tsv|txt)$/i.test(out) || /\.fitspec\.json$/i.test(out))
+    return `"output" ${outputAbs} looks like an input file (data or spec) — results go to a .json file such as "results/<name>.fitresult.json"`;
+  return null;
+}
+
+// ------------------------------------------------------------------ the run
+
+/** Run a spec given by its file (or its text in opts.specText). Resolves to a FitReport or an ErrorReport; never rejects for user input. */
+export async function runSpecFile(specPath: string, opts: RunOptions = {}): Promise<RunResult> {
+  const name = specDisplayName(specPath);
+  let text: string;
+  if (opts.specText !== undefined) text = opts.specText;
+  else {
+    try {
+      text = await fsp.readFile(specPath, 'utf8');
+    } catch (e) {
+      const code = (e as NodeJS.ErrnoException).code;
+      const why = code === 'ENOENT' ? 'no such file' : code === 'EISDIR' ? 'it is a folder' : code === 'EACCES' ? 'permission denied' : (e as Error).message;
+      return errorReport(name, `cannot read the spec ${specPath}: ${why} — check the path`, { location: { file: specPath } });
+    }
+  }
+  if (text.charCodeAt(0) === 0xfeff) text = text.slice(1);
+  try {
+    return await runSpecText(specPath, text, opts);
+  } catch (e) {
+    if (e instanceof DataError) return errorReport(name, e.message, { path: e.path, location: e.location });
+    if (e instanceof FormulaError) return errorReport(name, e.message);
+    return errorReport(name, internalMessage(e, `running ${specPath}`));
+  }
+}
+
+/** Same as runSpecFile with the spec text given; the data file is read from disk relative to specPath. */
+export function runSpec(specText: string, specPath: string, opts: Omit<RunOptions, 'specText'> = {}): Promise<RunResult> {
+  return runSpecFile(specPath, { ...opts, specText });
+}
+
+async function runSpecText(specPath: string, text: string, opts: RunOptions): Promise<RunResult> {
+  const name = specDisplayName(specPath);
+  const specHash = sha256(text);
+  const progress = opts.onProgress ?? (() => undefined);
+
+  // 1. syntax
+  const parsed = parseSpecText(text, specPath);
+  if (parsed.problems.some(p => p.severity === 'error')) return fromProblems(name, parsed.problems);
+
+  // 2. shape, without and then with the data file's columns
+  const workspaceRoot = opts.workspaceRoot ?? process.cwd();
+  const first = validateSpec(parsed.raw, { file: specPath, text, workspaceRoot });
+  if (!first.spec || first.problems.some(p => p.severity === 'error')) return fromProblems(name, [...parsed.problems, ...first.problems]);
+  const dataFile = first.spec.data.file;
+  const dataLabel = first.spec.data.fileGiven;
+  const readOpts = { delimiter: first.spec.data.delimiter, decimal: first.spec.data.decimal, label: dataLabel };
+  const header = await readHeader(dataFile, readOpts);
+  const checked = validateSpec(parsed.raw, { file: specPath, text, columns: header, workspaceRoot, dataLabel });
+  const specProblems = [...parsed.problems, ...checked.problems];
+  if (!checked.spec || specProblems.some(p => p.severity === 'error')) return fromProblems(name, specProblems);
+  const spec = checked.spec;
+
+  if (spec.output) {
+    const refusal = await outputRefusal(spec.output, { spec: specPath, data: spec.data.file }, workspaceRoot);
+    if (refusal) return errorReport(name, refusal, { path: ['output'], location: locationOf(text, name, ['output']) });
+  }
+
+  // 3. data
+  progress(`reading ${spec.data.fileGiven}`);
+  const table = await readTable(spec.data.file, { columns: columnsNeeded(spec, header), ...readOpts, badRows: spec.data.badRows });
+  const prepared = prepareData(spec, table);
+  const dataProblems = dedupe([...table.problems, ...prepared.problems]);
+  if (dataProblems.some(p => p.severity === 'error')) return fromProblems(name, [...specProblems, ...dataProblems]);
+  const data = { X: prepared.X, y: prepared.y, w: prepared.w };
+  const thresholds: Thresholds = { ...DEFAULT_THRESHOLDS, ...spec.thresholds };
+
+  // 4. models
+  const models: ModelReport[] = [];
+  const analysed: { input: ModelAnalysisInput; report: ModelReport }[] = [];
+  for (let i = 0; i < spec.models.length; i++) {
+    const m = spec.models[i];
+    progress(`fitting model ${i + 1} of ${spec.models.length}: ${m.name}`);
+    let built: ReturnType<typeof buildModel>;
+    try {
+      built = buildModel(m, prepared.variables, { X: prepared.X, y: prepared.y });
+    } catch (e) {
+      if (e instanceof FormulaError || e instanceof DataError || isUserError(e)) {
+        const sub = (e as { path?: unknown }).path;
+        const p: JsonPath = ['models', i, ...(Array.isArray(sub) && sub.length ? (sub as JsonPath) : [m.kind])];
+        return errorReport(name, `model '${m.name}': ${(e as Error).message}`, { path: p, location: locationOf(text, name, p) });
+      }
+      models.push(failedModel(m, i, e, 'building the model'));
+      continue;
+    }
+    try {
+      const result = fitModel(built, data, {
+        maxIterations: m.solver.maxIterations,
+        seconds: m.solver.seconds,
+        multiStart: m.solver.multiStart,
+        seed: RUN_SEED,
+        shouldStop: opts.shouldStop,
+      });
+      const input: ModelAnalysisInput = {
+        index: i,
+        name: m.name,
+        kind: built.kind,
+        formula: built.formula,
+        builtin: built.builtin,
+        degree: built.degree,
+        compiled: built.compiled,
+        params: built.params,
+        lower: built.lower,
+        upper: built.upper,
+        fixed: built.fixed,
+        linear: built.compiled.linear,
+        variables: prepared.variables,
+        X: prepared.X,
+        y: prepared.y,
+        w: prepared.w,
+        rows: prepared.rows,
+        sigmaMode: spec.data.sigmaMode,
+        result,
+        startValues: result.startValues,
+        startSource: result.startSource,
+        confidence: spec.confidence,
+        predict: spec.predict,
+        solveFor: spec.solveFor,
+        thresholds,
+        solverOptions: { maxIterations: m.solver.maxIterations, seconds: m.solver.seconds },
+        shouldStop: opts.shouldStop,
+      };
+      const report = analyzeModel(input);
+      models.push(report);
+      analysed.push({ input, report });
+    } catch (e) {
+      models.push(failedModel(m, i, e, `fitting model '${m.name}'`, built));
+    }
+  }
+
+  // 5. comparison
+  let comparison: FitReport['comparison'] = null;
+  const runProblems: Problem[] = [];
+  if (analysed.length > 0) {
+    try {
+      comparison = compareModels(
+        analysed.map(a => a.input),
+        analysed.map(a => a.report),
+        thresholds,
+      );
+    } catch (e) {
+      runProblems.push({ code: 'comparison-failed', severity: 'warning', message: internalMessage(e, 'comparing the models'), path: ['models'] });
+    }
+  }
+
+  // 6. expectations
+  const expect = checkExpectations(spec, models);
+
+  const specDir = path.dirname(path.resolve(specPath));
+  const report: FitReport = {
+    version: 1,
+    spec: name,
+    ...(spec.title !== undefined ? { title: spec.title } : {}),
+    meta: { engine: ENGINE_VERSION, specHash, dataHash: table.hash, seed: RUN_SEED },
+    data: dataReport(spec, table, prepared),
+    models,
+    comparison,
+    best: comparison ? comparison.best : null,
+    problems: dedupe([...specProblems, ...dataProblems, ...runProblems]),
+    expect,
+    confidence: spec.confidence,
+  };
+  // results files are committed: no absolute paths of this machine in them, only paths relative to the spec
+  report.problems = relativeProblems(report.problems, specDir);
+  for (const m of report.models) m.problems = relativeProblems(m.problems, specDir);
+  return report;
+}
+
+/** Errors thrown by buildModel with a user message (not a bug): plain Errors whose name says so. */
+function isUserError(e: unknown): boolean {
+  return e instanceof Error && (e.name === 'SpecError' || e.name === 'ModelError' || (e as { user?: boolean }).user === true);
+}
+
+/** Problems with absolute paths under `dir` rewritten relative to it (messages and locations). */
+export function relativeProblems(problems: Problem[], dir: string): Problem[] {
+  const prefixes = [dir + path.sep, dir + '/'];
+  const strip = (s: string) => prefixes.reduce((acc, pre) => acc.split(pre).join(''), s);
+  return problems.map(p => {
+    const q: Problem = { ...p, message: strip(p.message) };
+    if (p.location) q.location = { ...p.location, file: path.isAbsolute(p.location.file) ? path.relative(dir, p.location.file).split(path.sep).join('/') : p.location.file };
+    return q;
+  });
+}
+
+function dedupe(problems: Problem[]): Problem[] {
+  const seen = new Set<string>();
+  return problems.filter(p => {
+    const k = JSON.stringify([p.code, p.severity, p.message, p.path]);
+    if (seen.has(k)) return false;
+    seen.add(k);
+    return true;
+  });
+}
+
+function failedModel(
+  m: NormalizedSpec['models'][number],
+  index: number,
+  e: unknown,
+  doing: string,
+  built?: { formula: string; params: string[]; compiled: { linear: boolean } },
+): ModelReport {
+  const params: Record<string, ParamReport> = {};
+  for (const p of built?.params ?? []) params[p] = { value: NaN, se: null, t: null, p: null, ci: null, profileCi: null, fixed: false, atBound: null };
+  return {
+    name: m.name,
+    kind: m.kind,
+    formula: built?.formula ?? m.formula ?? '',
+    linear: built?.compiled.linear ?? false,
+    status: 'failed',
+    termination: 'non-finite',
+    iterations: 0,
+    paramOrder: built?.params ?? [],
+    params,
+    covariance: null,
+    correlation: null,
+    stats: {
+      n: 0, dof: 0, sse: NaN, sigma: null, rmse: NaN, r2: null, adjR2: null, chi2: null, reducedChi2: null,
+      logLik: null, aic: null, aicc: null, bic: null, cvRmse: null, cvFolds: null,
+    },
+    residualTests: null,
+    band: null,
+    predictions: [],
+    inverse: [],
+    problems: [{ code: 'fit-failed', severity: 'error', message: internalMessage(e, doing), path: ['models', index] }],
+  };
+}
+
+function checkExpectations(spec: NormalizedSpec, models: ModelReport[]): ExpectResult[] {
+  const out: ExpectResult[] = [];
+  for (const [modelName, params] of Object.entries(spec.expect ?? {})) {
+    const model = models.find(m => m.name === modelName);
+    for (const [param, e] of Object.entries(params)) {
+      const pr = model?.params[param];
+      const actual = pr && Number.isFinite(pr.value) && model!.status === 'converged' ? pr.value : null;
+      const r: ExpectResult = { model: modelName, param, value: e.value, actual: null, ok: false };
+      let allowed: number;
+      if ('tol' in e) {
+        r.tol = e.tol;
+        allowed = e.tol;
+      } else {
+        r.rel = e.rel;
+        allowed = e.rel * Math.abs(e.value);
+      }
+      r.actual = actual;
+      // a relative slack of a few ulps so that a value pinned exactly at the edge is not failed by rounding
+      r.ok = actual !== null && Math.abs(actual - e.value) <= allowed * (1 + 1e-12) + 4 * Number.EPSILON * Math.abs(e.value);
+      out.push(r as ExpectResult);
+    }
+  }
+  return out;
+}
+
+function pearson(a: ArrayLike<number>, b: ArrayLike<number>): number | null {
+  const n = a.length;
+  if (n < 2) return null;
+  let ma = 0, mb = 0;
+  for (let i = 0; i < n; i++) { ma += a[i]; mb += b[i]; }
+  ma /= n; mb /= n;
+  let sab = 0, saa = 0, sbb = 0;
+  for (let i = 0; i < n; i++) {
+    const da = a[i] - ma, db = b[i] - mb;
+    sab += da * db; saa += da * da; sbb += db * db;
+  }
+  if (saa === 0 || sbb === 0) return null;
+  return sab / Math.sqrt(saa * sbb);
+}
+
+function range(v: ArrayLike<number>): [number, number] {
+  let lo = Infinity, hi = -Infinity;
+  for (let i = 0; i < v.length; i++) { if (v[i] < lo) lo = v[i]; if (v[i] > hi) hi = v[i]; }
+  return v.length ? [lo, hi] : [NaN, NaN];
+}
+
+function dataReport(spec: NormalizedSpec, table: Table, prepared: ReturnType<typeof prepareData>): DataReport {
+  const vars = prepared.variables;
+  const xRanges: Record<string, [number, number]> = {};
+  const correlation: Record<string, number | null> = {};
+  vars.forEach((v, k) => {
+    xRanges[v] = range(prepared.X[k]);
+    correlation[v] = pearson(prepared.X[k], prepared.y);
+  });
+  return {
+    file: spec.data.fileGiven,
+    rows: table.totalRows,
+    used: prepared.y.length,
+    dropped: prepared.dropped ?? table.dropped,
+    excluded: prepared.excluded,
+    filtered: prepared.filtered,
+    range: { x: vars.length === 1 ? xRanges[vars[0]] : xRanges, y: range(prepared.y) },
+    correlation,
+  };
+}
+
+// ------------------------------------------------------------------ deterministic JSON
+
+export interface SerializeOptions {
+  /** indent nested objects (arrays of numbers stay on one line); default false = one line */
+  pretty?: boolean;
+}
+
+/** Top-level key order of a FitReport (others follow in insertion order). */
+const REPORT_KEYS = ['version', 'spec', 'title', 'error', 'meta', 'data', 'models', 'comparison', 'best', 'problems', 'expect', 'confidence'];
+
+function normalise(v: unknown): unknown {
+  if (typeof v === 'number') return Number.isFinite(v) ? (Object.is(v, -0) ? 0 : v) : null;
+  if (v === null || typeof v !== 'object') return v === undefined ? undefined : v;
+  if (ArrayBuffer.isView(v)) return Array.from(v as unknown as ArrayLike<number>, x => (Number.isFinite(x) ? (Object.is(x, -0) ? 0 : x) : null));
+  if (Array.isArray(v)) return v.map(x => { const n = normalise(x); return n === undefined ? null : n; });
+  const out: Record<string, unknown> = {};
+  for (const [k, x] of Object.entries(v as Record<string, unknown>)) {
+    const n = normalise(x);
+    if (n !== undefined && typeof x !== 'function') out[k] = n;
+  }
+  return out;
+}
+
+function ordered(report: Record<string, unknown>): Record<string, unknown> {
+  const out: Record<string, unknown> = {};
+  for (const k of REPORT_KEYS) if (k in report) out[k] = report[k];
+  for (const k of Object.keys(report)) if (!(k in out)) out[k] = report[k];
+  return out;
+}
+
+function isFlat(a: unknown[]): boolean {
+  return a.every(x => x === null || typeof x !== 'object' || (Array.isArray(x) && x.every(y => y === null || typeof y !== 'object')));
+}
+
+function pretty(v: unknown, indent: string): string {
+  if (v === null || typeof v !== 'object') return JSON.stringify(v);
+  if (Array.isArray(v)) {
+    if (v.length === 0) return '[]';
+    if (isFlat(v)) return JSON.stringify(v);
+    const inner = indent + '  ';
+    return '[\n' + v.map(x => inner + pretty(x, inner)).join(',\n') + '\n' + indent + ']';
+  }
+  const entries = Object.entries(v as Record<string, unknown>);
+  if (entries.length === 0) return '{}';
+  const inner = indent + '  ';
+  return '{\n' + entries.map(([k, x]) => inner + JSON.stringify(k) + ': ' + pretty(x, inner)).join(',\n') + '\n' + indent + '}';
+}
+
+/**
+ * The deterministic JSON of a run result: fixed top-level key order, numbers at full precision (shortest
+ * round-trip form), NaN and ±Infinity as null, typed arrays as arrays, no timestamps.
+ */
+export function serializeReport(result: RunResult, opts: SerializeOptions = {}): string {
+  const value = ordered(normalise(result) as Record<string, unknown>);
+  return opts.pretty ? pretty(value, '') + '\n' : JSON.stringify(value);
+}
+
+/** The report as written to a results file: per-point arrays left out above MAX_POINTS_IN_FILE rows. */
+export function reportForFile(report: FitReport): FitReport {
+  if (report.data.used <= MAX_POINTS_IN_FILE) return report;
+  return {
+    ...report,
+    models: report.models.map(m => {
+      if (!m.points) return m;
+      const { points: _omit, ...rest } = m;
+      return { ...rest, pointsOmitted: true };
+    }),
+  };
+}
+
+// ------------------------------------------------------------------ results file
+
+/** Raised when a results file may not or cannot be written; the message is for the user. */
+export class OutputError extends Error {
+  constructor(message: string) {
+    super(message);
+    this.name = 'OutputError';
+  }
+}
+
+/** The absolute results-file and data-file paths a spec names (read leniently from its text; null when absent). */
+export async function specFiles(specPath: string, specText?: string): Promise<{ output: string | null; data: string | null }> {
+  let text = specText;
+  if (text === undefined) {
+    try {
+      text = await fsp.readFile(specPath, 'utf8');
+    } catch (e) {
+      throw new OutputError(`cannot read the spec ${specPath} to find its "output": ${(e as Error).message}`);
+    }
+  }
+  const raw = parseJsonc(text, [], { allowTrailingComma: true }) as { output?: unknown; data?: { file?: unknown } } | undefined;
+  const dir = path.dirname(specPath);
+  const output = raw && typeof raw.output === 'string' ? path.resolve(dir, raw.output) : null;
+  const data = raw && raw.data && typeof raw.data.file === 'string' ? path.resolve(dir, raw.data.file) : null;
+  return { output, data };
+}
+
+/**
+ * Write the report to the spec's `output` (read from the spec on disk, or opts.specText), atomically: a temporary
+ * file in the same folder, then rename. Refuses a path outside opts.workspaceRoot (default: the current
+ * directory) or onto an input file.
+ * Returns the path written, or null when the spec has no `output`. Leaves an identical file untouched.
+ */
+export async function writeResults(
+  report: FitReport,
+  specPath: string,
+  opts: { workspaceRoot?: string; specText?: string } = {},
+): Promise<string | null> {
+  const { output, data } = await specFiles(specPath, opts.specText);
+  if (!output) return null;
+  const refusal = await outputRefusal(output, { spec: specPath, data: data ?? specPath }, opts.workspaceRoot ?? process.cwd());
+  if (refusal) throw new OutputError(refusal);
+  const text = serializeReport(reportForFile(report), { pretty: true });
+  try {
+    if ((await fsp.readFile(output, 'utf8')) === text) return output;
+  } catch {
+    /* not there yet */
+  }
+  const dir = path.dirname(output);
+  const tmp = path.join(dir, `.${path.basename(output)}.${process.pid}.${randomBytes(4).toString('hex')}.tmp`);
+  try {
+    await fsp.mkdir(dir, { recursive: true });
+    await fsp.writeFile(tmp, text, 'utf8');
+    await fsp.rename(tmp, output);
+  } catch (e) {
+    await fsp.unlink(tmp).catch(() => undefined);
+    throw new OutputError(`cannot write the results file ${output}: ${(e as Error).message} — check that its folder is writable`);
+  }
+  return output;
+}

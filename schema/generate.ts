@@ -1,0 +1,459 @@
+// Generates schema/fitspec.schema.json and schema/fitreport.schema.json (JSON Schema draft-07) from the defaults
+// constant, the built-in catalogue and the descriptions below. Run: npx tsx schema/generate.ts
+// test/unit/schema.test.ts fails when the committed files differ from what this produces.
+import * as fs from 'fs';
+import * as path from 'path';
+import { BUILTINS } from '../src/engine/models';
+import { DEFAULTS, THRESHOLD_KEYS } from '../src/engine/spec/defaults';
+import { DEFAULT_THRESHOLDS } from '../src/engine/stats/thresholds';
+
+type Schema = Record<string, unknown>;
+
+const THRESHOLD_TEXT: Record<(typeof THRESHOLD_KEYS)[number], string> = {
+  paramCorrelation: '|r| between two parameter estimates above which they are reported as correlated.',
+  relativeSe: 'Relative standard error (se/|value|) above which a parameter is reported as poorly determined.',
+  cvRatio: 'Cross-validated RMSE divided by in-sample RMSE above which a model is flagged as overfitting.',
+  minDof: 'Fewer residual degrees of freedom than this is flagged as overfitting.',
+  paramsPerPoint: 'More parameters than n times this is flagged as overfitting.',
+  runsP: 'Runs-test p-value below which the residuals are reported as systematic (a pattern the model misses).',
+  normalityP: 'Normality-test p-value below which the residuals are reported as strongly non-normal.',
+  cooksFactor: "Cook's distance above this multiple of 1/n marks an influential point (4 gives the usual 4/n).",
+  linearHint: '|r| of y with x at or above which a straight line is suggested.',
+  fTestAlpha: 'Significance level of the extra-sum-of-squares F-test between nested models.',
+};
+
+const str = (description: string, extra: Schema = {}): Schema => ({ type: 'string', description, ...extra });
+const num = (description: string, extra: Schema = {}): Schema => ({ type: 'number', description, ...extra });
+const int = (description: string, extra: Schema = {}): Schema => ({ type: 'integer', description, ...extra });
+const nnum = (description: string): Schema => ({ type: ['number', 'null'], description });
+const bool = (description: string): Schema => ({ type: 'boolean', description });
+const obj = (description: string, properties: Record<string, Schema>, required: string[] = [], extra: Schema = {}): Schema => ({
+  type: 'object',
+  description,
+  properties,
+  ...(required.length ? { required } : {}),
+  additionalProperties: false,
+  ...extra,
+});
+const arr = (description: string, items: Schema, extra: Schema = {}): Schema => ({ type: 'array', description, items, ...extra });
+
+export function fitspecSchema(): Schema {
+  const ids = Object.keys(BUILTINS);
+  const param = obj(
+    'Settings of one parameter. Without "start" the engine finds a starting value itself (self-starting estimates for built-ins, a multi-start search for formulas).',
+    {
+      start: num('Starting value of the iteration (and the held value when "fixed" is true).'),
+      min: num('Lower bound: the estimate is kept at or above this value.'),
+      max: num('Upper bound: the estimate is kept at or below this value.'),
+      fixed: bool('true holds the parameter at "start" instead of fitting it (e.g. c0 = 0 for a line through the origin).'),
+    },
+  );
+  const solver = obj('Solver settings of this model.', {
+    maxIterations: int('Maximum Levenberg–Marquardt iterations of one start.', { minimum: 1, default: DEFAULTS.solver.maxIterations }),
+    multiStart: int('Number of starting points of the multi-start search, used when a formula has parameters without "start".', {
+      minimum: 1,
+      default: DEFAULTS.solver.multiStart,
+    }),
+    seconds: num('Time budget of one model fit, in seconds; the fit stops with termination "time-limit" when it is used up.', {
+      exclusiveMinimum: 0,
+      default: DEFAULTS.solver.seconds,
+    }),
+  });
+  const model: Schema = {
+    type: 'object',
+    description: 'One candidate model. Give exactly one of "builtin", "polynomial" or "formula".',
+    properties: {
+      name: str('Name of the model, unique within the spec; "expect", the report and the comparison refer to it.', { minLength: 1 }),
+      builtin: {
+        type: 'string',
+        description: 'Id of a model from the built-in catalogue (formula written in the variable x).',
+        enum: ids,
+        enumDescriptions: ids.map((id) => `${BUILTINS[id].formula} — parameters ${BUILTINS[id].params.join(', ')}`),
+      },
+      polynomial: int('Degree n of a polynomial c0 + c1*x + … + cn*x^n in the single x variable (coefficients c0 … cn, raw basis).', { minimum: 0 }),
+      formula: str(
+        'A formula in the variables bound by data.x, e.g. "K / (1 + exp(-r*(x - t0)))". Every other name (except the functions and the constants pi and e) is a parameter. Column names with spaces go in backticks.',
+        { minLength: 1 },
+      ),
+      params: {
+        type: 'object',
+        description:
+          'Per parameter: start, min, max, fixed. For a formula, when params is given it must declare every parameter (an undeclared one is an error — it catches typos); left out, all are fitted without starts.',
+        additionalProperties: param,
+      },
+      solver,
+    },
+    required: ['name'],
+    additionalProperties: false,
+    oneOf: [{ required: ['builtin'] }, { required: ['polynomial'] }, { required: ['formula'] }],
+    defaultSnippets: [
+      { label: 'built-in model', body: { name: '${1:logistic}', builtin: '${2:logistic3}' } },
+      { label: 'polynomial', body: { name: '${1:quadratic}', polynomial: 2 } },
+      { label: 'formula', body: { name: '${1:mine}', formula: '${2:A*exp(-k*x)}', params: { A: { start: 1 }, k: { start: 0.1 } } } },
+    ],
+  };
+  const exclude = obj('A data row left out on purpose, with the reason; reviewable in the diff while the data file stays untouched.', {
+    row: int('1-based data row (the first row after the header is 1).', { minimum: 1 }),
+    reason: str('Why the row is left out, e.g. "bubble in cuvette".', { minLength: 1 }),
+  }, ['row', 'reason']);
+  const data = obj(
+    'The data to fit: a CSV file, the x variable(s), y, and optional weights, filter and exclusions.',
+    {
+      file: str('CSV file, relative to this spec file. The first row names the columns.', { minLength: 1 }),
+      x: {
+        description:
+          'A string: a column name or an expression over columns, bound to the variable x. An object: variable name -> column or expression, e.g. { "t": "hours", "T": "temp_c" }.',
+        oneOf: [
+          { type: 'string', minLength: 1, description: 'Column name or expression bound to the variable x.' },
+          {
+            type: 'object',
+            description: 'Variable name -> column or expression.',
+            minProperties: 1,
+            additionalProperties: { type: 'string', minLength: 1, description: 'Column name or expression over columns.' },
+          },
+        ],
+      },
+      y: str('Column name or expression over columns, e.g. "od600" or "log(od600)".', { minLength: 1 }),
+      sigma: str('Column or expression of the standard deviations of y; the weights are 1/sigma². Not together with "weight".', { minLength: 1 }),
+      weight: str('Expression of weights over columns, x and y, e.g. "1/y^2". Not together with "sigma".', { minLength: 1 }),
+      sigmaMode: {
+        type: 'string',
+        description:
+          '"relative": the covariance is scaled by the residual variance (sigma gives relative weights). "absolute": sigma are known measurement errors (covariance unscaled, χ² goodness of fit reported).',
+        enum: ['relative', 'absolute'],
+        enumDescriptions: ['sigma are relative weights; covariance scaled by the residual variance', 'sigma are known errors; covariance unscaled, χ² reported'],
+        default: DEFAULTS.data.sigmaMode,
+      },
+      where: str('Row filter in the formula language plus < <= > >= == != and the words and, or, not, e.g. "hours <= 48 and reactor == 2".', { minLength: 1 }),
+      exclude: arr('Rows left out on purpose, each { "row": N, "reason": "…" }.', exclude),
+      delimiter: {
+        type: 'string',
+        description: 'Field delimiter of the CSV file; "auto" detects ",", ";" or tab from the header line.',
+        enum: ['auto', ',', ';', '\t'],
+        enumDescriptions: ['detect from the header line', 'comma', 'semicolon', 'tab'],
+        default: DEFAULTS.data.delimiter,
+      },
+      decimal: {
+        type: 'string',
+        description: 'Decimal separator of the numbers: "." or "," (then the delimiter cannot be ",").',
+        enum: ['.', ','],
+        enumDescriptions: ['decimal point: 1.5', 'decimal comma: 1,5'],
+        default: DEFAULTS.data.decimal,
+      },
+      badRows: {
+        type: 'string',
+        description: 'What a cell that is not a number does: "drop" leaves the row out and reports it; "fail" stops the run.',
+        enum: ['drop', 'fail'],
+        enumDescriptions: ['leave the row out and report it', 'stop with an error'],
+        default: DEFAULTS.data.badRows,
+      },
+    },
+    ['file', 'x', 'y'],
+  );
+  const expectEntry: Schema = {
+    type: 'object',
+    description: 'Expected value of a parameter with an absolute ("tol") or relative ("rel") tolerance; `curvewright check` fails when it is not met.',
+    properties: {
+      value: num('Expected value of the parameter.'),
+      tol: num('Absolute tolerance: ok when |actual − value| <= tol.', { minimum: 0 }),
+      rel: num('Relative tolerance: ok when |actual − value| <= rel·|value|.', { minimum: 0 }),
+    },
+    required: ['value'],
+    additionalProperties: false,
+    oneOf: [{ required: ['tol'] }, { required: ['rel'] }],
+  };
+  const thresholds: Schema = obj(
+    'Overrides of the problem-detection defaults, by name.',
+    Object.fromEntries(THRESHOLD_KEYS.map((k) => [k, num(THRESHOLD_TEXT[k], { minimum: 0, default: DEFAULT_THRESHOLDS[k] })])),
+  );
+  return {
+    $schema: 'http://json-schema.org/draft-07/schema#',
+    title: 'Curvewright fit spec',
+    description: 'A fit definition: data, candidate models, and what to report and check. JSON with comments and trailing commas.',
+    type: 'object',
+    properties: {
+      $schema: str('Path or address of this schema (optional; editors use it for completion and hover help).'),
+      title: str('Free-text title shown in the report.'),
+      data,
+      models: arr('Candidate models, compared on the same data.', model, { minItems: 1 }),
+      confidence: num('Confidence level of every interval (parameters, bands, predictions, inverse).', {
+        exclusiveMinimum: 0,
+        exclusiveMaximum: 1,
+        default: DEFAULTS.confidence,
+      }),
+      predict: arr('x values to predict y at: numbers for a single x variable, objects { "variable": value } for several.', {
+        description: 'An x value, or an object with a value for every variable.',
+        oneOf: [
+          { type: 'number', description: 'x value (single variable).' },
+          { type: 'object', description: 'A value for every variable bound in data.x.', additionalProperties: { type: 'number', description: 'Value of this variable.' } },
+        ],
+      }),
+      solveFor: arr('y values to read x off the curve at (inverse prediction, single x variable).', num('A y value.')),
+      output: str(
+        'Results file (FitReport JSON), relative to this spec file. Must stay inside the workspace and may not be the data or spec file.',
+        { minLength: 1 },
+      ),
+      expect: {
+        type: 'object',
+        description: 'Expected parameter values: model name -> parameter -> { "value", "tol" } or { "value", "rel" }.',
+        additionalProperties: {
+          type: 'object',
+          description: 'Parameter name -> expected value with tolerance.',
+          additionalProperties: expectEntry,
+        },
+      },
+      thresholds,
+    },
+    required: ['data', 'models'],
+    additionalProperties: false,
+  };
+}
+
+// ---------------------------------------------------------------- FitReport / ErrorReport
+
+const numOrNull2 = (description: string): Schema => ({
+  description,
+  oneOf: [{ type: 'null' }, { type: 'array', items: { type: ['number', 'null'] }, minItems: 2, maxItems: 2 }],
+});
+const interval = (description: string): Schema => ({ type: 'array', description, items: { type: 'number' }, minItems: 2, maxItems: 2 });
+const numbers = (description: string): Schema => arr(description, { type: 'number' });
+
+export function fitreportSchema(): Schema {
+  const jsonPath = arr('JSON path into the spec: keys and array indices.', { type: ['string', 'integer'] });
+  const location = obj('Where in a data file or the spec text.', {
+    file: str('File the location is in.'),
+    line: int('1-based line in the file.', { minimum: 1 }),
+    column: { type: ['integer', 'string'], description: '1-based column in the spec text, or a CSV column name.' },
+    row: int('1-based data row (the first row after the header is 1).', { minimum: 1 }),
+  }, ['file']);
+  const problem = obj('A problem found in the spec, the data or a fit.', {
+    code: str('Stable code, documented in docs/problems.md.'),
+    severity: { type: 'string', enum: ['error', 'warning', 'info'], description: 'How serious the problem is.' },
+    message: str('For the user: what happened, why it matters, what to try.'),
+    path: { $ref: '#/definitions/jsonPath' },
+    location: { $ref: '#/definitions/location' },
+    rows: arr('Data rows the problem concerns.', { type: 'integer' }),
+  }, ['code', 'severity', 'message', 'path']);
+  const termination = {
+    type: 'string',
+    description: 'Why the solver stopped.',
+    enum: ['relative-reduction', 'step-size', 'gradient', 'exact', 'iteration-limit', 'singular', 'non-finite', 'cancelled', 'time-limit'],
+  };
+  const paramReport = obj('Estimate of one parameter.', {
+    value: num('Estimate.'),
+    se: nnum('Standard error (null when undefined).'),
+    t: nnum('t statistic value/se.'),
+    p: nnum('Two-sided p-value of t.'),
+    ci: numOrNull2('Wald interval at the spec confidence.'),
+    profileCi: numOrNull2('Profile-likelihood interval; a bound that does not exist is null.'),
+    fixed: bool('Held at its start value.'),
+    atBound: { type: ['string', 'null'], enum: ['min', 'max', null], description: 'Which bound the estimate sits on, or null.' },
+  }, ['value', 'se', 't', 'p', 'ci', 'profileCi', 'fixed', 'atBound']);
+  const stats = obj('Goodness-of-fit statistics.', {
+    n: int('Points fitted.'),
+    dof: int('Residual degrees of freedom.'),
+    sse: num('(Weighted) sum of squared residuals.'),
+    sigma: nnum('Residual standard error sqrt(SSE/dof).'),
+    rmse: num('sqrt(SSE/n).'),
+    r2: nnum('Coefficient of determination.'),
+    adjR2: nnum('Adjusted R².'),
+    r2Uncentred: bool('true when r2 is uncentred (linear model without a constant term).'),
+    chi2: nnum('χ² (absolute sigma mode).'),
+    reducedChi2: nnum('χ²/dof (absolute sigma mode).'),
+    chi2P: nnum('p-value of χ² (absolute sigma mode).'),
+    logLik: nnum('Gaussian log-likelihood with σ counted as a parameter.'),
+    aic: nnum('Akaike information criterion.'),
+    aicc: nnum('AIC with small-sample correction.'),
+    bic: nnum('Bayesian information criterion.'),
+    cvRmse: nnum('Cross-validated RMSE.'),
+    cvFolds: { type: ['integer', 'null'], description: 'Folds of the cross-validation.' },
+  }, ['n', 'dof', 'sse', 'sigma', 'rmse', 'r2', 'adjR2', 'chi2', 'reducedChi2', 'logLik', 'aic', 'aicc', 'bic', 'cvRmse', 'cvFolds']);
+  const residualTests = {
+    description: 'Tests on the residuals, or null.',
+    oneOf: [
+      { type: 'null' },
+      obj('Residual tests.', {
+        runs: {
+          description: 'Wald–Wolfowitz runs test of residual signs.',
+          oneOf: [{ type: 'null' }, obj('Runs test.', { runs: int('Observed runs.'), expected: num('Expected runs.'), z: num('z statistic.'), p: num('p-value.') }, ['runs', 'expected', 'z', 'p'])],
+        },
+        normality: {
+          description: 'Normality test of the residuals.',
+          oneOf: [
+            { type: 'null' },
+            obj('Normality test.', {
+              test: { type: 'string', enum: ['shapiro-wilk', 'dagostino-pearson'], description: 'Which test.' },
+              statistic: num('Test statistic.'),
+              p: num('p-value.'),
+            }, ['test', 'statistic', 'p']),
+          ],
+        },
+        durbinWatson: nnum('Durbin–Watson statistic of the residuals in row order.'),
+      }, ['runs', 'normality', 'durbinWatson']),
+    ],
+  };
+  const points = obj('Per-point results.', {
+    row: arr('1-based data row of each point.', { type: 'integer' }),
+    x: { type: 'object', description: 'One array per x variable.', additionalProperties: numbers('Values of this variable.') },
+    y: numbers('Observed y.'),
+    fitted: numbers('Fitted values.'),
+    residual: numbers('y − fitted.'),
+    standardized: numbers('Standardized residuals.'),
+    leverage: numbers('Hat values.'),
+    cooks: numbers("Cook's distances."),
+    weight: numbers('Weights used (omitted when unweighted).'),
+  }, ['row', 'x', 'y', 'fitted', 'residual', 'standardized', 'leverage', 'cooks']);
+  const band = {
+    description: 'Fitted curve with confidence and prediction bands (single-variable models), or null.',
+    oneOf: [
+      { type: 'null' },
+      obj('Bands.', {
+        variable: str('The x variable the band runs along.'),
+        x: numbers('Grid of x.'),
+        fit: numbers('Fitted curve.'),
+        ciLow: numbers('Lower confidence band.'),
+        ciHigh: numbers('Upper confidence band.'),
+        piLow: numbers('Lower prediction band.'),
+        piHigh: numbers('Upper prediction band.'),
+      }, ['x', 'fit', 'ciLow', 'ciHigh', 'piLow', 'piHigh']),
+    ],
+  };
+  const nullableInterval = (d: string): Schema => ({ description: d, oneOf: [{ type: 'null' }, interval(d)] });
+  const prediction = obj('Prediction at one x.', {
+    x: { description: 'The x value (a number, or an object for several variables).', oneOf: [{ type: 'number' }, { type: 'object', additionalProperties: { type: 'number' } }] },
+    y: nnum('Predicted y.'),
+    ci: nullableInterval('Confidence interval of the mean.'),
+    pi: nullableInterval('Prediction interval of a new observation.'),
+    extrapolated: bool('x lies outside the fitted range.'),
+  }, ['x', 'y', 'ci', 'pi', 'extrapolated']);
+  const inverse = obj('x values read off the curve at one y.', {
+    y: num('The y value.'),
+    roots: arr('Solutions x, each with an interval.', obj('One root.', { x: num('Root.'), interval: numOrNull2('Interval of the root.') }, ['x', 'interval'])),
+    extrapolated: bool('y lies outside the fitted range.'),
+  }, ['y', 'roots', 'extrapolated']);
+  const matrix = (d: string): Schema => ({ description: d, oneOf: [{ type: 'null' }, arr(d, arr('A row.', { type: ['number', 'null'] }))] });
+  const modelReport = obj('Results of one model.', {
+    name: str('Model name from the spec.'),
+    kind: { type: 'string', enum: ['builtin', 'polynomial', 'formula'], description: 'How the model was defined.' },
+    formula: str('The formula as fitted.'),
+    linear: bool('Linear in its parameters (solved directly).'),
+    status: { type: 'string', enum: ['converged', 'failed'], description: 'Whether the fit converged.' },
+    termination,
+    iterations: int('Solver iterations.'),
+    start: obj('Starting values used and where they came from.', {
+      values: { type: 'object', description: 'Parameter -> start value.', additionalProperties: { type: 'number' } },
+      source: { type: 'string', enum: ['spec', 'self-start', 'multi-start', 'linear'], description: 'Where the starts came from.' },
+    }, ['values', 'source']),
+    paramOrder: arr('Parameter names in report order.', { type: 'string' }),
+    params: { type: 'object', description: 'Parameter -> estimate.', additionalProperties: paramReport },
+    covariance: matrix('Covariance matrix in paramOrder; null where undefined.'),
+    correlation: matrix('Correlation matrix in paramOrder.'),
+    stats,
+    residualTests,
+    points,
+    pointsOmitted: bool('Points left out of the results file (more than 10,000 rows).'),
+    band,
+    predictions: arr('Predictions at spec.predict.', prediction),
+    inverse: arr('Inverse predictions at spec.solveFor.', inverse),
+    problems: arr('Problems of this model.', { $ref: '#/definitions/problem' }),
+  }, ['name', 'kind', 'formula', 'linear', 'status', 'termination', 'iterations', 'paramOrder', 'params', 'covariance', 'correlation', 'stats', 'residualTests', 'band', 'predictions', 'inverse', 'problems']);
+  const comparison = {
+    description: 'Model comparison, or null with a single model.',
+    oneOf: [
+      { type: 'null' },
+      obj('Comparison.', {
+        ranking: arr('Models ranked by AICc.', obj('One model.', {
+          name: str('Model name.'),
+          aicc: nnum('AICc.'),
+          deltaAicc: nnum('AICc − best AICc.'),
+          weight: nnum('Akaike weight.'),
+          cvRmse: nnum('Cross-validated RMSE.'),
+        }, ['name', 'aicc', 'deltaAicc', 'weight', 'cvRmse'])),
+        fTests: arr('Extra-sum-of-squares F-tests of nested pairs.', obj('One test.', {
+          simpler: str('Simpler model.'),
+          richer: str('Richer model.'),
+          F: num('F statistic.'),
+          df1: num('Numerator degrees of freedom.'),
+          df2: num('Denominator degrees of freedom.'),
+          p: num('p-value.'),
+        }, ['simpler', 'richer', 'F', 'df1', 'df2', 'p'])),
+        best: { type: ['string', 'null'], description: 'Best model.' },
+        reason: str('Why, in words.'),
+      }, ['ranking', 'fTests', 'best', 'reason']),
+    ],
+  };
+  const dropped = obj('A row dropped while reading or preparing the data.', {
+    row: int('1-based data row.'),
+    line: int('1-based file line.'),
+    column: str('Column or expression that was bad.'),
+    reason: str('Why.'),
+  }, ['row', 'line', 'column', 'reason']);
+  const range2 = interval('[min, max].');
+  const dataReport = obj('What data were used.', {
+    file: str('Data file as written in the spec.'),
+    rows: int('Data rows in the file.'),
+    used: int('Rows fitted.'),
+    dropped: arr('Rows dropped for bad values.', dropped),
+    excluded: arr('Rows left out by data.exclude.', obj('An excluded row.', { row: int('Data row.'), reason: str('Reason.') }, ['row', 'reason'])),
+    filtered: int('Rows left out by data.where.'),
+    range: obj('Ranges of x and y.', {
+      x: { description: 'Range of x, or per variable.', oneOf: [range2, { type: 'object', additionalProperties: range2 }] },
+      y: range2,
+    }, ['x', 'y']),
+    correlation: { type: 'object', description: 'Pearson r of y with each x variable.', additionalProperties: { type: ['number', 'null'] } },
+  }, ['file', 'rows', 'used', 'dropped', 'excluded', 'range', 'correlation']);
+  const fitReport = obj('Results of a fit spec.', {
+    version: { const: 1, description: 'Report format version.' },
+    spec: str('Spec file name as given.'),
+    title: str('Spec title.'),
+    meta: obj('Provenance.', {
+      engine: str('Engine name and version.'),
+      specHash: str('sha256 of the spec text.'),
+      dataHash: str('sha256 of the data file.'),
+      seed: int('Seed of the multi-start search.'),
+    }, ['engine', 'specHash', 'dataHash', 'seed']),
+    data: dataReport,
+    models: arr('One report per model, in spec order.', modelReport),
+    comparison,
+    best: { type: ['string', 'null'], description: 'Best model, or null.' },
+    problems: arr('Spec and data problems.', { $ref: '#/definitions/problem' }),
+    expect: arr('Outcome of each spec.expect entry.', obj('One expectation.', {
+      model: str('Model name.'),
+      param: str('Parameter name.'),
+      value: num('Expected value.'),
+      tol: num('Absolute tolerance.'),
+      rel: num('Relative tolerance.'),
+      actual: nnum('Estimate.'),
+      ok: bool('Met.'),
+    }, ['model', 'param', 'value', 'actual', 'ok'])),
+    confidence: num('Confidence level of every interval.'),
+  }, ['version', 'spec', 'meta', 'data', 'models', 'comparison', 'best', 'problems', 'expect', 'confidence']);
+  const errorReport = obj('A spec that could not be run.', {
+    version: { const: 1, description: 'Report format version.' },
+    spec: str('Spec file name as given.'),
+    error: obj('What went wrong.', {
+      message: str('For the user: what, where, and the fix.'),
+      path: { $ref: '#/definitions/jsonPath' },
+      location: { $ref: '#/definitions/location' },
+      problems: arr('All problems found.', { $ref: '#/definitions/problem' }),
+    }, ['message']),
+  }, ['version', 'spec', 'error']);
+  return {
+    $schema: 'http://json-schema.org/draft-07/schema#',
+    title: 'Curvewright fit report',
+    description: 'What `curvewright fit --json` prints and a spec\'s "output" file holds: a FitReport, or an ErrorReport when the spec could not be run.',
+    definitions: { jsonPath, location, problem, fitReport, errorReport },
+    oneOf: [{ $ref: '#/definitions/fitReport' }, { $ref: '#/definitions/errorReport' }],
+  };
+}
+
+export function schemaText(schema: Schema): string {
+  return JSON.stringify(schema, null, 2) + '\n';
+}
+
+if (require.main === module) {
+  const dir = __dirname;
+  fs.writeFileSync(path.join(dir, 'fitspec.schema.json'), schemaText(fitspecSchema()));
+  fs.writeFileSync(path.join(dir, 'fitreport.schema.json'), schemaText(fitreportSchema()));
+  process.stdout.write('wrote schema/fitspec.schema.json and schema/fitreport.schema.json\n');
+}

@@ -1,0 +1,349 @@
+// Householder QR with column pivoting after MINPACK qrfac (Moré, Garbow & Hillstrom 1980) and Golub & Van Loan, Matrix Computations, 4th ed., §5.2 and §5.4.2; one-sided Jacobi SVD after Hestenes (1958) / Demmel & Veselić (1992); compensated dot products after Ogita, Rump & Oishi (2005).
+//
+// Layout: every matrix is a column-major Float64Array, A[j*m + i] = A(i, j) for an m×n matrix.
+
+export const EPS = 2.220446049250313e-16;
+const TINY = 2.2250738585072014e-308;
+const GIANT = 1.3407807929942596e154; // sqrt of the largest double
+
+/** Euclidean norm of x[off .. off+len) with stride 1, without overflow or destructive underflow. */
+export function norm2(x: ArrayLike<number>, off = 0, len = x.length - off): number {
+  let s = 0;
+  for (let i = off; i < off + len; i++) s += x[i] * x[i];
+  if (s > TINY / EPS && s < GIANT && Number.isFinite(s)) return Math.sqrt(s);
+  // rescale: pass 1 finds the largest magnitude, pass 2 sums scaled squares
+  let big = 0;
+  for (let i = off; i < off + len; i++) {
+    const a = Math.abs(x[i]);
+    if (!(a <= big)) big = a; // NaN propagates
+  }
+  if (big === 0 || !Number.isFinite(big)) return big;
+  s = 0;
+  for (let i = off; i < off + len; i++) {
+    const t = x[i] / big;
+    s += t * t;
+  }
+  return big * Math.sqrt(s);
+}
+
+/** true when every entry is a finite number */
+export function allFinite(x: ArrayLike<number>, len = x.length): boolean {
+  for (let i = 0; i < len; i++) if (!Number.isFinite(x[i])) return false;
+  return true;
+}
+
+export interface QRFactors {
+  /** m×n, column-major: strict upper triangle of R above the diagonal, Householder vectors on and below it */
+  a: Float64Array;
+  m: number;
+  n: number;
+  /** diagonal of R */
+  rdiag: Float64Array;
+  /** 2-norms of the columns of the input matrix (in input column order) */
+  acnorm: Float64Array;
+  /** column k of the factored matrix is input column perm[k] */
+  perm: Int32Array;
+}
+
+/**
+ * Householder QR, A P = Q R, in place on `a` (m×n, column-major, m ≥ 1). With `pivot`, column k is the remaining
+ * column of largest norm (Businger & Golub 1965), which makes R rank-revealing in practice.
+ */
+export function qrFactor(a: Float64Array, m: number, n: number, pivot: boolean): QRFactors {
+  const rdiag = new Float64Array(n);
+  const acnorm = new Float64Array(n);
+  const wa = new Float64Array(n);
+  const perm = new Int32Array(n);
+  for (let j = 0; j < n; j++) {
+    acnorm[j] = norm2(a, j * m, m);
+    rdiag[j] = acnorm[j];
+    wa[j] = rdiag[j];
+    perm[j] = j;
+  }
+  const kmin = Math.min(m, n);
+  for (let j = 0; j < kmin; j++) {
+    if (pivot) {
+      let kmax = j;
+      for (let k = j; k < n; k++) if (rdiag[k] > rdiag[kmax]) kmax = k;
+      if (kmax !== j) {
+        for (let i = 0; i < m; i++) {
+          const t = a[j * m + i];
+          a[j * m + i] = a[kmax * m + i];
+          a[kmax * m + i] = t;
+        }
+        rdiag[kmax] = rdiag[j];
+        wa[kmax] = wa[j];
+        const k = perm[j];
+        perm[j] = perm[kmax];
+        perm[kmax] = k;
+      }
+    }
+    // Householder reflection that zeroes column j below the diagonal
+    const cj = j * m;
+    let ajnorm = norm2(a, cj + j, m - j);
+    if (ajnorm !== 0) {
+      if (a[cj + j] < 0) ajnorm = -ajnorm;
+      for (let i = j; i < m; i++) a[cj + i] /= ajnorm;
+      a[cj + j] += 1;
+      const vjj = a[cj + j];
+      for (let k = j + 1; k < n; k++) {
+        const ck = k * m;
+        let sum = 0;
+        for (let i = j; i < m; i++) sum += a[cj + i] * a[ck + i];
+        const temp = sum / vjj;
+        for (let i = j; i < m; i++) a[ck + i] -= temp * a[cj + i];
+        if (pivot && rdiag[k] !== 0) {
+          const t = a[ck + j] / rdiag[k];
+          rdiag[k] *= Math.sqrt(Math.max(0, 1 - t * t));
+          const r = rdiag[k] / wa[k];
+          if (0.05 * r * r <= EPS) {
+            rdiag[k] = norm2(a, ck + j + 1, m - j - 1);
+            wa[k] = rdiag[k];
+          }
+        }
+      }
+    }
+    rdiag[j] = -ajnorm;
+  }
+  for (let j = kmin; j < n; j++) rdiag[j] = 0;
+  return { a, m, n, rdiag, acnorm, perm };
+}
+
+/** b ← Qᵀ b (b of length m) */
+export function applyQt(qr: QRFactors, b: Float64Array): void {
+  const { a, m, n } = qr;
+  const kmin = Math.min(m, n);
+  for (let j = 0; j < kmin; j++) {
+    const cj = j * m;
+    const vjj = a[cj + j];
+    if (vjj === 0) continue;
+    let sum = 0;
+    for (let i = j; i < m; i++) sum += a[cj + i] * b[i];
+    const temp = -sum / vjj;
+    for (let i = j; i < m; i++) b[i] += temp * a[cj + i];
+  }
+}
+
+/** b ← Q b (b of length m) */
+export function applyQ(qr: QRFactors, b: Float64Array): void {
+  const { a, m, n } = qr;
+  const kmin = Math.min(m, n);
+  for (let j = kmin - 1; j >= 0; j--) {
+    const cj = j * m;
+    const vjj = a[cj + j];
+    if (vjj === 0) continue;
+    let sum = 0;
+    for (let i = j; i < m; i++) sum += a[cj + i] * b[i];
+    const temp = -sum / vjj;
+    for (let i = j; i < m; i++) b[i] += temp * a[cj + i];
+  }
+}
+
+/** The n×n upper-triangular R of a factorisation (column-major, zeros below the diagonal; rows ≥ m are zero). */
+export function extractR(qr: QRFactors): Float64Array {
+  const { a, m, n, rdiag } = qr;
+  const r = new Float64Array(n * n);
+  for (let j = 0; j < n; j++) {
+    for (let i = 0; i < Math.min(j, m); i++) r[j * n + i] = a[j * m + i];
+    r[j * n + j] = rdiag[j];
+  }
+  return r;
+}
+
+/** Solve R x = b in place for upper-triangular R (k×k leading block of an ldr×? column-major array). */
+export function solveUpper(r: Float64Array, ldr: number, k: number, b: Float64Array): void {
+  for (let j = k - 1; j >= 0; j--) {
+    b[j] /= r[j * ldr + j];
+    const t = b[j];
+    for (let i = 0; i < j; i++) b[i] -= r[j * ldr + i] * t;
+  }
+}
+
+/** Solve Rᵀ x = b in place for upper-triangular R (k×k leading block). */
+export function solveUpperT(r: Float64Array, ldr: number, k: number, b: Float64Array): void {
+  for (let j = 0; j < k; j++) {
+    let s = b[j];
+    for (let i = 0; i < j; i++) s -= r[j * ldr + i] * b[i];
+    b[j] = s / r[j * ldr + j];
+  }
+}
+
+export interface SVD {
+  /** m×n column-major left singular vectors (columns of zero singular values are zero) */
+  u: Float64Array;
+  /** n singular values, descending */
+  s: Float64Array;
+  /** n×n column-major right singular vectors */
+  v: Float64Array;
+}
+
+/**
+ * One-sided Jacobi SVD of an m×n matrix (m ≥ n): orthogonalises the columns of A by plane rotations applied on the
+ * right, A V = U Σ. Accurate to high relative precision for small n; meant for n up to a few dozen.
+ */
+export function jacobiSVD(aIn: Float64Array, m: number, n: number): SVD {
+  const u = Float64Array.from(aIn.subarray(0, m * n));
+  const v = new Float64Array(n * n);
+  for (let j = 0; j < n; j++) v[j * n + j] = 1;
+  const tol = EPS * m;
+  for (let sweep = 0; sweep < 80; sweep++) {
+    let rotated = false;
+    for (let j = 0; j < n - 1; j++) {
+      for (let k = j + 1; k < n; k++) {
+        const cj = j * m;
+        const ck = k * m;
+        let alpha = 0;
+        let beta = 0;
+        let gamma = 0;
+        for (let i = 0; i < m; i++) {
+          const x = u[cj + i];
+          const y = u[ck + i];
+          alpha += x * x;
+          beta += y * y;
+          gamma += x * y;
+        }
+        if (gamma === 0 || Math.abs(gamma) <= tol * Math.sqrt(alpha * beta)) continue;
+        rotated = true;
+        const zeta = (beta - alpha) / (2 * gamma);
+        const t = (zeta >= 0 ? 1 : -1) / (Math.abs(zeta) + Math.sqrt(1 + zeta * zeta));
+        const c = 1 / Math.sqrt(1 + t * t);
+        const s = c * t;
+        for (let i = 0; i < m; i++) {
+          const x = u[cj + i];
+          const y = u[ck + i];
+          u[cj + i] = c * x - s * y;
+          u[ck + i] = s * x + c * y;
+        }
+        for (let i = 0; i < n; i++) {
+          const x = v[j * n + i];
+          const y = v[k * n + i];
+          v[j * n + i] = c * x - s * y;
+          v[k * n + i] = s * x + c * y;
+        }
+      }
+    }
+    if (!rotated) break;
+  }
+  const s = new Float64Array(n);
+  for (let j = 0; j < n; j++) s[j] = norm2(u, j * m, m);
+  // sort descending
+  const order = Array.from({ length: n }, (_, j) => j).sort((a, b) => s[b] - s[a]);
+  const u2 = new Float64Array(m * n);
+  const v2 = new Float64Array(n * n);
+  const s2 = new Float64Array(n);
+  for (let k = 0; k < n; k++) {
+    const j = order[k];
+    s2[k] = s[j];
+    for (let i = 0; i < m; i++) u2[k * m + i] = s[j] > 0 ? u[j * m + i] / s[j] : 0;
+    for (let i = 0; i < n; i++) v2[k * n + i] = v[j * n + i];
+  }
+  return { u: u2, s: s2, v: v2 };
+}
+
+/** Default numerical-rank tolerance relative to the largest singular value: max(m, n)·ε (common practice, as LAPACK's xGELSS guidance). */
+export function rankTolerance(m: number, n: number): number {
+  return Math.max(m, n) * EPS;
+}
+
+// ---------------------------------------------------------------- compensated arithmetic
+
+/** error-free transformation a + b = s + e (Knuth TwoSum) */
+export function twoSum(a: number, b: number, out: Float64Array): void {
+  const s = a + b;
+  const bb = s - a;
+  out[0] = s;
+  out[1] = a - (s - bb) + (b - bb);
+}
+
+const SPLIT = 134217729; // 2^27 + 1
+/** error-free transformation a·b = p + e (Dekker TwoProduct via Veltkamp splitting) */
+export function twoProduct(a: number, b: number, out: Float64Array): void {
+  const p = a * b;
+  let t = SPLIT * a;
+  const ah = t - (t - a);
+  const al = a - ah;
+  t = SPLIT * b;
+  const bh = t - (t - b);
+  const bl = b - bh;
+  out[0] = p;
+  out[1] = al * bl - (p - ah * bh - al * bh - ah * bl);
+}
+
+/**
+ * A double-double accumulator (Ogita, Rump & Oishi 2005, Sum2/Dot2): add(x) and addProduct(a, b) keep the
+ * rounding errors, value() returns the sum as if accumulated in twice the working precision.
+ */
+export class CompensatedSum {
+  private hi = 0;
+  private lo = 0;
+  private readonly t = new Float64Array(2);
+  reset(x = 0): this {
+    this.hi = x;
+    this.lo = 0;
+    return this;
+  }
+  add(x: number): void {
+    twoSum(this.hi, x, this.t);
+    this.hi = this.t[0];
+    this.lo += this.t[1];
+  }
+  addProduct(a: number, b: number): void {
+    twoProduct(a, b, this.t);
+    const e = this.t[1];
+    twoSum(this.hi, this.t[0], this.t);
+    this.hi = this.t[0];
+    this.lo += this.t[1] + e;
+  }
+  value(): number {
+    return this.hi + this.lo;
+  }
+}
+
+// ---------------------------------------------------------------- rank analysis of a Jacobian
+
+export interface RankAnalysis {
+  /** numerical rank */
+  rank: number;
+  /** indices (into the columns given) that lie in the numerical null space */
+  nullColumns: number[];
+  /** column scale factors used (2-norms; 1 where a column is zero) */
+  d: Float64Array;
+  /** SVD of R D⁻¹P (q×q) where A D⁻¹ P = Q R */
+  svd: SVD;
+  /** the QR factors of A D⁻¹ (pivoted) */
+  qr: QRFactors;
+  /** singular values kept: s_k > tol·s_max */
+  tol: number;
+}
+
+/**
+ * Numerical rank of an m×q matrix A (column-major; copied): columns scaled to unit 2-norm, pivoted Householder
+ * QR, then one-sided Jacobi SVD of the q×q R. A column is reported in the null space when its share of the
+ * right singular vectors of the dropped singular values exceeds 1e-4 (|component| > 0.01), common practice.
+ */
+export function analyzeRank(aIn: Float64Array, m: number, q: number, relTol = rankTolerance(m, q)): RankAnalysis {
+  const mm = Math.max(m, q);
+  const a = new Float64Array(mm * q);
+  const d = new Float64Array(q);
+  for (let j = 0; j < q; j++) {
+    const nj = norm2(aIn, j * m, m);
+    d[j] = nj > 0 && Number.isFinite(nj) ? nj : 1;
+    for (let i = 0; i < m; i++) a[j * mm + i] = aIn[j * m + i] / d[j];
+  }
+  const qr = qrFactor(a, mm, q, true);
+  const r = extractR(qr);
+  const svd = jacobiSVD(r, q, q);
+  const smax = svd.s[0] ?? 0;
+  let rank = 0;
+  for (let k = 0; k < q; k++) if (svd.s[k] > relTol * smax && svd.s[k] > 0) rank++;
+  const share = new Float64Array(q);
+  for (let k = rank; k < q; k++) {
+    for (let i = 0; i < q; i++) {
+      const vik = svd.v[k * q + i];
+      share[qr.perm[i]] += vik * vik;
+    }
+  }
+  const nullColumns: number[] = [];
+  for (let j = 0; j < q; j++) if (share[j] > 1e-4) nullColumns.push(j);
+  return { rank, nullColumns, d, svd, qr, tol: relTol };
+}

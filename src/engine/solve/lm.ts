@@ -1,0 +1,596 @@
+// Trust-region Levenberg–Marquardt after Moré (1978), "The Levenberg-Marquardt algorithm: implementation and theory", and MINPACK lmder/lmpar/qrsolv (Moré, Garbow & Hillstrom 1980); box bounds by an active-set trust-region step after the dogbox method of Voglis & Lagaris (2004).
+//
+// Method, in the words of the sources:
+// - residual r(θ) = √w (f(θ) − y), Jacobian A = ∂r/∂θ of the free parameters; QR with column pivoting of A;
+//   the LM parameter λ by Moré's safeguarded Newton iteration on ‖D p(λ)‖ = Δ (lmpar), the step by Givens
+//   elimination of √λ D against R (qrsolv); ratio ρ = actual / predicted reduction; Δ updated as in lmder.
+// - variable scaling D: MINPACK "mode 1" (D_j = running max of the Jacobian column norms) first; when that run ends
+//   badly (not converged, a step-size stop with a scaled gradient above 1e-8, or a rank-deficient Jacobian at the
+//   end) the fit is rerun from the start
+//   with unit scaling D = I and the lower SSE is kept (both choices fail on different NIST problems, see PEERS.md).
+// - a trial step whose f or J has NaN/±Inf is rejected explicitly and the region shrinks (IEEE comparisons with NaN
+//   would otherwise accept it).
+// - bounds: a parameter on a bound whose descent direction −g_j points outward is held (active set); the LM step is
+//   computed over the others and then shortened along its own direction to stay in the box, the blocking parameter
+//   landing exactly on its bound; ρ uses the predicted reduction of the shortened step. Never clamped after the step.
+// - at the end, up to three Gauss–Newton steps (pivoted QR, rank-truncated) polish the solution if they reduce SSE.
+import type { LsqProblem, SolveOptions, SolveResult } from './types';
+import type { Termination } from '../report';
+import { EPS, norm2, qrFactor, applyQt, rankTolerance } from './linalg';
+import { CONVERGED, Prepared, evaluate, prepare, solutionInfo, stopReason } from './problem';
+
+/** default cap on LM iterations (accepted steps plus Jacobian refreshes) per scaling strategy */
+export const DEFAULT_MAX_ITERATIONS = 2000;
+/** relative tolerances of the convergence tests (ftol, xtol, gtol of MINPACK), near machine precision */
+export const FTOL = 1e-15;
+export const XTOL = 1e-15;
+export const GTOL = 1e-15;
+/** initial trust-region radius factor (MINPACK `factor`) */
+const FACTOR = 100;
+/** a step-size stop with a scaled gradient above this is treated as a stall and retried with the other scaling */
+const RETRY_GNORM = 1e-8;
+const DWARF = 2.2250738585072014e-308;
+
+type Scaling = 'jacobian' | 'unit';
+
+interface RunResult {
+  x: Float64Array; // free parameters
+  fnorm: number;
+  termination: Termination;
+  iterations: number;
+  gnorm: number;
+  message: string;
+}
+
+/** trust-region Levenberg–Marquardt with bounds and fixed parameters (see file header) */
+export function solveNonlinear(problem: LsqProblem, opts: SolveOptions): SolveResult {
+  const P = prepare(problem, opts, DEFAULT_MAX_ITERATIONS);
+  return solvePrepared(P);
+}
+
+export function solvePrepared(P: Prepared): SolveResult {
+  const { n, q, free } = P;
+  const m = Math.max(n, q);
+  const x0 = new Float64Array(q);
+  for (let k = 0; k < q; k++) x0[k] = P.theta0[free[k]];
+
+  let best: RunResult;
+  if (q === 0) {
+    const r = new Float64Array(m);
+    const ok = evaluate(P, P.theta0, r, null, m);
+    best = { x: x0, fnorm: ok ? norm2(r, 0, n) : NaN, termination: ok ? 'gradient' : 'non-finite', iterations: 0, gnorm: 0,
+      message: ok ? 'every parameter is fixed: nothing to fit' : 'the model gives NaN or ±Infinity at the given parameter values' };
+  } else {
+    best = lmRun(P, x0, 'jacobian');
+    if (shouldRetry(P, best)) {
+      const second = lmRun(P, x0, 'unit');
+      if (second.termination === 'cancelled' || second.termination === 'time-limit') {
+        if (!(best.fnorm <= second.fnorm)) best = second;
+        else best = { ...best, termination: second.termination, message: second.message };
+      } else if (second.fnorm < best.fnorm || (!Number.isFinite(best.fnorm) && Number.isFinite(second.fnorm))) {
+        best = second;
+      }
+    }
+    if (CONVERGED.includes(best.termination)) polish(P, best);
+  }
+  return finish(P, best);
+}
+
+function shouldRetry(P: Prepared, run: RunResult): boolean {
+  if (run.termination === 'cancelled' || run.termination === 'time-limit' || run.termination === 'exact') return false;
+  if (!CONVERGED.includes(run.termination)) return true;
+  // a step-size stop away from a stationary point (scaled gradient not small) may be a stall of this scaling
+  if (run.termination === 'step-size' && !(run.gnorm <= RETRY_GNORM)) return true;
+  // converged, but at a point where the Jacobian has lost rank (a plateau such as exp(−b x) → 0)
+  const theta = fullTheta(P, run.x);
+  const m = Math.max(P.n, P.q);
+  const r = new Float64Array(m);
+  const A = new Float64Array(m * P.q);
+  if (!evaluate(P, theta, r, A, m)) return true;
+  return solutionInfo(P, theta, A, m).rank < P.q;
+}
+
+function fullTheta(P: Prepared, x: Float64Array): Float64Array {
+  const theta = Float64Array.from(P.theta0);
+  for (let k = 0; k < P.q; k++) theta[P.free[k]] = x[k];
+  return theta;
+}
+
+function finish(P: Prepared, run: RunResult): SolveResult {
+  const theta = fullTheta(P, run.x);
+  const m = Math.max(P.n, P.q);
+  const r = new Float64Array(m);
+  const A = new Float64Array(m * P.q);
+  const ok = evaluate(P, theta, r, A, m);
+  const f = Float64Array.from(P.f);
+  const J = Float64Array.from(P.J);
+  const info = ok ? solutionInfo(P, theta, A, m) : { rank: 0, unidentifiable: [], atBound: Array.from({ length: P.p }, (): 'min' | 'max' | null => null) };
+  let termination = run.termination;
+  let message = run.message;
+  if (ok && CONVERGED.includes(termination) && termination !== 'exact' && info.rank < P.q) {
+    termination = 'singular';
+    message = `the Jacobian has rank ${info.rank} < ${P.q} free parameters at the solution: some parameters are not identifiable from these data`;
+  }
+  let sse = 0;
+  for (let i = 0; i < P.n; i++) sse += r[i] * r[i];
+  return {
+    theta, termination, converged: CONVERGED.includes(termination), iterations: run.iterations, evaluations: P.evaluations,
+    sse: ok ? sse : NaN, f, J, rank: info.rank, unidentifiable: info.unidentifiable, atBound: info.atBound, message,
+  };
+}
+
+// ---------------------------------------------------------------- the LM iteration
+
+interface Sub {
+  /** free-parameter indices of the columns in the subproblem */
+  idx: number[];
+  k: number;
+  /** k×k R (column-major, ldr = k); strict lower triangle is workspace of qrsolv */
+  r: Float64Array;
+  ipvt: Int32Array;
+  qtf: Float64Array;
+  /** column norms of the sub-Jacobian */
+  acnorm: Float64Array;
+  diag: Float64Array;
+}
+
+function buildSub(A: Float64Array, m: number, fvec: Float64Array, idx: number[], diagAll: Float64Array): Sub {
+  const k = idx.length;
+  const a = new Float64Array(m * k);
+  for (let t = 0; t < k; t++) a.set(A.subarray(idx[t] * m, idx[t] * m + m), t * m);
+  const qr = qrFactor(a, m, k, true);
+  const wa = Float64Array.from(fvec);
+  applyQt(qr, wa);
+  const r = new Float64Array(k * k);
+  for (let j = 0; j < k; j++) {
+    for (let i = 0; i < j; i++) r[j * k + i] = a[j * m + i];
+    r[j * k + j] = qr.rdiag[j];
+  }
+  const diag = new Float64Array(k);
+  for (let t = 0; t < k; t++) diag[t] = diagAll[idx[t]];
+  return { idx, k, r, ipvt: qr.perm, qtf: wa.subarray(0, k).slice(), acnorm: qr.acnorm, diag };
+}
+
+function lmRun(P: Prepared, xStart: Float64Array, scaling: Scaling): RunResult {
+  const { n, q } = P;
+  const m = Math.max(n, q);
+  const lo = new Float64Array(q);
+  const hi = new Float64Array(q);
+  for (let k = 0; k < q; k++) {
+    lo[k] = P.lower[P.free[k]];
+    hi[k] = P.upper[P.free[k]];
+  }
+  let x = Float64Array.from(xStart);
+  let theta = fullTheta(P, x);
+  let fvec = new Float64Array(m);
+  let A = new Float64Array(m * q);
+  let fvec1 = new Float64Array(m);
+  let A1 = new Float64Array(m * q);
+  const done = (termination: Termination, message: string, iterations: number, fnorm: number, gnorm = NaN): RunResult => ({
+    x, fnorm, termination, iterations, gnorm, message,
+  });
+  if (!evaluate(P, theta, fvec, A, m)) {
+    return done('non-finite', 'the model or its derivatives give NaN or ±Infinity at the starting values: choose other starts or bounds', 0, NaN);
+  }
+  let fnorm = norm2(fvec, 0, n);
+  const ynorm = norm2(weightedY(P), 0, n);
+  const exactTol = EPS * ynorm;
+  const diagAll = new Float64Array(q);
+  const colnorm = new Float64Array(q);
+  const g = new Float64Array(q);
+  let delta = 0;
+  let xnorm = 0;
+  let par = 0;
+  let iter = 0;
+  let gnorm = NaN;
+  const trial = new Float64Array(q);
+  const wa3 = new Float64Array(q);
+
+  for (;;) {
+    if (fnorm <= exactTol) return done('exact', 'the model fits the data exactly (residuals at rounding level)', iter, fnorm, 0);
+    const stop = stopReason(P);
+    if (stop) return done(stop, stop === 'cancelled' ? 'cancelled by the caller' : 'the time budget ran out before convergence', iter, fnorm, gnorm);
+    if (iter >= P.maxIterations) {
+      return done('iteration-limit', `no convergence after ${iter} iterations: raise maxIterations or give better starting values`, iter, fnorm, gnorm);
+    }
+    // column norms and gradient g = Aᵀ r of ½‖r‖²
+    for (let j = 0; j < q; j++) {
+      colnorm[j] = norm2(A, j * m, m);
+      let s = 0;
+      for (let i = 0; i < m; i++) s += A[j * m + i] * fvec[i];
+      g[j] = s;
+    }
+    if (iter === 0) {
+      for (let j = 0; j < q; j++) diagAll[j] = scaling === 'unit' || colnorm[j] === 0 ? 1 : colnorm[j];
+      xnorm = scaledNorm(diagAll, x);
+      delta = xnorm === 0 ? FACTOR : FACTOR * xnorm;
+    }
+    // active set: on a bound with the descent direction pointing out of the box
+    const activeMask = new Uint8Array(q);
+    for (let j = 0; j < q; j++) if ((x[j] <= lo[j] && g[j] > 0) || (x[j] >= hi[j] && g[j] < 0)) activeMask[j] = 1;
+    let sub = buildSub(A, m, fvec, inactive(activeMask), diagAll);
+    // scaled gradient test (cosine of the angle between r and the columns of A), over the free directions
+    gnorm = scaledGradient(sub, fnorm);
+    if (sub.k === 0 || gnorm <= GTOL) {
+      return done('gradient', sub.k === 0 ? 'every free parameter is held at a bound by the gradient' : 'the gradient is zero to working precision', iter, fnorm, gnorm);
+    }
+    if (scaling === 'jacobian') {
+      for (let j = 0; j < q; j++) diagAll[j] = Math.max(diagAll[j], colnorm[j]);
+      for (let t = 0; t < sub.k; t++) sub.diag[t] = diagAll[sub.idx[t]];
+    }
+
+    // inner loop: find an acceptable step
+    for (;;) {
+      const stop2 = stopReason(P);
+      if (stop2) return done(stop2, stop2 === 'cancelled' ? 'cancelled by the caller' : 'the time budget ran out before convergence', iter, fnorm, gnorm);
+      let step!: Float64Array;
+      // a parameter on its bound whose LM step points outward joins the active set
+      for (let guard = 0; guard <= q; guard++) {
+        const res = lmpar(sub, delta, par);
+        par = res.par;
+        step = res.x;
+        let blocked = false;
+        for (let t = 0; t < sub.k; t++) {
+          const j = sub.idx[t];
+          const pj = -step[t];
+          if ((pj < 0 && x[j] <= lo[j]) || (pj > 0 && x[j] >= hi[j])) {
+            activeMask[j] = 1;
+            blocked = true;
+          }
+        }
+        if (!blocked) break;
+        sub = buildSub(A, m, fvec, inactive(activeMask), diagAll);
+        if (sub.k === 0) return done('gradient', 'every free parameter is held at a bound', iter, fnorm, gnorm);
+      }
+      // shorten the step to stay inside the box
+      let alpha = 1;
+      let hit = -1;
+      let hitValue = 0;
+      for (let t = 0; t < sub.k; t++) {
+        const j = sub.idx[t];
+        const pj = -step[t];
+        if (pj < 0 && Number.isFinite(lo[j])) {
+          const a = (lo[j] - x[j]) / pj;
+          if (a < alpha) { alpha = a; hit = j; hitValue = lo[j]; }
+        } else if (pj > 0 && Number.isFinite(hi[j])) {
+          const a = (hi[j] - x[j]) / pj;
+          if (a < alpha) { alpha = a; hit = j; hitValue = hi[j]; }
+        }
+      }
+      alpha = Math.max(0, alpha);
+      trial.set(x);
+      let pnormLM = 0;
+      for (let t = 0; t < sub.k; t++) {
+        const j = sub.idx[t];
+        trial[j] = x[j] - alpha * step[t];
+        // rounding guard only: the shortened step is inside the box up to one ulp
+        if (trial[j] < lo[j]) trial[j] = lo[j];
+        if (trial[j] > hi[j]) trial[j] = hi[j];
+        const d = sub.diag[t] * step[t];
+        pnormLM += d * d;
+      }
+      pnormLM = Math.sqrt(pnormLM);
+      if (hit >= 0) trial[hit] = hitValue;
+      const pnorm = alpha * pnormLM;
+      if (iter === 0) delta = Math.min(delta, pnorm);
+
+      const thetaT = fullTheta(P, trial);
+      const ok = evaluate(P, thetaT, fvec1, A1, m);
+      const fnorm1 = ok ? norm2(fvec1, 0, n) : Infinity;
+      if (!ok) {
+        // reject explicitly and shrink the region
+        delta = 0.25 * Math.min(delta, pnorm > 0 ? pnorm : delta);
+        par = par > 0 ? par * 4 : par;
+        if (delta <= XTOL * xnorm || delta <= DWARF) {
+          return done('non-finite', 'every trial step leads to NaN or ±Infinity in the model or its derivatives: check the formula domain or add bounds', iter, fnorm, gnorm);
+        }
+        continue;
+      }
+      // actual and predicted reductions (MINPACK), the latter for the shortened step α p
+      // actred = (‖r‖² − ‖r₁‖²)/‖r‖² as Σ (r − r₁)(r + r₁): free of the cancellation of 1 − (‖r₁‖/‖r‖)² near the minimum
+      let actred = -1;
+      if (0.1 * fnorm1 < fnorm) {
+        let s = 0;
+        for (let i = 0; i < n; i++) s += (fvec[i] - fvec1[i]) * (fvec[i] + fvec1[i]);
+        actred = s / fnorm / fnorm;
+      }
+      wa3.fill(0, 0, sub.k);
+      for (let j = 0; j < sub.k; j++) {
+        const temp = step[sub.ipvt[j]];
+        for (let i = 0; i <= j; i++) wa3[i] += sub.r[j * sub.k + i] * temp;
+      }
+      const temp1 = norm2(wa3, 0, sub.k) / fnorm;
+      const temp2 = (Math.sqrt(par) * pnormLM) / fnorm;
+      const prered = alpha * (2 - alpha) * temp1 * temp1 + 2 * alpha * temp2 * temp2;
+      const dirder = -alpha * (temp1 * temp1 + temp2 * temp2);
+      const ratio = prered !== 0 ? actred / prered : 0;
+      if (ratio <= 0.25) {
+        let temp = actred >= 0 ? 0.5 : (0.5 * dirder) / (dirder + 0.5 * actred);
+        if (0.1 * fnorm1 >= fnorm || temp < 0.1) temp = 0.1;
+        delta = temp * Math.min(delta, pnorm / 0.1);
+        par /= temp;
+      } else if (par === 0 || ratio >= 0.75) {
+        delta = alpha < 1 ? Math.max(delta, pnorm / 0.5) : pnorm / 0.5;
+        par *= 0.5;
+      }
+      const accepted = ratio >= 1e-4;
+      if (accepted) {
+        x = Float64Array.from(trial);
+        xnorm = scaledNorm(diagAll, x);
+        const tf = fvec; fvec = fvec1; fvec1 = tf;
+        const tA = A; A = A1; A1 = tA;
+        fnorm = fnorm1;
+        iter++;
+        if (P.onIteration) P.onIteration(iter, fnorm * fnorm, fullTheta(P, x));
+      }
+      // convergence tests
+      if (fnorm <= exactTol) return done('exact', 'the model fits the data exactly (residuals at rounding level)', iter, fnorm, 0);
+      if (Math.abs(actred) <= FTOL && prered <= FTOL && 0.5 * ratio <= 1) {
+        return done('relative-reduction', 'the relative reduction of the sum of squares is below 1e-15', iter, fnorm, gnorm);
+      }
+      if (delta <= XTOL * xnorm || delta <= DWARF) {
+        return done('step-size', 'the relative step size is below 1e-15', iter, fnorm, gnorm);
+      }
+      if (accepted) break;
+    }
+  }
+}
+
+function inactive(mask: Uint8Array): number[] {
+  const idx: number[] = [];
+  for (let j = 0; j < mask.length; j++) if (!mask[j]) idx.push(j);
+  return idx;
+}
+
+function weightedY(P: Prepared): Float64Array {
+  const wy = new Float64Array(P.n);
+  for (let i = 0; i < P.n; i++) wy[i] = P.sw[i] * P.problem.y[i];
+  return wy;
+}
+
+function scaledNorm(d: Float64Array, x: Float64Array): number {
+  let s = 0;
+  for (let j = 0; j < x.length; j++) s += d[j] * x[j] * (d[j] * x[j]);
+  return Math.sqrt(s);
+}
+
+/** max_j |(Aᵀ r)_j| / (‖A_j‖ ‖r‖) over the sub-problem columns (MINPACK gnorm) */
+function scaledGradient(sub: Sub, fnorm: number): number {
+  if (fnorm === 0) return 0;
+  let gnorm = 0;
+  for (let j = 0; j < sub.k; j++) {
+    const l = sub.ipvt[j];
+    if (sub.acnorm[l] === 0) continue;
+    let sum = 0;
+    for (let i = 0; i <= j; i++) sum += sub.r[j * sub.k + i] * (sub.qtf[i] / fnorm);
+    gnorm = Math.max(gnorm, Math.abs(sum / sub.acnorm[l]));
+  }
+  return gnorm;
+}
+
+/**
+ * MINPACK lmpar: λ ≥ 0 with ‖D p‖ ≈ Δ (within 10%) or λ = 0 when the Gauss–Newton step is inside the region,
+ * where p solves min ‖[A; √λ D] p + [r; 0]‖. Returns λ and x = −p (the step is subtracted), in sub-column order.
+ */
+function lmpar(sub: Sub, delta: number, parIn: number): { par: number; x: Float64Array } {
+  const { k: n, r, ipvt, diag, qtf } = sub;
+  const ldr = n;
+  const x = new Float64Array(n);
+  const sdiag = new Float64Array(n);
+  const wa1 = new Float64Array(n);
+  const wa2 = new Float64Array(n);
+  // Gauss–Newton direction (least squares if singular)
+  let nsing = n;
+  for (let j = 0; j < n; j++) {
+    wa1[j] = qtf[j];
+    if (r[j * ldr + j] === 0 && nsing === n) nsing = j;
+    if (nsing < n) wa1[j] = 0;
+  }
+  for (let j = nsing - 1; j >= 0; j--) {
+    wa1[j] /= r[j * ldr + j];
+    const temp = wa1[j];
+    for (let i = 0; i < j; i++) wa1[i] -= r[j * ldr + i] * temp;
+  }
+  for (let j = 0; j < n; j++) x[ipvt[j]] = wa1[j];
+  let iter = 0;
+  for (let j = 0; j < n; j++) wa2[j] = diag[j] * x[j];
+  let dxnorm = norm2(wa2);
+  let fp = dxnorm - delta;
+  if (fp <= 0.1 * delta || !Number.isFinite(dxnorm)) {
+    if (Number.isFinite(dxnorm)) return { par: 0, x };
+  }
+  // lower bound parl of the Newton iteration (zero if singular)
+  let parl = 0;
+  if (nsing >= n && Number.isFinite(dxnorm)) {
+    for (let j = 0; j < n; j++) {
+      const l = ipvt[j];
+      wa1[j] = diag[l] * (wa2[l] / dxnorm);
+    }
+    for (let j = 0; j < n; j++) {
+      let sum = 0;
+      for (let i = 0; i < j; i++) sum += r[j * ldr + i] * wa1[i];
+      wa1[j] = (wa1[j] - sum) / r[j * ldr + j];
+    }
+    const temp = norm2(wa1);
+    parl = fp / delta / temp / temp;
+    if (!Number.isFinite(parl)) parl = 0;
+  }
+  // upper bound paru
+  for (let j = 0; j < n; j++) {
+    let sum = 0;
+    for (let i = 0; i <= j; i++) sum += r[j * ldr + i] * qtf[i];
+    const l = ipvt[j];
+    wa1[j] = sum / diag[l];
+  }
+  const gnorm = norm2(wa1);
+  let paru = gnorm / delta;
+  if (paru === 0) paru = DWARF / Math.min(delta, 0.1);
+  let par = Math.max(parIn, parl);
+  par = Math.min(par, paru);
+  if (par === 0) par = Number.isFinite(dxnorm) && dxnorm > 0 ? gnorm / dxnorm : paru;
+  for (;;) {
+    iter++;
+    if (par === 0) par = Math.max(DWARF, 0.001 * paru);
+    const temp = Math.sqrt(par);
+    for (let j = 0; j < n; j++) wa1[j] = temp * diag[j];
+    qrsolv(n, r, ldr, ipvt, wa1, qtf, x, sdiag);
+    for (let j = 0; j < n; j++) wa2[j] = diag[j] * x[j];
+    dxnorm = norm2(wa2);
+    const fpOld = fp;
+    fp = dxnorm - delta;
+    if (Math.abs(fp) <= 0.1 * delta || (parl === 0 && fp <= fpOld && fpOld < 0) || iter === 10) break;
+    // Newton correction
+    for (let j = 0; j < n; j++) {
+      const l = ipvt[j];
+      wa1[j] = diag[l] * (wa2[l] / dxnorm);
+    }
+    for (let j = 0; j < n; j++) {
+      wa1[j] /= sdiag[j];
+      const t = wa1[j];
+      for (let i = j + 1; i < n; i++) wa1[i] -= r[j * ldr + i] * t;
+    }
+    const tn = norm2(wa1);
+    const parc = fp / delta / tn / tn;
+    if (fp > 0) parl = Math.max(parl, par);
+    if (fp < 0) paru = Math.min(paru, par);
+    par = Math.max(parl, par + parc);
+    if (!Number.isFinite(par)) { par = paru; }
+  }
+  return { par, x };
+}
+
+/** MINPACK qrsolv: solve min ‖[R; D̃] z − [Qᵀr; 0]‖ by Givens rotations; R's strict lower triangle receives Sᵀ. */
+function qrsolv(n: number, r: Float64Array, ldr: number, ipvt: Int32Array, diag: Float64Array, qtb: Float64Array, x: Float64Array, sdiag: Float64Array): void {
+  const wa = new Float64Array(n);
+  for (let j = 0; j < n; j++) {
+    for (let i = j; i < n; i++) r[j * ldr + i] = r[i * ldr + j];
+    x[j] = r[j * ldr + j];
+    wa[j] = qtb[j];
+  }
+  for (let j = 0; j < n; j++) {
+    const l = ipvt[j];
+    if (diag[l] !== 0) {
+      for (let k = j; k < n; k++) sdiag[k] = 0;
+      sdiag[j] = diag[l];
+      let qtbpj = 0;
+      for (let k = j; k < n; k++) {
+        if (sdiag[k] === 0) continue;
+        const rkk = r[k * ldr + k];
+        let cos: number;
+        let sin: number;
+        if (Math.abs(rkk) < Math.abs(sdiag[k])) {
+          const cotan = rkk / sdiag[k];
+          sin = 0.5 / Math.sqrt(0.25 + 0.25 * cotan * cotan);
+          cos = sin * cotan;
+        } else {
+          const tan = sdiag[k] / rkk;
+          cos = 0.5 / Math.sqrt(0.25 + 0.25 * tan * tan);
+          sin = cos * tan;
+        }
+        r[k * ldr + k] = cos * rkk + sin * sdiag[k];
+        const temp = cos * wa[k] + sin * qtbpj;
+        qtbpj = -sin * wa[k] + cos * qtbpj;
+        wa[k] = temp;
+        for (let i = k + 1; i < n; i++) {
+          const t = cos * r[k * ldr + i] + sin * sdiag[i];
+          sdiag[i] = -sin * r[k * ldr + i] + cos * sdiag[i];
+          r[k * ldr + i] = t;
+        }
+      }
+    }
+    sdiag[j] = r[j * ldr + j];
+    r[j * ldr + j] = x[j];
+  }
+  let nsing = n;
+  for (let j = 0; j < n; j++) {
+    if (sdiag[j] === 0 && nsing === n) nsing = j;
+    if (nsing < n) wa[j] = 0;
+  }
+  for (let j = nsing - 1; j >= 0; j--) {
+    let sum = 0;
+    for (let i = j + 1; i < nsing; i++) sum += r[j * ldr + i] * wa[i];
+    wa[j] = (wa[j] - sum) / sdiag[j];
+  }
+  for (let j = 0; j < n; j++) x[ipvt[j]] = wa[j];
+}
+
+// ---------------------------------------------------------------- Gauss–Newton polishing
+
+/**
+ * Gauss–Newton steps at the LM solution. Near the minimum the SSE is flat to rounding, so a step is accepted while
+ * the steps contract (‖z_k‖ < ‖z_{k−1}‖, a Newton-type convergence check) and the residual norm does not grow by
+ * more than its rounding level 16 ε ‖√w y‖ (common practice); it stops when the step is below 1e-15 of ‖D θ‖.
+ */
+function polish(P: Prepared, run: RunResult): void {
+  const { n, q } = P;
+  const m = Math.max(n, q);
+  const r = new Float64Array(m);
+  const A = new Float64Array(m * q);
+  const r1 = new Float64Array(m);
+  const A1 = new Float64Array(m * q);
+  if (!evaluate(P, fullTheta(P, run.x), r, A, m)) return;
+  let fnorm = norm2(r, 0, n);
+  const tolAbs = 16 * EPS * norm2(weightedY(P), 0, n);
+  const lo = P.free.map((j) => P.lower[j]);
+  const hi = P.free.map((j) => P.upper[j]);
+  let prevZ = Infinity;
+  for (let step = 0; step < 50; step++) {
+    // hold parameters on a bound whose descent direction points outward
+    const idx: number[] = [];
+    for (let k = 0; k < q; k++) {
+      let g = 0;
+      for (let i = 0; i < m; i++) g += A[k * m + i] * r[i];
+      if ((run.x[k] <= lo[k] && g > 0) || (run.x[k] >= hi[k] && g < 0)) continue;
+      idx.push(k);
+    }
+    const kk = idx.length;
+    if (kk === 0) return;
+    const a = new Float64Array(m * kk);
+    const d = new Float64Array(kk);
+    let xs = 0;
+    for (let t = 0; t < kk; t++) {
+      const c = idx[t] * m;
+      const nj = norm2(A, c, m);
+      d[t] = nj > 0 ? nj : 1;
+      xs += (d[t] * run.x[idx[t]]) ** 2;
+      for (let i = 0; i < m; i++) a[t * m + i] = A[c + i] / d[t];
+    }
+    xs = Math.sqrt(xs);
+    const qr = qrFactor(a, m, kk, true);
+    const b = Float64Array.from(r);
+    applyQt(qr, b);
+    const tol = rankTolerance(m, kk) * Math.abs(qr.rdiag[0]);
+    let rank = 0;
+    while (rank < kk && Math.abs(qr.rdiag[rank]) > tol) rank++;
+    const z = new Float64Array(kk);
+    for (let j = rank - 1; j >= 0; j--) {
+      let s = b[j];
+      for (let i = j + 1; i < rank; i++) s -= a[i * m + j] * z[i];
+      z[j] = s / qr.rdiag[j];
+    }
+    const zn = norm2(z);
+    if (!(zn > 0) || !(zn < prevZ)) return;
+    const xNew = Float64Array.from(run.x);
+    let changed = false;
+    for (let t = 0; t < rank; t++) {
+      const k = idx[qr.perm[t]];
+      const v = run.x[k] - z[t] / d[qr.perm[t]];
+      if (v < lo[k] || v > hi[k]) return; // a Gauss–Newton step that leaves the box is not a polish
+      if (v !== run.x[k]) changed = true;
+      xNew[k] = v;
+    }
+    if (!changed) return;
+    if (!evaluate(P, fullTheta(P, xNew), r1, A1, m)) return;
+    const fnorm1 = norm2(r1, 0, n);
+    if (!(fnorm1 <= fnorm + tolAbs)) return;
+    run.x = xNew;
+    run.fnorm = fnorm1;
+    r.set(r1);
+    A.set(A1);
+    fnorm = Math.min(fnorm, fnorm1);
+    prevZ = zn;
+    if (zn <= 1e-15 * xs) return;
+  }
+}
+
+export type { SolveOptions };

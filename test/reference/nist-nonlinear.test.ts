@@ -1,0 +1,85 @@
+// NIST StRD nonlinear least squares: all 27 problems from Start 1 and Start 2 (54 cases), through compileFormula and
+// solveNonlinear; LRE of every parameter and certified standard deviation against the certified values in the NIST files.
+import * as assert from 'assert';
+import * as fs from 'fs';
+import * as path from 'path';
+import { compileFormula } from '../../src/engine/formula';
+import { readStrd, strdFolderOrNotice, StrdProblem } from './strd';
+import { NIST_MODELS } from './nist-models';
+import { CaseScore, scoreCase } from './nist-run';
+
+// Thresholds of the project brief; Lanczos1's SDs rest on a residual of pure round-off (DESIGN.md) and are exempt down to 2.5.
+const MIN_PARAM_LRE = 7;
+const MIN_SD_LRE = 5;
+const LANCZOS1_MIN_SD_LRE = 2.5;
+
+const dir = strdFolderOrNotice('nonlinear');
+
+describe('NIST StRD nonlinear regression (certified values: NIST ITL StRD .dat files)', function () {
+  if (!dir) {
+    it('reference data folder is present (STRD_DIR)', function () {
+      if (process.env.CI === 'true') {
+        assert.fail('NIST StRD files not found: set STRD_DIR to the folder holding nonlinear/ and linear/ (CI requires them)');
+      }
+      this.skip();
+    });
+    return;
+  }
+  const files = fs.readdirSync(dir).filter((f) => f.endsWith('.dat')).sort();
+  const rows: CaseScore[] = [];
+  const probs = new Map<string, StrdProblem>();
+
+  it('finds all 27 problems, each with a model in the formula language', function () {
+    assert.strictEqual(files.length, 27, `expected 27 .dat files in ${dir}`);
+    for (const f of files) assert.ok(NIST_MODELS[f.replace(/\.dat$/, '')], `no model for ${f}`);
+  });
+
+  for (const f of files) {
+    const name = f.replace(/\.dat$/, '');
+    for (const start of [0, 1]) {
+      it(`${name} from Start ${start + 1}`, function () {
+        let prob = probs.get(name);
+        if (!prob) {
+          prob = readStrd(path.join(dir, f));
+          probs.set(name, prob);
+        }
+        const m = NIST_MODELS[name];
+        const compiled = compileFormula(m.formula, { variables: m.variables, params: prob.params });
+        assert.deepStrictEqual(compiled.params, prob.params);
+        const X = prob.x.map((a) => Float64Array.from(a));
+        const y = Float64Array.from(prob.y.map(m.transformY ?? ((v) => v)));
+        const sc = scoreCase(prob, compiled, X, y, start);
+        rows.push(sc);
+        const minSd = name === 'Lanczos1' ? LANCZOS1_MIN_SD_LRE : MIN_SD_LRE;
+        assert.ok(sc.result.converged, `${name} Start ${start + 1}: ${sc.result.termination} — ${sc.result.message}`);
+        assert.ok(sc.minParams >= MIN_PARAM_LRE,
+          `${name} Start ${start + 1}: parameter LRE ${sc.lreParams.map((v) => v.toFixed(1)).join(', ')} (need ≥ ${MIN_PARAM_LRE}); estimates ${sc.theta.join(', ')}`);
+        assert.ok(sc.minSd >= minSd, `${name} Start ${start + 1}: SD LRE ${sc.lreSd.map((v) => v.toFixed(1)).join(', ')} (need ≥ ${minSd})`);
+      });
+    }
+  }
+
+  after(function () {
+    if (rows.length === 0) return;
+    const lines = [
+      '',
+      'NIST StRD nonlinear — LRE (digits agreeing with the certified values, capped at 11)',
+      `${'problem'.padEnd(10)} start  iter  ${'termination'.padEnd(19)} minLRE(θ)  minLRE(SD)  LRE(RSS)     ms`,
+    ];
+    let pass = 0;
+    let total = 0;
+    for (const r of rows) {
+      const minSd = r.name === 'Lanczos1' ? LANCZOS1_MIN_SD_LRE : MIN_SD_LRE;
+      const ok = r.result.converged && r.minParams >= MIN_PARAM_LRE && r.minSd >= minSd;
+      if (ok) pass++;
+      total += r.ms;
+      lines.push(
+        `${r.name.padEnd(10)} ${String((r.start ?? 0) + 1).padStart(5)} ${String(r.result.iterations).padStart(5)}  ${r.result.termination.padEnd(19)} ` +
+          `${r.minParams.toFixed(1).padStart(9)}  ${r.minSd.toFixed(1).padStart(10)}  ${r.lreRss.toFixed(1).padStart(8)} ${r.ms.toFixed(1).padStart(6)}${ok ? '' : '  FAIL'}`,
+      );
+    }
+    const six = rows.filter((r) => r.minParams >= 6).length;
+    lines.push(`passing: ${pass}/${rows.length}; cases with ≥ 6 digits in every parameter: ${six}/${rows.length}; solver time ${total.toFixed(0)} ms`);
+    console.log(lines.join('\n'));
+  });
+});

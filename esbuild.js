@@ -2,10 +2,12 @@
 const esbuild = require('esbuild');
 const watch = process.argv.includes('--watch');
 const common = { bundle: true, sourcemap: true, logLevel: 'warning', minify: false, legalComments: 'none' };
+// node bundles prefer a package's ES module build: jsonc-parser's UMD main requires './impl/*' at run time, which a bundle cannot resolve
+const node = { ...common, platform: 'node', format: 'cjs', target: 'node20', mainFields: ['module', 'main'] };
 const builds = [
-  { ...common, entryPoints: ['src/host/extension.ts'], outfile: 'dist/extension.js', platform: 'node', format: 'cjs', target: 'node20', external: ['vscode'] },
-  { ...common, entryPoints: ['src/worker.ts'], outfile: 'dist/worker.js', platform: 'node', format: 'cjs', target: 'node20' },
-  { ...common, entryPoints: ['src/cli.ts'], outfile: 'dist/cli.js', platform: 'node', format: 'cjs', target: 'node20' },
+  { ...node, entryPoints: ['src/host/extension.ts'], outfile: 'dist/extension.js', external: ['vscode'] },
+  { ...node, entryPoints: ['src/worker.ts'], outfile: 'dist/worker.js' },
+  { ...node, entryPoints: ['src/cli.ts'], outfile: 'dist/cli.js' },
   { ...common, entryPoints: ['webview/main.ts'], outfile: 'dist/webview.js', platform: 'browser', format: 'iife', target: 'es2020' },
 ];
 const fs = require('fs');

@@ -230,8 +230,8 @@ export function fitreportSchema(): Schema {
     code: str('Stable code, documented in docs/problems.md.'),
     severity: { type: 'string', enum: ['error', 'warning', 'info'], description: 'How serious the problem is.' },
     message: str('For the user: what happened, why it matters, what to try.'),
-    path: { $ref: '#/definitions/jsonPath' },
-    location: { $ref: '#/definitions/location' },
+    path: { $ref: '#/definitions/jsonPath', description: 'Where in the spec it belongs.' },
+    location: { $ref: '#/definitions/location', description: 'Where in a data file or the spec text, when that applies.' },
     rows: arr('Data rows the problem concerns.', { type: 'integer' }),
   }, ['code', 'severity', 'message', 'path']);
   const termination = {
@@ -433,8 +433,8 @@ export function fitreportSchema(): Schema {
     spec: str('Spec file name as given.'),
     error: obj('What went wrong.', {
       message: str('For the user: what, where, and the fix.'),
-      path: { $ref: '#/definitions/jsonPath' },
-      location: { $ref: '#/definitions/location' },
+      path: { $ref: '#/definitions/jsonPath', description: 'Where in the spec the error belongs.' },
+      location: { $ref: '#/definitions/location', description: 'Where in the spec text or data file.' },
       problems: arr('All problems found.', { $ref: '#/definitions/problem' }),
     }, ['message']),
   }, ['version', 'spec', 'error']);

@@ -200,8 +200,8 @@ export function tQuantile(p: number, nu: number): number {
   if (p === 0.5) return 0;
   const q = p < 0.5 ? p : 1 - p; // one tail
   const sign = p < 0.5 ? -1 : 1;
-  if (nu === 1) return sign * Math.tan(Math.PI * (0.5 - q));
-  if (nu === 2) return sign * Math.sqrt(2 / (4 * q * (1 - q)) - 2) ;
+  if (nu === 1) return sign / Math.tan(Math.PI * q); // Cauchy: cot(πq), no cancellation near π/2
+  if (nu === 2) return (sign * (1 - 2 * q)) / Math.sqrt(2 * q * (1 - q));
   const twoQ = 2 * q; // = P(|T| > t) = I_x(ν/2, ½) with x = ν/(ν+t²)
   let t2: number;
   if (twoQ < 0.5) {
@@ -303,7 +303,8 @@ export function betaQuantile(p: number, a: number, b: number): number {
     }
     if (!(xNew > lo && xNew < hi) || !Number.isFinite(xNew)) {
       // bisect (geometrically near 0 where the quantile may be tiny)
-      xNew = lo === 0 && hi < 1e-3 ? hi / 16 : 0.5 * (lo + hi);
+      xNew = lo === 0 && hi < 1e-3 ? hi * 1e-6 : 0.5 * (lo + hi);
+      if (xNew === 0) return 0; // the quantile underflows
       if (lo > 0 && hi / lo > 4) xNew = Math.sqrt(lo * hi);
     }
     if (Math.abs(xNew - x) <= 1e-15 * Math.max(x, 1e-300) || hi - lo <= 1e-16 * hi) return xNew;

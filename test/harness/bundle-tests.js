@@ -17,6 +17,7 @@ async function bundle(kind) {
     entryPoints: [path.join(srcDir, f)],
     outfile: path.join(outDir, f.replace(/\.ts$/, '.js')),
     bundle: true, platform: 'node', format: 'cjs', target: 'node20', sourcemap: 'inline', logLevel: 'warning',
+    mainFields: ['module', 'main'],   // jsonc-parser's UMD main has requires esbuild cannot follow
     external: ['vscode', 'mocha', 'playwright-core'],
   })));
   return { outDir, files: entries.map(f => f.replace(/\.ts$/, '.js')) };

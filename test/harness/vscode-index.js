@@ -13,10 +13,18 @@ exports.run = function run() {
   for (const f of files) mocha.addFile(path.join(dir, f));
   const results = { files, passed: [], failed: [], pending: [] };
   return new Promise((resolve, reject) => {
-    const runner = mocha.run(failures => {
+    let runner;
+    try {
+      runner = mocha.run(failures => {
+        fs.writeFileSync(out, JSON.stringify(results, null, 2));
+        failures ? reject(new Error(`${failures} integration test(s) failed`)) : resolve();
+      });
+    } catch (e) {   // a suite that fails to load is a failure, reported like one
+      results.failed.push({ title: 'loading the integration suites', err: String((e && e.stack) || e) });
       fs.writeFileSync(out, JSON.stringify(results, null, 2));
-      failures ? reject(new Error(`${failures} integration test(s) failed`)) : resolve();
-    });
+      reject(e);
+      return;
+    }
     runner.on('pass', t => results.passed.push(t.fullTitle()));
     runner.on('pending', t => results.pending.push(t.fullTitle()));
     runner.on('fail', (t, err) => results.failed.push({ title: t.fullTitle(), err: String((err && err.stack) || err) }));

@@ -27,8 +27,8 @@ import type { NormalizedSpec } from './spec/types';
 import { DataError, prepareData, readHeader, readTable } from './data';
 import type { Table } from './data/types';
 import { buildModel, fitModel } from './models';
-import { analyzeModel, compareModels, DEFAULT_THRESHOLDS } from './stats';
-import type { ModelAnalysisInput } from './stats/api';
+import { analyzeModel, compareModels, resolveThresholds } from './stats';
+import type { AnalysisOptions, ModelAnalysisInput } from './stats/api';
 
 export interface RunOptions {
   /** spec text to use instead of the file on disk (e.g. unsaved editor text) */
@@ -39,7 +39,15 @@ export interface RunOptions {
   shouldStop?: () => boolean;
   /** short progress notes ("fitting model 2 of 3: gompertz") */
   onProgress?: (msg: string) => void;
+  /** analysis switches and time budgets (default ANALYSIS_DEFAULTS) */
+  analysis?: AnalysisOptions;
 }
+
+/**
+ * Time budgets of profiling and cross-validation per model. Generous on purpose: a budget that runs out makes the
+ * result depend on the machine's speed, and the same spec and data must give byte-identical reports.
+ */
+export const ANALYSIS_DEFAULTS: AnalysisOptions = { profileSeconds: 10, cvSeconds: 10 };
 
 /** Seed of every randomised step (multi-start); fixed so that the same spec and data give the same report. */
 export const RUN_SEED = 1;
@@ -168,7 +176,7 @@ export async function runSpecFile(specPath: string, opts: RunOptions = {}): Prom
     } catch (e) {
       const code = (e as NodeJS.ErrnoException).code;
       const why = code === 'ENOENT' ? 'no such file' : code === 'EISDIR' ? 'it is a folder' : code === 'EACCES' ? 'permission denied' : (e as Error).message;
-      return errorReport(name, `cannot read the spec ${specPath}: ${why} — check the path`, { location: { file: specPath } });
+      return errorReport(name, `cannot read the spec ${name}: ${why} — check the path`, { location: { file: name } });
     }
   }
   if (text.charCodeAt(0) === 0xfeff) text = text.slice(1);
@@ -192,7 +200,7 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
   const progress = opts.onProgress ?? (() => undefined);
 
   // 1. syntax
-  const parsed = parseSpecText(text, specPath);
+  const parsed = parseSpecText(text, name);
   if (parsed.problems.some(p => p.severity === 'error')) return fromProblems(name, parsed.problems);
 
   // 2. shape, without and then with the data file's columns
@@ -220,7 +228,7 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
   const dataProblems = dedupe([...table.problems, ...prepared.problems]);
   if (dataProblems.some(p => p.severity === 'error')) return fromProblems(name, [...specProblems, ...dataProblems]);
   const data = { X: prepared.X, y: prepared.y, w: prepared.w };
-  const thresholds: Thresholds = { ...DEFAULT_THRESHOLDS, ...spec.thresholds };
+  const thresholds: Thresholds = resolveThresholds(spec.thresholds);
 
   // 4. models
   const models: ModelReport[] = [];
@@ -276,6 +284,7 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
         thresholds,
         solverOptions: { maxIterations: m.solver.maxIterations, seconds: m.solver.seconds },
         shouldStop: opts.shouldStop,
+        options: { ...ANALYSIS_DEFAULTS, ...opts.analysis },
       };
       const report = analyzeModel(input);
       models.push(report);

@@ -306,7 +306,7 @@ export interface RankAnalysis {
   rank: number;
   /** indices (into the columns given) that lie in the numerical null space */
   nullColumns: number[];
-  /** column scale factors used (2-norms; 1 where a column is zero) */
+  /** column scale factors used (powers of two near the 2-norms; 1 where a column is zero) */
   d: Float64Array;
   /** SVD of R D⁻¹P (q×q) where A D⁻¹ P = Q R */
   svd: SVD;
@@ -323,11 +323,18 @@ export interface RankAnalysis {
  */
 export function analyzeRank(aIn: Float64Array, m: number, q: number, relTol = rankTolerance(m, q)): RankAnalysis {
   const mm = Math.max(m, q);
+  if (mm !== m) {
+    // fewer rows than columns: pad with zero rows
+    const padded = new Float64Array(mm * q);
+    for (let j = 0; j < q; j++) padded.set(aIn.subarray(j * m, j * m + m), j * mm);
+    return analyzeRank(padded, mm, q, relTol);
+  }
   const a = new Float64Array(mm * q);
   const d = new Float64Array(q);
   for (let j = 0; j < q; j++) {
     const nj = norm2(aIn, j * m, m);
-    d[j] = nj > 0 && Number.isFinite(nj) ? nj : 1;
+    // a power of two near the column norm, so that scaling is exact (common practice)
+    d[j] = nj > 0 && Number.isFinite(nj) ? 2 ** Math.round(Math.log2(nj)) : 1;
     for (let i = 0; i < m; i++) a[j * mm + i] = aIn[j * m + i] / d[j];
   }
   const qr = qrFactor(a, mm, q, true);
@@ -346,4 +353,57 @@ export function analyzeRank(aIn: Float64Array, m: number, q: number, relTol = ra
   const nullColumns: number[] = [];
   for (let j = 0; j < q; j++) if (share[j] > 1e-4) nullColumns.push(j);
   return { rank, nullColumns, d, svd, qr, tol: relTol };
+}
+
+/**
+ * Iterative refinement of a full-rank least-squares problem on the augmented system [I A; Aᵀ 0][r; x] = [b; c]
+ * (Björck 1967, "Iterative refinement of linear least squares solutions I"), with both residuals accumulated in
+ * double-double so the result is accurate to about cond(A)·ε even for large residuals. A is m×q (column-major,
+ * leading dimension m), `ra` its rank analysis (rank must be q); b = null means 0, c = null means 0. x (length q)
+ * and r (length m) are updated in place; pass r = b − A x of the starting x (or refine from r = 0 with steps ≥ 2).
+ */
+export function refineAugmented(
+  A: Float64Array, m: number, q: number, ra: RankAnalysis, b: Float64Array | null, c: Float64Array | null,
+  x: Float64Array, r: Float64Array, steps: number,
+): void {
+  const acc = new CompensatedSum();
+  const f = new Float64Array(m);
+  const gs = new Float64Array(q);
+  const { qr, d } = ra;
+  const { perm, rdiag } = qr;
+  const a = qr.a;
+  for (let it = 0; it < steps; it++) {
+    // f = b − r − A x,  g = c − Aᵀ r  (double-double accumulation, rounded once)
+    for (let i = 0; i < m; i++) {
+      acc.reset(b ? b[i] : 0);
+      acc.add(-r[i]);
+      for (let k = 0; k < q; k++) acc.addProduct(-A[k * m + i], x[k]);
+      f[i] = acc.value();
+    }
+    for (let t = 0; t < q; t++) {
+      const k = perm[t];
+      acc.reset(c ? c[k] : 0);
+      for (let i = 0; i < m; i++) acc.addProduct(-A[k * m + i], r[i]);
+      gs[t] = acc.value() / d[k]; // exact: d is a power of two
+    }
+    // h = R⁻ᵀ g_s
+    for (let j = 0; j < q; j++) {
+      let sum = gs[j];
+      for (let i = 0; i < j; i++) sum -= a[j * m + i] * gs[i];
+      gs[j] = sum / rdiag[j];
+    }
+    // Qᵀ f = [d1; d2]; δx_s = R⁻¹ (d1 − h); δr = Q [h; d2]
+    applyQt(qr, f);
+    const dx = new Float64Array(q);
+    for (let j = 0; j < q; j++) dx[j] = f[j] - gs[j];
+    for (let j = q - 1; j >= 0; j--) {
+      let sum = dx[j];
+      for (let i = j + 1; i < q; i++) sum -= a[i * m + j] * dx[i];
+      dx[j] = sum / rdiag[j];
+    }
+    for (let j = 0; j < q; j++) f[j] = gs[j];
+    applyQ(qr, f);
+    for (let i = 0; i < m; i++) r[i] += f[i];
+    for (let t = 0; t < q; t++) x[perm[t]] += dx[t] / d[perm[t]];
+  }
 }

@@ -1,10 +1,10 @@
-// Linear least squares by column-scaled Householder QR with column pivoting (Golub & Van Loan, Matrix Computations, 4th ed., §5.3.3, §5.4.2), rank by one-sided Jacobi SVD of R, minimal-norm solution when rank deficient (§5.5), and iterative refinement with a double-double residual (Björck 1967; Ogita, Rump & Oishi 2005). Never the normal equations.
+// Linear least squares by column-scaled Householder QR with column pivoting (Golub & Van Loan, Matrix Computations, 4th ed., §5.3.3, §5.4.2), rank by one-sided Jacobi SVD of R, minimal-norm solution when rank deficient (§5.5), and iterative refinement on the augmented system with double-double residuals (Björck 1967; Ogita, Rump & Oishi 2005). Never the normal equations.
 import type { LsqProblem, SolveOptions, SolveResult } from './types';
-import { CompensatedSum, analyzeRank, applyQt, RankAnalysis } from './linalg';
+import { CompensatedSum, analyzeRank, applyQt, refineAugmented, RankAnalysis } from './linalg';
 import { CONVERGED, Prepared, evaluate, prepare, solutionInfo } from './problem';
 import { DEFAULT_MAX_ITERATIONS, solvePrepared } from './lm';
 
-/** number of refinement steps (each: compensated residual, then a correction from the same factors) */
+/** number of refinement steps (each: double-double residuals, then a correction from the same factors) */
 const REFINEMENT_STEPS = 3;
 
 /**
@@ -42,24 +42,34 @@ export function solveLinear(problem: LsqProblem, opts: SolveOptions): SolveResul
 
   const theta = Float64Array.from(P.theta0);
   let ra: RankAnalysis | null = null;
+  let refinedResidual: Float64Array | null = null;
   if (q > 0) {
     ra = analyzeRank(A, m, q);
     const x = new Float64Array(q);
     const resid = new Float64Array(m);
-    // initial solve, then refinement: x ← x + LS(A, b − A x) with b − A x accumulated in double-double
-    for (let step = 0; step <= REFINEMENT_STEPS; step++) {
-      for (let i = 0; i < n; i++) {
-        acc.reset(rhs0[i]);
-        for (let k = 0; k < q; k++) acc.addProduct(-J[free[k] * n + i], x[k]);
-        resid[i] = sw[i] * acc.value();
+    const b = new Float64Array(m);
+    for (let i = 0; i < n; i++) b[i] = sw[i] * rhs0[i];
+    if (ra.rank === q) {
+      // full rank: QR solution, then refinement on the augmented system with double-double residuals
+      x.set(lsSolve(ra, b, m, q));
+      for (let i = 0; i < m; i++) {
+        acc.reset(b[i]);
+        for (let k = 0; k < q; k++) acc.addProduct(-A[k * m + i], x[k]);
+        resid[i] = acc.value();
       }
-      const dx = lsSolve(ra, resid, m, q);
-      let change = 0;
-      for (let k = 0; k < q; k++) {
-        x[k] += dx[k];
-        change = Math.max(change, Math.abs(dx[k]) / Math.max(Math.abs(x[k]), Number.MIN_VALUE));
+      refineAugmented(A, m, q, ra, b, null, x, resid, REFINEMENT_STEPS);
+      refinedResidual = resid;
+    } else {
+      // rank deficient: minimal-norm solution, refined as x ← x + LS(A, b − A x) with a double-double residual
+      for (let step = 0; step <= REFINEMENT_STEPS; step++) {
+        for (let i = 0; i < m; i++) {
+          acc.reset(b[i]);
+          for (let k = 0; k < q; k++) acc.addProduct(-A[k * m + i], x[k]);
+          resid[i] = acc.value();
+        }
+        const dx = lsSolve(ra, resid, m, q);
+        for (let k = 0; k < q; k++) x[k] += dx[k];
       }
-      if (step > 0 && change < 1e-17) break;
     }
     for (let k = 0; k < q; k++) theta[free[k]] = x[k];
   }
@@ -78,6 +88,12 @@ export function solveLinear(problem: LsqProblem, opts: SolveOptions): SolveResul
   const JOut = Float64Array.from(P.J);
   let sse = 0;
   for (let i = 0; i < n; i++) sse += rw[i] * rw[i];
+  // the refined residual of the linear system is more accurate than f(θ) − y evaluated term by term
+  if (refinedResidual) {
+    let s2 = 0;
+    for (let i = 0; i < n; i++) s2 += refinedResidual[i] * refinedResidual[i];
+    if (Number.isFinite(s2)) sse = s2;
+  }
   const info = solutionInfo(P, theta, ok ? Aw : null, m);
   const singular = ra !== null && ra.rank < q;
   const termination = !ok ? 'non-finite' : singular ? 'singular' : 'exact';

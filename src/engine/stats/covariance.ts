@@ -1,5 +1,8 @@
-// Parameter covariance s²(JᵀWJ)⁻¹ and hat values from the SVD of the column-scaled, pivoted-QR R factor of the weighted Jacobian (Golub & Van Loan, Matrix Computations, 4th ed., §5.3, §5.5); no explicit inverse of JᵀJ is formed.
-import { analyzeRank } from '../solve/linalg';
+// Parameter covariance s²(JᵀWJ)⁻¹ and hat values from the SVD of the column-scaled, pivoted-QR R factor of the weighted Jacobian (Golub & Van Loan, Matrix Computations, 4th ed., §5.3, §5.5), each covariance column refined on the augmented system (Björck 1967); JᵀJ is never formed.
+import { analyzeRank, CompensatedSum, refineAugmented } from '../solve/linalg';
+
+/** refinement steps of each covariance column (double-double residuals) */
+const COV_REFINEMENT_STEPS = 2;
 
 function weightedFree(J: Float64Array, n: number, p: number, w: Float64Array | null, cols: number[]): Float64Array {
   const q = cols.length;
@@ -35,18 +38,46 @@ export function covarianceFromJacobian(
   const q = keep.length;
   const { s, v } = rb.svd;
   const kept = Math.min(rb.rank, q);
+  // C = (AᵀA)⁻¹ of the kept columns, first from the SVD: element (a, b) in pivoted order is Σ_k v_ak v_bk / s_k²
+  const C = new Float64Array(q * q); // column-major, original (keep) order
   for (let a = 0; a < q; a++) {
     for (let b = a; b < q; b++) {
-      // element (perm⁻¹) of V Σ⁻² Vᵀ
       let sum = 0;
       for (let k = 0; k < kept; k++) sum += (v[k * q + a] * v[k * q + b]) / (s[k] * s[k]);
-      const ja = keep[rb.qr.perm[a]];
-      const jb = keep[rb.qr.perm[b]];
-      const val = (s2 * sum) / (rb.d[rb.qr.perm[a]] * rb.d[rb.qr.perm[b]]);
-      cov[ja * p + jb] = val;
-      cov[jb * p + ja] = val;
+      const ia = rb.qr.perm[a];
+      const ib = rb.qr.perm[b];
+      const val = sum / (rb.d[ia] * rb.d[ib]);
+      C[ib * q + ia] = val;
+      C[ia * q + ib] = val;
     }
   }
+  if (kept === q && n >= q) {
+    // refine each column c_j on the augmented system [I A; Aᵀ 0][r; c] = [0; −e_j] (so AᵀA c = e_j), Björck 1967
+    const A = weightedFree(J, n, p, w, keep);
+    const acc = new CompensatedSum();
+    const e = new Float64Array(q);
+    const r = new Float64Array(n);
+    for (let j = 0; j < q; j++) {
+      const x = C.subarray(j * q, j * q + q);
+      for (let i = 0; i < n; i++) {
+        acc.reset(0);
+        for (let k = 0; k < q; k++) acc.addProduct(-A[k * n + i], x[k]);
+        r[i] = acc.value();
+      }
+      e.fill(0);
+      e[j] = -1;
+      refineAugmented(A, n, q, rb, null, e, x, r, COV_REFINEMENT_STEPS);
+    }
+    // symmetrise
+    for (let a = 0; a < q; a++) {
+      for (let b = a + 1; b < q; b++) {
+        const m = 0.5 * (C[b * q + a] + C[a * q + b]);
+        C[b * q + a] = m;
+        C[a * q + b] = m;
+      }
+    }
+  }
+  for (let a = 0; a < q; a++) for (let b = 0; b < q; b++) cov[keep[a] * p + keep[b]] = s2 * C[b * q + a];
   return { cov, rank, unidentifiable };
 }
 

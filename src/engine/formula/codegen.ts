@@ -27,7 +27,7 @@ export interface Kernels {
   source: { evaluate: string; evaluateWithJacobian: string; at: string; gradientAt: string };
 }
 
-class Emitter {
+export class Emitter {
   constructor(private readonly g: Graph) {}
 
   ref(id: number): string {

@@ -42,8 +42,9 @@ export function derivative(g: Graph, root: number, j: number): number {
         r = g.add(g.mul(da, b), g.mul(a, db));
         break;
       case 'div':
-        // (a/b)' = (a' - (a/b)*b') / b — reuses the quotient itself
-        r = isZero(db) ? g.div(da, b) : g.div(g.sub(da, g.mul(id, db)), b);
+        // (a/b)' = a'*(1/b) + (-(a/b)*(1/b))*b': the quotient, the reciprocal and their product are shared by
+        // every parameter, so each column costs multiplications, not divisions
+        r = g.add(g.mul(da, reciprocal(g, b)), isZero(db) ? zero : g.mul(g.neg(g.mul(id, reciprocal(g, b))), db));
         break;
       case 'pow': {
         if (isZero(db)) {
@@ -95,6 +96,11 @@ export function derivative(g: Graph, root: number, j: number): number {
     d.set(id, r);
   }
   return d.get(root) as number;
+}
+
+function reciprocal(g: Graph, b: number): number {
+  const n = g.get(b);
+  return n.op === 'const' ? g.num(1 / n.value) : g.raw('div', [g.num(1), b]);
 }
 
 /** f'(u) for f(u) = node (u = argument), for the functions whose derivative is a factor. */

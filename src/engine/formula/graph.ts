@@ -157,8 +157,7 @@ export class Graph {
     if (this.isConst(b, -1)) return this.neg(a);
     const na = this.nodes[a];
     const nb = this.nodes[b];
-    if (na.op === 'neg') return this.neg(this.mul(na.args[0], b));
-    if (nb.op === 'neg') return this.neg(this.mul(a, nb.args[0]));
+    if (na.op === 'neg' && nb.op === 'neg') return this.mul(na.args[0], nb.args[0]);
     // c1*(c2*u) -> (c1*c2)*u
     if (na.op === 'const' && nb.op === 'mul' && this.isConst(nb.args[0])) {
       return this.mul(this.num(na.value * this.nodes[nb.args[0]].value), nb.args[1]);

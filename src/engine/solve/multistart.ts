@@ -57,9 +57,12 @@ export const TUNING: {
   localRuns: number;
   /** iteration cap of one short local run */
   localIterations: number;
+  /** rounds of coordinate-resampling basin hopping, and local runs per round */
+  hopRounds: number;
+  hopRuns: number;
   /** optional progress trace (benchmarks) */
   trace?: (msg: string) => void;
-} = { locationShare: 0.4, localRuns: 8, localIterations: 100 };
+} = { locationShare: 0.4, localRuns: 8, localIterations: 100, hopRounds: 4, hopRuns: 3 };
 
 const LOG_LO = -6;
 const LOG_HI = 6;
@@ -441,13 +444,7 @@ export function multiStart(problem: LsqProblem, opts: MultiStartOptions): MultiS
   const NL: number[] = [];
   for (let j = 0; j < p; j++) if (!fixed[j] && !Lset.has(j)) NL.push(j);
   const reduced = L.length > 0 && NL.length > 0 ? reducedProblem(c, base, L, NL, scale) : null;
-  let best: { start: Float64Array; theta: Float64Array; sse: number } | null = null;
-  let localRunsDone = 0;
-  for (const theta0 of chosen) {
-    if (best && stop()) break;
-    const share = remaining() / Math.max(2, chosen.length - localRunsDone + 1);
-    let theta: Float64Array;
-    let sse: number;
+  const localRun = (theta0: Float64Array, seconds: number): { theta: Float64Array; sse: number } | null => {
     try {
       if (reduced) {
         const r = solveNonlinear(reduced.problem, {
@@ -455,22 +452,67 @@ export function multiStart(problem: LsqProblem, opts: MultiStartOptions): MultiS
           lower: NL.map((j) => lower[j]),
           upper: NL.map((j) => upper[j]),
           maxIterations: TUNING.localIterations,
-          seconds: share,
+          seconds,
           shouldStop: opts.shouldStop,
         });
-        theta = reduced.expand(r.theta);
-        sse = r.sse;
-      } else {
-        const r = solveNonlinear(problem, solveOpts(theta0, 60, share));
-        theta = r.theta;
-        sse = r.sse;
+        return Number.isFinite(r.sse) ? { theta: reduced.expand(r.theta), sse: r.sse } : null;
       }
+      const r = solveNonlinear(problem, solveOpts(theta0, TUNING.localIterations, seconds));
+      return Number.isFinite(r.sse) ? { theta: r.theta, sse: r.sse } : null;
     } catch {
-      continue;
+      return null;
     }
+  };
+  let best: { start: Float64Array; theta: Float64Array; sse: number } | null = null;
+  let localRunsDone = 0;
+  for (const theta0 of chosen) {
+    if (best && stop()) break;
+    const share = remaining() / Math.max(2, chosen.length - localRunsDone + 1);
+    const r = localRun(theta0, share);
     localRunsDone++;
-    TUNING.trace?.(`local run ${localRunsDone}: SSE ${sse.toPrecision(8)} at ${Date.now() - t0} ms`);
-    if (Number.isFinite(sse) && (!best || sse < best.sse)) best = { start: theta0, theta, sse };
+    TUNING.trace?.(`local run ${localRunsDone}: SSE ${r ? r.sse.toPrecision(8) : 'none'} at ${Date.now() - t0} ms`);
+    if (r && (!best || r.sse < best.sse)) best = { start: theta0, ...r };
+  }
+
+  // 4b. basin hopping by coordinate resampling: from the incumbent, redraw one or two sampled parameters (the others
+  // kept), screen by projected SSE, and run local fits from the best few; repeat while it improves. This escapes the
+  // minima where one term of a sum is wrong while the others are right (common in sums of peaks or exponentials).
+  const sampledNL = N.filter((j) => !Lset.has(j));
+  const samplerOf = new Map<number, Sampler>();
+  unknown.forEach((j, a) => samplerOf.set(j, samplers[a]));
+  const subsets: number[][] = sampledNL.map((j) => [j]);
+  for (let a = 0; a < sampledNL.length; a++) for (let b = a + 1; b < sampledNL.length; b++) subsets.push([sampledNL[a], sampledNL[b]]);
+  const maxSubsets = 24;
+  for (let round = 0; best && round < TUNING.hopRounds && !stop() && sampledNL.length > 0; round++) {
+    const inc = best;
+    const pick = subsets.length > maxSubsets ? subsets.slice().sort(() => rand() - 0.5).slice(0, maxSubsets) : subsets;
+    const found: { theta: Float64Array; sse: number }[] = [];
+    for (const S of pick) {
+      if (stop()) break;
+      let top: { theta: Float64Array; sse: number } | null = null;
+      const m = 96 * S.length;
+      for (let k = 0; k < m; k++) {
+        const t = Float64Array.from(inc.theta);
+        for (const j of S) t[j] = (samplerOf.get(j) as Sampler)((k + rand()) / m, rand);
+        const sse = project(c, t, L, work);
+        screened++;
+        if (Number.isFinite(sse) && (!top || sse < top.sse)) top = { theta: t, sse };
+      }
+      if (top) found.push(top);
+    }
+    found.sort((x, y) => x.sse - y.sse);
+    let improved = false;
+    for (const cand of found.slice(0, TUNING.hopRuns)) {
+      if (stop()) break;
+      const r = localRun(cand.theta, remaining() / 4);
+      localRunsDone++;
+      TUNING.trace?.(`hop ${round}: SSE ${r ? r.sse.toPrecision(8) : 'none'} (incumbent ${inc.sse.toPrecision(8)}) at ${Date.now() - t0} ms`);
+      if (r && r.sse < (best as { sse: number }).sse * (1 - 1e-9)) {
+        best = { start: cand.theta, ...r };
+        improved = true;
+      }
+    }
+    if (!improved) break;
   }
 
   // 5. the full run from the best local solution, with the model's own derivatives

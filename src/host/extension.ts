@@ -52,15 +52,24 @@ export function activate(context: vscode.ExtensionContext): CurvewrightApi {
   const fitCsv = new FitCsvCommand(pool, ownWrites, panels, fits);
   context.subscriptions.push(fits, diagnostics, panels, status, lenses);
 
+  /** Stop fitting a spec and drop its diagnostics once no editor tab and no panel shows it. */
+  const releaseIfUnused = (uri: vscode.Uri) => {
+    const key = uri.toString();
+    if (panels.openSpecs.some(u => u.toString() === key)) return;
+    const inTab = vscode.window.tabGroups.all.some(g => g.tabs.some(t => t.input instanceof vscode.TabInputText && t.input.uri.toString() === key));
+    if (inTab) return;
+    fits.forget(uri);
+    diagnostics.clear(uri);
+  };
   context.subscriptions.push(
     fits.onDidReport(ev => { diagnostics.update(ev); lenses.refresh(); }),
     fits.onDidChangeState(() => lenses.refresh()),
-    vscode.workspace.onDidCloseTextDocument(d => {
-      if (!isSpecUri(d.uri)) return;
-      if (panels.openSpecs.some(u => u.toString() === d.uri.toString())) return;
-      fits.forget(d.uri);
-      diagnostics.clear(d.uri);
+    vscode.workspace.onDidCloseTextDocument(d => { if (isSpecUri(d.uri)) releaseIfUnused(d.uri); }),
+    // documents outlive their editors for a while; a spec whose last tab closed is released right away
+    vscode.window.tabGroups.onDidChangeTabs(e => {
+      for (const t of e.closed) if (t.input instanceof vscode.TabInputText && isSpecUri(t.input.uri)) releaseIfUnused(t.input.uri);
     }),
+    panels.onDidClosePanel(uri => releaseIfUnused(uri)),
     vscode.languages.registerCodeActionsProvider(SPEC_SELECTOR, new FitCodeActions(fits), { providedCodeActionKinds: FitCodeActions.kinds }),
     vscode.languages.registerHoverProvider(SPEC_SELECTOR, new ParamHover(fits)),
     vscode.languages.registerCodeLensProvider(SPEC_SELECTOR, lenses),

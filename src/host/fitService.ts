@@ -65,6 +65,10 @@ export class FitService extends Disposable {
     };
     this._register(specWatcher.onDidChange(onSpecDisk));
     this._register(specWatcher.onDidCreate(onSpecDisk));
+    // a spec released when its tab closed may come back in an editor before VS Code disposes its document
+    this._register(vscode.window.onDidChangeVisibleTextEditors(editors => {
+      for (const ed of editors) if (isSpecUri(ed.document.uri) && !this.entries.has(ed.document.uri.toString())) this.schedule(ed.document.uri, 0);
+    }));
     for (const d of vscode.workspace.textDocuments) if (isSpecUri(d.uri)) this.schedule(d.uri, 0);
   }
 
@@ -137,6 +141,7 @@ export class FitService extends Disposable {
     }, m => { progressReport?.(m); this._onDidChangeState.fire({ uri, state: 'fitting', message: m }); });
     clearTimeout(progressTimer);
     finish();
+    if (this.entries.get(uri.toString()) !== e) return undefined; // forgotten meanwhile (closed)
     if (outcome.kind === 'cancelled') {
       if (!this.pool.isRunning(uri.toString()) && !e.timer) { e.running = false; this._onDidChangeState.fire({ uri, state: this.state(uri) }); }
       return undefined;

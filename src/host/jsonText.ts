@@ -20,6 +20,12 @@ export function locateInText(text: string, path: JsonPath): (TextSpan & { exact:
       return { offset: key.offset, length: key.length, exact };
     }
     if (node === root) return { offset: root.offset, length: 1, exact };
+    if (node.type === 'object' && node.parent?.type === 'array') {
+      // an array element such as models[i]: point at its name rather than the whole block
+      const name = jsonc.findNodeAtLocation(node, ['name']);
+      if (name) return { offset: name.offset, length: name.length, exact };
+      return { offset: node.offset, length: 1, exact };
+    }
     return { offset: node.offset, length: node.length, exact };
   }
   return { offset: 0, length: 0, exact: false };

@@ -33,6 +33,9 @@ export interface PanelState { open: boolean; ready: boolean; postedVersion: numb
 export class PanelController extends Disposable implements vscode.WebviewPanelSerializer<WebviewState> {
   private readonly panels = new Map<string, PanelEntry>();
   private nextId = 1;
+  private readonly _onDidClosePanel = this._register(new vscode.EventEmitter<vscode.Uri>());
+  /** a spec's panel was closed */
+  readonly onDidClosePanel = this._onDidClosePanel.event;
 
   constructor(private readonly extensionUri: vscode.Uri, private readonly fits: FitService) {
     super();
@@ -107,8 +110,7 @@ export class PanelController extends Disposable implements vscode.WebviewPanelSe
       panel.onDidDispose(() => {
         entry.disposables.forEach(d => d.dispose());
         if (this.panels.get(specUri.toString()) === entry) this.panels.delete(specUri.toString());
-        // keep fitting only while the spec is open in an editor
-        if (!vscode.workspace.textDocuments.some(d => d.uri.toString() === specUri.toString())) this.fits.forget(specUri);
+        this._onDidClosePanel.fire(specUri);
       }),
     );
     if (!this.fits.last(specUri)) this.fits.schedule(specUri, 0);

@@ -4,7 +4,7 @@ import * as assert from 'assert';
 import * as vscode from 'vscode';
 import * as fs from 'fs';
 import * as path from 'path';
-import * as jsonc from 'jsonc-parser';
+import * as jsonc from 'jsonc-parser/lib/esm/main.js'; // the ES module build: the UMD main cannot be bundled
 import { api, fixture, workspaceDir, closeAll, until } from './util';
 import { isErrorReport } from '../../src/engine/report';
 

@@ -1,0 +1,293 @@
+// Real-browser check of the webview: builds the bundle with esbuild's API, loads the standalone HTML report and the
+// panel shell (with a stand-in acquireVsCodeApi) in headless Chromium via playwright-core, and checks what is drawn.
+// The sample report's numbers are invented for rendering (test/fixtures/reports/sample.fitreport.json), not fit results.
+// Screenshots go to test/e2e/shots/ (git-ignored) for a person to look at.
+import * as assert from 'assert';
+import * as fs from 'fs';
+import * as os from 'os';
+import * as path from 'path';
+import type { Browser, BrowserContext, Page } from 'playwright-core';
+import type { ErrorReport, FitReport, RunResult } from '../../src/engine/report';
+import { buildReportHtml, panelHtml } from '../../webview/html';
+import { panelCss, repoRoot, sampleReport, webviewBundle } from './webview-helpers';
+
+const CHROMIUM = process.env.CHROMIUM_PATH || '/usr/bin/chromium';
+const ARGS = ['--headless', '--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking',
+  '--disable-component-update', '--disable-sync'];
+const SHOTS = path.join(repoRoot, 'test', 'e2e', 'shots');
+
+/** Collects page errors, console errors/warnings (CSP violations are reported there) and failed requests. */
+function watch(page: Page): string[] {
+  const problems: string[] = [];
+  page.on('pageerror', e => problems.push(`pageerror: ${e.message}`));
+  page.on('console', m => {
+    // The test's own pixel reads (getImageData) trigger a performance hint; that one is not the page's problem.
+    if (m.text().includes('willReadFrequently')) return;
+    if (m.type() === 'error' || m.type() === 'warning') problems.push(`console ${m.type()}: ${m.text()}`);
+  });
+  page.on('requestfailed', r => problems.push(`request failed: ${r.url()}`));
+  page.on('request', r => { if (!r.url().startsWith('file:') && !r.url().startsWith('data:') && !r.url().startsWith('blob:')) problems.push(`network request: ${r.url()}`); });
+  return problems;
+}
+
+/** Number of pixels of each canvas that differ from its top-left (background) pixel. */
+async function inkedPixels(page: Page): Promise<number[]> {
+  return page.$$eval('canvas', cs => cs.map(c => {
+    const ctx = (c as HTMLCanvasElement).getContext('2d')!;
+    const { data } = ctx.getImageData(0, 0, (c as HTMLCanvasElement).width, (c as HTMLCanvasElement).height);
+    let n = 0;
+    for (let i = 0; i < data.length; i += 4) {
+      if (Math.abs(data[i]! - data[0]!) + Math.abs(data[i + 1]! - data[1]!) + Math.abs(data[i + 2]! - data[2]!) > 24) n++;
+    }
+    return n;
+  }));
+}
+
+/** A hash of the first canvas's pixels, to see that a redraw changed it. */
+async function canvasHash(page: Page): Promise<number> {
+  return page.$eval('canvas', c => {
+    const ctx = (c as HTMLCanvasElement).getContext('2d')!;
+    const { data } = ctx.getImageData(0, 0, (c as HTMLCanvasElement).width, (c as HTMLCanvasElement).height);
+    let h = 2166136261;
+    for (let i = 0; i < data.length; i += 7) h = Math.imul(h ^ data[i]!, 16777619) >>> 0;
+    return h;
+  });
+}
+
+/** A synthetic report with n points (seeded), built from the sample's first model, for the large-data path. */
+function bigReport(n: number): FitReport {
+  const r = sampleReport();
+  const m = r.models[0]!;
+  let s = 12345;
+  const rnd = () => (s = (s * 16807) % 2147483647) / 2147483647;
+  const x: number[] = [], y: number[] = [], fitted: number[] = [], residual: number[] = [], row: number[] = [];
+  for (let i = 0; i < n; i++) {
+    const xi = (48 * i) / n;
+    const f = 1.98 / (1 + Math.exp(-0.3 * (xi - 14.2)));
+    const yi = f + 0.04 * (rnd() + rnd() + rnd() - 1.5);
+    x.push(xi); y.push(yi); fitted.push(f); residual.push(yi - f); row.push(i + 1);
+  }
+  m.points = { row, x: { hours: x }, y, fitted, residual, standardized: residual.map(v => v / 0.02), leverage: residual.map(() => 3 / n), cooks: residual.map(() => 0) };
+  r.models = [m];
+  r.comparison = null;
+  r.title = `Large data: ${n} invented points`;
+  return r;
+}
+
+describe('webview in a real browser (headless Chromium)', function () {
+  this.timeout(120000);
+  let browser: Browser | null = null;
+  let dir = '';
+  let js = '';
+
+  before(async function () {
+    if (!fs.existsSync(CHROMIUM)) {
+      const msg = `Chromium not found at ${CHROMIUM} (set CHROMIUM_PATH): the real-browser webview checks did NOT run.`;
+      if (process.env.CI === 'true') throw new Error(msg);
+      console.warn(`\n  !!! ${msg}\n`);
+      this.skip();
+    }
+    js = await webviewBundle();
+    dir = fs.mkdtempSync(path.join(os.tmpdir(), 'cw-webview-'));
+    fs.mkdirSync(SHOTS, { recursive: true });
+    // eslint-disable-next-line @typescript-eslint/no-require-imports
+    const { chromium } = require('playwright-core') as typeof import('playwright-core');
+    browser = await chromium.launch({ executablePath: CHROMIUM, args: ARGS });
+  });
+
+  after(async function () {
+    await browser?.close();
+    if (dir) fs.rmSync(dir, { recursive: true, force: true });
+  });
+
+  async function openReport(reports: RunResult[], name: string, ctxOpts: Parameters<Browser['newContext']>[0] = {}): Promise<{ page: Page; problems: string[]; ctx: BrowserContext }> {
+    const file = path.join(dir, `${name}.html`);
+    fs.writeFileSync(file, buildReportHtml(reports, { js, css: panelCss() }));
+    const ctx = await browser!.newContext({ viewport: { width: 1180, height: 900 }, ...ctxOpts });
+    const page = await ctx.newPage();
+    const problems = watch(page);
+    await page.goto(`file://${file}`);
+    await page.waitForSelector('canvas');
+    await page.waitForTimeout(150);
+    return { page, problems, ctx };
+  }
+
+  it('draws the standalone report: plots inked, tables with the parameter names, log toggle, no errors', async function () {
+    const { page, problems, ctx } = await openReport([sampleReport()], 'report');
+    const ink = await inkedPixels(page);
+    assert.strictEqual(ink.length, 2, 'main plot and residual plot');
+    assert.ok(ink[0]! > 5000 && ink[1]! > 500, `canvases drawn (${ink.join(', ')} inked pixels)`);
+
+    const params = await page.$$eval('details[data-model="logistic"] .cw-params tbody tr td:first-child', tds => tds.map(t => t.textContent));
+    assert.deepStrictEqual(params, ['K', 'r', 'x0']);
+    const text = await page.innerText('body');
+    for (const s of ['Model comparison', 'AICc', 'Akaike weight', 'Predictions', 'extrapolated', 'Inverse predictions', 'Residual tests',
+      'Shapiro\u2013Wilk', 'rows used', 'bubble in cuvette', '\u2605 best', 'bad-cell', 'Expectations']) {
+      assert.ok(text.includes(s), `shows "${s}"`);
+    }
+    assert.ok(/R²\s+0\.99/.test(text), 'R² shown rounded');
+    await page.screenshot({ path: path.join(SHOTS, 'report.png'), fullPage: true });
+
+    const before = await canvasHash(page);
+    await page.click('button.cw-toggle:has-text("log x")');
+    await page.waitForTimeout(100);
+    assert.strictEqual(await page.getAttribute('button.cw-toggle:has-text("log x")', 'aria-pressed'), 'true');
+    assert.notStrictEqual(await canvasHash(page), before, 'plot redrawn on a log axis');
+    assert.ok((await page.innerText('.cw-note')).includes('not shown on the log axis'), 'says a point at x = 0 is hidden');
+    await page.screenshot({ path: path.join(SHOTS, 'report-logx.png') });
+
+    // Selecting another model moves the bands and residuals to it.
+    await page.click('.cw-chip[data-model="cubic"]');
+    await page.waitForTimeout(100);
+    assert.strictEqual(await page.getAttribute('.cw-chip[data-model="cubic"]', 'aria-pressed'), 'true');
+    assert.ok((await page.innerText('.cw-legend')).includes('confidence band (cubic)'));
+    assert.strictEqual(await page.$eval('details[data-model="cubic"]', d => (d as HTMLDetailsElement).open), true);
+
+    // Back to a linear axis: every point is drawn again.
+    await page.click('button.cw-toggle:has-text("log x")');
+    assert.strictEqual(await page.getAttribute('button.cw-toggle:has-text("log x")', 'aria-pressed'), 'false');
+    // Hovering a data point shows its row in the tooltip.
+    const pts = await page.evaluate(() => (window as unknown as { curvewrightViews: { pointPositions(): { x: number; y: number; row?: number }[] }[] }).curvewrightViews[0]!.pointPositions());
+    assert.strictEqual(pts.length, 25);
+    const target = pts[10]!;
+    const box = (await (await page.$('.cw-chart-main canvas'))!.boundingBox())!;
+    await page.mouse.move(box.x + target.x, box.y + target.y);
+    await page.waitForSelector('.cw-chart-main .cw-tooltip:not([hidden])');
+    const tip = await page.innerText('.cw-chart-main .cw-tooltip');
+    assert.ok(tip.startsWith(`row ${target.row}`) && tip.includes('hours = ') && tip.includes('residual = '), tip);
+    await page.screenshot({ path: path.join(SHOTS, 'report-tooltip.png'), clip: { x: box.x, y: box.y, width: box.width, height: box.height } });
+    await page.mouse.move(0, 0);
+    assert.deepStrictEqual(problems, []);
+    await ctx.close();
+  });
+
+  it('follows a dark colour scheme and forced colours (high contrast) with the same layout', async function () {
+    const dark = await openReport([sampleReport()], 'dark', { colorScheme: 'dark' });
+    const bg = await dark.page.evaluate(() => getComputedStyle(document.body).backgroundColor);
+    assert.strictEqual(bg, 'rgb(22, 26, 33)', 'our dark fallback background');
+    assert.ok((await inkedPixels(dark.page))[0]! > 5000);
+    await dark.page.screenshot({ path: path.join(SHOTS, 'report-dark.png'), fullPage: true });
+    assert.deepStrictEqual(dark.problems, []);
+    await dark.ctx.close();
+
+    const hc = await openReport([sampleReport()], 'hc', { colorScheme: 'dark', forcedColors: 'active' });
+    assert.ok(await hc.page.$('.cw-report.cw-hc'), 'high-contrast mode detected');
+    await hc.page.screenshot({ path: path.join(SHOTS, 'report-hc.png'), fullPage: true });
+    assert.deepStrictEqual(hc.problems, []);
+    await hc.ctx.close();
+  });
+
+  it('draws an ErrorReport as an error box with the message and location, and several specs as sections', async function () {
+    const err: ErrorReport = { version: 1, spec: 'assay.fitspec.json', error: { message: "unknown identifier 'K2' at column 5 \u2014 did you mean 'K'?", path: ['models', 1, 'formula'], location: { file: 'assay.fitspec.json', line: 12, column: 18 } } };
+    const { page, problems, ctx } = await openReport([sampleReport(), err], 'two');
+    assert.strictEqual(await page.$$eval('section.cw-spec', s => s.length), 2);
+    const box = await page.innerText('#cw-spec-2 .cw-error');
+    assert.ok(box.includes('could not be run') && box.includes("unknown identifier 'K2'") && box.includes('assay.fitspec.json:12:18'), box);
+    assert.ok((await page.innerText('nav.cw-toc')).includes('assay.fitspec.json'));
+    assert.deepStrictEqual(problems, []);
+    await ctx.close();
+  });
+
+  it('draws 10^5 points decimated (row identity kept for the tooltip) without errors', async function () {
+    const n = 100000;
+    const t0 = Date.now();
+    const { page, problems, ctx } = await openReport([bigReport(n)], 'big');
+    const ms = Date.now() - t0;
+    const legend = await page.innerText('.cw-legend');
+    const m = /data \(([\d\u2009 ]+) of 100\u2009000 drawn\)/.exec(legend);
+    assert.ok(m, `decimated legend: ${legend}`);
+    const drawn = Number(m[1]!.replace(/\D/g, ''));
+    assert.ok(drawn < n / 2, `${drawn} points drawn`);
+    // Timing is printed, not asserted (speed belongs in bench/).
+    console.log(`      load + draw of ${n} points: ${ms} ms, ${drawn} drawn`);
+    await page.screenshot({ path: path.join(SHOTS, 'report-big.png') });
+    assert.deepStrictEqual(problems, []);
+    await ctx.close();
+  });
+
+  it('works as the VS Code panel: Ready handshake, in-place update, reveal, export, state, snapshot', async function () {
+    fs.writeFileSync(path.join(dir, 'webview.js'), js);
+    fs.writeFileSync(path.join(dir, 'panel.css'), panelCss());
+    const nonce = 'TestNonceAbCdEfGh0123456789';
+    const file = path.join(dir, 'panel.html');
+    fs.writeFileSync(file, panelHtml({ scriptUri: 'webview.js', cssUri: 'panel.css', nonce, cspSource: 'file:' }));
+    const ctx = await browser!.newContext({ viewport: { width: 1100, height: 850 } });
+    const page = await ctx.newPage();
+    const problems = watch(page);
+    // A stand-in for the webview API, as a string: tsx-compiled functions may carry helpers the page does not have.
+    await page.addInitScript(`
+      window.__posted = [];
+      window.__state = window.__state;
+      window.acquireVsCodeApi = function () {
+        return {
+          postMessage: function (m) { window.__posted.push(JSON.parse(JSON.stringify(m))); },
+          getState: function () { return window.__state; },
+          setState: function (s) { window.__state = s; },
+        };
+      };`);
+    await page.goto(`file://${file}`);
+    const posted = () => page.evaluate(() => (window as unknown as { __posted: { type: string; [k: string]: unknown }[] }).__posted);
+    await page.waitForFunction(() => (window as unknown as { __posted: { type: string }[] }).__posted.some(m => m.type === 'ready'))
+      .catch((e: Error) => { throw new Error(`${e.message}\n${problems.join('\n')}`); });
+    assert.deepStrictEqual((await posted()).find(m => m.type === 'ready'), { type: 'ready', version: 1 });
+
+    const send = (msg: unknown) => page.evaluate(m => window.postMessage(m, '*'), msg);
+    const r1 = sampleReport();
+    await send({ type: 'report', report: r1, specUri: 'file:///w/culture-b.fitspec.json', specName: 'culture-b.fitspec.json', version: 1 });
+    await page.waitForSelector('canvas');
+    await page.waitForTimeout(100);
+    await page.$eval('canvas', c => { (c as HTMLCanvasElement & { __mark?: number }).__mark = 42; });
+
+    // A refit: the same canvas is reused (no DOM rebuild of the plot), the new title and numbers show.
+    const r2 = sampleReport();
+    r2.title = 'Culture B after refit';
+    r2.models[0]!.params.K!.value = 2.0123;
+    await send({ type: 'report', report: r2, specUri: 'file:///w/culture-b.fitspec.json', specName: 'culture-b.fitspec.json', version: 2 });
+    await page.waitForTimeout(100);
+    assert.strictEqual(await page.$eval('canvas', c => (c as HTMLCanvasElement & { __mark?: number }).__mark), 42, 'canvas kept');
+    assert.strictEqual(await page.innerText('.cw-title'), 'Culture B after refit');
+    assert.ok((await page.innerText('details[data-model="logistic"] .cw-params')).includes('2.012'));
+    // An older report arriving late is ignored.
+    await send({ type: 'report', report: r1, specUri: 'file:///w/culture-b.fitspec.json', specName: 'culture-b.fitspec.json', version: 1 });
+    await page.waitForTimeout(50);
+    assert.strictEqual(await page.innerText('.cw-title'), 'Culture B after refit');
+
+    // Clicking a problem reveals its JSON path in the spec; its row link opens the data row.
+    await page.click('.cw-problem-warning button.cw-problem-btn >> nth=0');
+    await page.click('.cw-row-link >> nth=0');
+    await page.click('.cw-chip[data-model="gompertz"]');
+    await page.click('button.cw-btn:has-text("PNG")');
+    await page.click('button.cw-btn:has-text("CSV")');
+    await send({ type: 'snapshot?', id: 7 });
+    await page.waitForTimeout(100);
+    const msgs = await posted();
+    assert.deepStrictEqual(msgs.find(m => m.type === 'reveal'), { type: 'reveal', path: ['data', 'y'] });
+    assert.deepStrictEqual(msgs.find(m => m.type === 'revealRow'), { type: 'revealRow', row: 18 });
+    const png = msgs.find(m => m.type === 'export' && m.format === 'png')!;
+    assert.ok(String(png.data).startsWith('data:image/png;base64,') && String(png.data).length > 10000, 'PNG data URL');
+    assert.strictEqual(png.suggestedName, 'culture-b-plot.png');
+    const csv = msgs.find(m => m.type === 'export' && m.format === 'csv')!;
+    assert.ok(String(csv.data).startsWith('model,parameter,value'));
+    assert.notStrictEqual(csv.id, png.id, 'request ids differ');
+    const snap = msgs.find(m => m.type === 'snapshot')!;
+    assert.strictEqual(snap.inReplyTo, 7);
+    assert.strictEqual(snap.version, 2);
+    assert.strictEqual(snap.canvases, 2);
+    assert.ok(String(snap.text).includes('Model comparison'));
+    const state = await page.evaluate(() => (window as unknown as { __state: { selectedModel?: string; specUri: string; report?: unknown } }).__state);
+    assert.strictEqual(state.selectedModel, 'gompertz');
+    assert.strictEqual(state.specUri, 'file:///w/culture-b.fitspec.json');
+    assert.ok(state.report, 'last report persisted');
+    await page.screenshot({ path: path.join(SHOTS, 'panel.png') });
+
+    // A reload restores from the persisted state before the host answers.
+    const saved = state;
+    await page.addInitScript(`window.__state = ${JSON.stringify(saved)};`);
+    await page.reload();
+    await page.waitForSelector('canvas');
+    assert.strictEqual(await page.innerText('.cw-title'), 'Culture B after refit');
+    assert.strictEqual(await page.getAttribute('.cw-chip[data-model="gompertz"]', 'aria-pressed'), 'true');
+    assert.deepStrictEqual(problems, []);
+    await ctx.close();
+  });
+});

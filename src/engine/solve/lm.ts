@@ -107,7 +107,7 @@ function finish(P: Prepared, run: RunResult): SolveResult {
   const info = ok ? solutionInfo(P, theta, A, m) : { rank: 0, unidentifiable: [], atBound: Array.from({ length: P.p }, (): 'min' | 'max' | null => null) };
   let termination = run.termination;
   let message = run.message;
-  if (ok && CONVERGED.includes(termination) && termination !== 'exact' && info.rank < P.q) {
+  if (ok && CONVERGED.includes(termination) && info.rank < P.q) {
     termination = 'singular';
     message = `the Jacobian has rank ${info.rank} < ${P.q} free parameters at the solution: some parameters are not identifiable from these data`;
   }

@@ -180,7 +180,7 @@ describe('stats analyzeModel', () => {
     assert.equal(relm.stats.chi2P, null);
     // absolute mode uses normal quantiles (σ known)
     const z = normalQuantile(0.975);
-    rel(abs.params.b.ci![1] - abs.params.b.value, z * Math.sqrt(varB), 1e-10, 'z interval');
+    rel(abs.params.b.ci![1]! - abs.params.b.value, z * Math.sqrt(varB), 1e-10, 'z interval');
     // weighted centred R² = 1 − Σw e²/Σw (y − ȳ_w)²
     const yw = LY.reduce((s, y, i) => s + w[i] * y, 0) / sw;
     const sst = LY.reduce((s, y, i) => s + w[i] * (y - yw) ** 2, 0);

@@ -24,6 +24,7 @@ export interface FitCase {
   solveFor?: number[];
   confidence?: number;
   options?: ModelAnalysisInput['options'];
+  maxIterations?: number;
 }
 
 export function makeInput(c: FitCase): ModelAnalysisInput {
@@ -43,7 +44,7 @@ export function makeInput(c: FitCase): ModelAnalysisInput {
       n: y.length, p, y, w: w ?? undefined,
       model: (theta, out, J) => (J ? compiled.evaluateWithJacobian(theta, X, out, J) : compiled.evaluate(theta, X, out)),
     },
-    { theta0, lower, upper, fixed, linear: compiled.linear },
+    { theta0, lower, upper, fixed, linear: compiled.linear, maxIterations: c.maxIterations },
   );
   return {
     index: c.index ?? 0,
@@ -80,3 +81,20 @@ export const PUROMYCIN = {
   conc: [0.02, 0.02, 0.06, 0.06, 0.11, 0.11, 0.22, 0.22, 0.56, 0.56, 1.1, 1.1],
   rate: [76, 47, 97, 107, 123, 139, 159, 152, 191, 201, 207, 200],
 };
+
+/** Seeded standard-normal noise (LCG of Numerical Recipes + Box–Muller), so test data are reproducible. */
+export function noise(n: number, seed = 1): number[] {
+  let state = seed >>> 0;
+  const u = () => {
+    state = (Math.imul(state, 1664525) + 1013904223) >>> 0;
+    return (state + 0.5) / 4294967296;
+  };
+  const out: number[] = [];
+  while (out.length < n) {
+    const r = Math.sqrt(-2 * Math.log(u()));
+    const t = 2 * Math.PI * u();
+    out.push(r * Math.cos(t));
+    if (out.length < n) out.push(r * Math.sin(t));
+  }
+  return out;
+}

@@ -170,7 +170,12 @@ export function analyzeModel(input: ModelAnalysisInput): ModelReport {
         ...(badRows.length ? { rows: badRows.slice(0, 100) } : {}),
       });
     }
-    if (!res.converged) {
+    const singular = res.termination === 'singular' && res.unidentifiable.length > 0;
+    if (singular) {
+      const names = res.unidentifiable.map((j) => params[j]);
+      problems.push(rankDeficient(input.name, names, res.rank, pFree, base));
+    }
+    if (!res.converged && !singular) {
       problems.push({
         code: 'no-convergence',
         severity: 'error',
@@ -413,6 +418,18 @@ export function analyzeModel(input: ModelAnalysisInput): ModelReport {
   return report;
 }
 
+function rankDeficient(name: string, names: string[], rank: number, pFree: number, base: (string | number)[]): Problem {
+  return {
+    code: 'rank-deficient',
+    severity: 'error',
+    message:
+      `${name}: the fit is singular (rank ${rank} of ${pFree} free parameters) — ${quoteList(names)} cannot be determined from these data, ` +
+      `because a change in ${names.length > 1 ? 'them' : 'it'} can be offset exactly by the other parameters or the data do not vary enough. ` +
+      `Their standard errors are not reported. Fix ${names.length > 1 ? 'one of them' : 'it'} ("fixed": true with a start), remove a redundant term, or add data that vary more.`,
+    path: names.length === 1 ? [...base, 'params', names[0]] : base,
+  };
+}
+
 function terminationAdvice(t: string): string {
   switch (t) {
     case 'iteration-limit':
@@ -465,18 +482,7 @@ function detectProblems(input: ModelAnalysisInput, report: ModelReport, k: Facts
   const name = input.name;
   const p = params.length;
 
-  if (k.unidentifiable.length > 0) {
-    const names = k.unidentifiable.map((j) => params[j]);
-    problems.push({
-      code: 'rank-deficient',
-      severity: 'error',
-      message:
-        `${name}: the fit is singular (rank ${k.rank} of ${k.pFree} free parameters) — ${quoteList(names)} cannot be determined from these data, ` +
-        `because a change in ${names.length > 1 ? 'them' : 'it'} can be offset exactly by the other parameters or the data do not vary enough. ` +
-        `Their standard errors are not reported. Fix ${names.length > 1 ? 'one of them' : 'it'} ("fixed": true with a start), remove a redundant term, or add data that vary more.`,
-      path: names.length === 1 ? [...base, 'params', names[0]] : base,
-    });
-  }
+  if (k.unidentifiable.length > 0) problems.push(rankDeficient(name, k.unidentifiable.map((j) => params[j]), k.rank, k.pFree, base));
 
   for (let j = 0; j < p; j++) {
     const pr = report.params[params[j]];

@@ -62,28 +62,32 @@ export function profileIntervals(ctx: ProfileContext): ProfileResult {
     mask[j] = true;
     const bounds: ProfileBound[] = [];
     for (const dir of [-1, 1]) {
+      // warm starts come only from accepted points inside the interval (τ < q): a refit far outside may wander off
       let warm = Float64Array.from(ctx.theta);
+      const refit = (from: Float64Array, v: number): { S: number; theta: Float64Array; ok: boolean } => {
+        const start = Float64Array.from(from);
+        start[j] = v;
+        if (nFree === 1) return { S: sse(start), theta: start, ok: true };
+        refits++;
+        const remaining = Math.max(0.05, (ctx.deadline - Date.now()) / 1000);
+        const r = solve(ctx.problem, {
+          theta0: start, lower: ctx.lower, upper: ctx.upper, fixed: mask,
+          maxIterations: ctx.maxIterations ?? 200, seconds: remaining, shouldStop: ctx.shouldStop,
+        });
+        if (r.termination === 'cancelled' || r.termination === 'time-limit') throw TIMEOUT;
+        return { S: r.sse, theta: r.theta, ok: r.converged && Number.isFinite(r.sse) };
+      };
       const tau = (v: number): number | null => {
         if (Date.now() > ctx.deadline || ctx.shouldStop?.()) throw TIMEOUT;
-        const start = Float64Array.from(warm);
-        start[j] = v;
-        let S: number;
-        if (nFree === 1) {
-          S = sse(start);
-        } else {
-          refits++;
-          const remaining = Math.max(0.05, (ctx.deadline - Date.now()) / 1000);
-          const r = solve(ctx.problem, {
-            theta0: start, lower: ctx.lower, upper: ctx.upper, fixed: mask,
-            maxIterations: ctx.maxIterations ?? 200, seconds: remaining, shouldStop: ctx.shouldStop,
-          });
-          if (r.termination === 'cancelled' || r.termination === 'time-limit') throw TIMEOUT;
-          if (!Number.isFinite(r.sse)) return null;
-          S = r.sse;
-          warm = Float64Array.from(r.theta);
+        let best = refit(warm, v);
+        if (!best.ok && warm !== ctx.theta) {
+          const again = refit(ctx.theta, v);
+          if (again.ok || (Number.isFinite(again.S) && !(again.S >= best.S))) best = again;
         }
-        if (!Number.isFinite(S)) return null;
-        return Math.sqrt(Math.max(0, S - ctx.sseHat) / ctx.scale);
+        if (!Number.isFinite(best.S)) return null;
+        const t = Math.sqrt(Math.max(0, best.S - ctx.sseHat) / ctx.scale);
+        if (best.ok && t < ctx.q) warm = Float64Array.from(best.theta);
+        return t;
       };
       bounds.push(walk(ctx, j, dir, tau));
     }
@@ -99,6 +103,8 @@ function walk(ctx: ProfileContext, j: number, dir: number, tau: (v: number) => n
   const limit = dir < 0 ? ctx.lower[j] : ctx.upper[j];
   const se = ctx.se[j];
   let delta = Number.isFinite(se) && se > 0 ? ctx.q * se : Math.max(Math.abs(est) * 0.1, 1e-6);
+  // a huge SE means the quadratic picture is poor: start with smaller steps (they grow up to 4× per step)
+  if (est !== 0 && delta > 0.5 * Math.abs(est)) delta = 0.5 * Math.abs(est);
   const maxReach = 1e4 * (Math.abs(est) + (Number.isFinite(se) ? se : 0) + 1e-12);
   let prevV = est;
   let prevT = 0;
@@ -112,7 +118,10 @@ function walk(ctx: ProfileContext, j: number, dir: number, tau: (v: number) => n
       }
       const t = tau(v);
       if (t === null) return { value: null, status: 'failed' };
-      if (t >= ctx.q) return { value: refine(ctx, tau, prevV, prevT, v, t), status: 'found' };
+      if (t >= ctx.q) {
+        const value = refine(ctx, tau, prevV, prevT, v, t);
+        return value === null ? { value: null, status: 'failed' } : { value, status: 'found' };
+      }
       if (atLimit) return { value: null, status: 'bound' };
       // extrapolate τ linearly in θ_j, growing the step by 1.2× to 4×
       const growth = t > 0 ? Math.min(4, Math.max(1.2, (1.1 * ctx.q) / t)) : 4;
@@ -128,8 +137,8 @@ function walk(ctx: ProfileContext, j: number, dir: number, tau: (v: number) => n
   }
 }
 
-/** Illinois (modified regula falsi) on τ(v) − q between a (τ < q) and b (τ ≥ q). */
-function refine(ctx: ProfileContext, tau: (v: number) => number | null, a: number, ta: number, b: number, tb: number): number {
+/** Illinois (modified regula falsi) on τ(v) − q between a (τ < q) and b (τ ≥ q); null when a refit fails or it does not settle. */
+function refine(ctx: ProfileContext, tau: (v: number) => number | null, a: number, ta: number, b: number, tb: number): number | null {
   let ga = ta - ctx.q;
   let gb = tb - ctx.q;
   let side = 0;
@@ -139,7 +148,7 @@ function refine(ctx: ProfileContext, tau: (v: number) => number | null, a: numbe
     if (Math.abs(ga) <= tol) return a;
     const c = (a * gb - b * ga) / (gb - ga);
     const tc = tau(c);
-    if (tc === null) return Math.abs(ga) < Math.abs(gb) ? a : b;
+    if (tc === null) return null;
     const gc = tc - ctx.q;
     if (gc === 0) return c;
     if ((gc > 0) === (gb > 0)) {
@@ -154,5 +163,6 @@ function refine(ctx: ProfileContext, tau: (v: number) => number | null, a: numbe
       side = -1;
     }
   }
-  return Math.abs(ga) < Math.abs(gb) ? a : b;
+  const best = Math.abs(ga) < Math.abs(gb) ? { v: a, g: ga } : { v: b, g: gb };
+  return Math.abs(best.g) <= 1e-3 * ctx.q ? best.v : null;
 }

@@ -14,6 +14,7 @@ import * as path from 'path';
 import Papa from 'papaparse';
 import type { ModelSpec } from './report';
 import { readHeader } from './data';
+import { columnRef } from './spec';
 
 export interface Candidate {
   id: string;
@@ -192,11 +193,6 @@ export async function suggestSpec(csvPath: string, opts: { x?: string; y?: strin
   const finiteX = xs.filter((v, i) => Number.isFinite(v) && Number.isFinite(ys[i]));
   const xMin = finiteX.length ? Math.min(...finiteX) : 0;
   return { columns, x: xCol.name, y: yCol.name, candidates: candidatesFor(classifyShape(xs, ys), xMin) };
-}
-
-/** A column name as it can be written in data.x / data.y: bare when it is an identifier, else in backticks. */
-export function columnRef(name: string): string {
-  return /^[A-Za-z_][A-Za-z0-9_]*$/.test(name) ? name : '`' + name.replace(/`/g, '') + '`';
 }
 
 function toPosix(p: string): string {

@@ -147,6 +147,7 @@ describe('csv: readTable', () => {
     for (let i = 0; i < 50; i++) lines.push(`${i},${i % 2 ? 'bad' : i}`);
     const t = await readTable(write('many.csv', lines.join('\n')), { columns: ['x', 'y'], maxProblems: 5 });
     assert.strictEqual(t.dropped.length, 25);
+    assert.strictEqual(t.droppedTotal, 25);
     assert.strictEqual(t.problems.length, 6);
     assert.match(t.problems[5].message, /20 more rows with bad cells were left out \(25 in all\)/);
   });

@@ -4,7 +4,7 @@ import * as assert from 'assert';
 import * as fs from 'fs';
 import * as os from 'os';
 import * as path from 'path';
-import { columnsNeeded, prepareData, readHeader, readTable } from '../../src/engine/data';
+import { columnPaths, columnsNeeded, prepareData, readHeader, readTable } from '../../src/engine/data';
 import type { Table } from '../../src/engine/data';
 import { parseSpecText, validateSpec, type NormalizedSpec } from '../../src/engine/spec';
 
@@ -41,6 +41,19 @@ describe('data: columnsNeeded', () => {
     const { spec } = await setup(CSV, { x: 'hours', y: 'od600', weight: '1/y^2', where: 'x < 6' });
     assert.deepStrictEqual(columnsNeeded(spec), ['hours', 'od600']);
     assert.deepStrictEqual(columnsNeeded(spec, ['hours', 'od600', 'x']), ['hours', 'od600', 'x'], 'a real column named x is read');
+  });
+});
+
+describe('data: columnPaths', () => {
+  it('maps each column to the first data key that reads it', async () => {
+    const { spec } = await setup(CSV, { x: { t: 'hours', T: 'temp_c' }, y: 'od600 / od_sd', sigma: 'od_sd', where: 'reactor == 1' }, [{ name: 'm', formula: 'a*t + b*T' }]);
+    assert.deepStrictEqual(columnPaths(spec), {
+      hours: ['data', 'x', 't'],
+      temp_c: ['data', 'x', 'T'],
+      od600: ['data', 'y'],
+      od_sd: ['data', 'y'],
+      reactor: ['data', 'where'],
+    });
   });
 });
 
@@ -128,6 +141,19 @@ describe('data: prepareData', () => {
     const r2 = await setup(csv, { x: 'x', y: 'y', weight: 's' });
     const d2 = prepareData(r2.spec, r2.table);
     assert.deepStrictEqual(d2.problems.find((q) => q.code === 'bad-weight')?.rows, [2, 3]);
+  });
+
+  it('many non-finite rows: counted in full, listed up to a limit', async () => {
+    const lines = ['x,y'];
+    for (let i = 1; i <= 3000; i++) lines.push(`${i},${i % 3 === 0 ? 1 : -1}`);
+    const { spec, table } = await setup(lines.join('\n'), { x: 'x', y: 'log(y)' });
+    const d = prepareData(spec, table);
+    assert.strictEqual(d.y.length, 1000);
+    const p = d.problems.find((q) => q.code === 'non-finite-value');
+    assert.ok(p && p.rows);
+    assert.strictEqual(p.rows.length, 1000);
+    assert.match(p.message, /in 2000 rows \(data rows 1, 2, 4, 5, 7, 8, 10, 11, …\)/);
+    assert.strictEqual(d.dropped.length, 2000);
   });
 
   it('rows dropped while reading are kept in dropped, merged in row order', async () => {

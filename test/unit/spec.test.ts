@@ -249,6 +249,13 @@ describe('spec: validateSpec reports every problem with path and location', () =
     assert.ok(r.spec);
   });
 
+  it("a formula in x while data.x binds other names is a warning ('x' would be a parameter)", () => {
+    const r = check(spec('{ "name": "m", "formula": "a*exp(-k*x)" }', '', '"file": "d.csv", "x": { "t": "hours" }, "y": "od600"'));
+    const p = one(r.problems, 'spec-param-like-variable');
+    assert.strictEqual(p.severity, 'warning');
+    assert.match(p.message, /uses 'x', but data\.x binds 't'/);
+  });
+
   it('bounds: min > max, start outside [min, max], fixed without start; non-object param', () => {
     const text = spec('{ "name": "m", "formula": "a*exp(b*x) + c + d", "params": { "a": { "min": 5, "max": 1 }, "b": { "start": -1, "min": 0 }, "c": { "fixed": true }, "d": 3 } }');
     const r = check(text);

@@ -35,6 +35,11 @@ export interface ReadTableOptions extends ReadOptions {
   maxProblems?: number;
 }
 
+/** dropped-row records kept in a Table (a file of millions of bad rows must not exhaust memory) */
+const MAX_DROPPED_LISTED = 10000;
+/** data rows listed in one summary problem */
+const MAX_ROWS_LISTED = 1000;
+
 const NUMBER_DOT = /^[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?$/;
 const NUMBER_COMMA = /^[+-]?(?:\d+,?\d*|,\d+)(?:[eE][+-]?\d+)?$/;
 
@@ -320,6 +325,7 @@ export async function readTable(file: string, opts: ReadTableOptions): Promise<T
   const rowsOut = new Growing(new Int32Array(1024), (n) => new Int32Array(n));
   const linesOut = new Growing(new Int32Array(1024), (n) => new Int32Array(n));
   const dropped: Table['dropped'] = [];
+  let droppedTotal = 0;
   const problems: Problem[] = [];
   const ragged: number[] = [];
   let raggedFields = 0;
@@ -335,8 +341,9 @@ export async function readTable(file: string, opts: ReadTableOptions): Promise<T
         column,
         row,
       });
-    dropped.push({ row, line, column, reason });
-    if (dropped.length <= maxProblems)
+    droppedTotal++;
+    if (dropped.length < MAX_DROPPED_LISTED) dropped.push({ row, line, column, reason });
+    if (droppedTotal <= maxProblems)
       problems.push({
         code: 'bad-cell',
         severity: 'warning',
@@ -402,14 +409,14 @@ export async function readTable(file: string, opts: ReadTableOptions): Promise<T
       { file: label, line: ragged[0] },
     );
   if (dataRow === 0) throw new DataError(`${label} has a header but no data rows — add rows below the header line`, { file: label });
-  if (dropped.length > maxProblems)
+  if (droppedTotal > maxProblems)
     problems.push({
       code: 'bad-cell',
       severity: 'warning',
-      message: `${label}: ${dropped.length - maxProblems} more rows with bad cells were left out (${dropped.length} in all) — see data.dropped in the report`,
+      message: `${label}: ${droppedTotal - maxProblems} more rows with bad cells were left out (${droppedTotal} in all) — see data.dropped in the report`,
       path: ['data', 'file'],
       location: { file: label },
-      rows: dropped.slice(maxProblems).map((d) => d.row),
+      rows: dropped.slice(maxProblems, maxProblems + MAX_ROWS_LISTED).map((d) => d.row),
     });
   const out: Record<string, Float64Array> = {};
   wanted.forEach((c, k) => (out[c] = buffers[k].done()));
@@ -421,6 +428,7 @@ export async function readTable(file: string, opts: ReadTableOptions): Promise<T
     line: linesOut.done(),
     totalRows: dataRow,
     dropped,
+    droppedTotal,
     problems,
     hash,
   };

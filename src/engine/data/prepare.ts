@@ -64,9 +64,34 @@ export function columnsNeeded(spec: NormalizedSpec, header?: readonly string[]):
   return all;
 }
 
-function rowList(rows: number[], max = 8): string {
+/**
+ * For each CSV column a spec uses, the spec path of the first data key that uses it (data.x…, data.y, data.sigma,
+ * data.weight, data.where): pass as readTable's columnPaths so a bad cell points at the key that reads the column.
+ */
+export function columnPaths(spec: NormalizedSpec, header?: readonly string[]): Record<string, JsonPath> {
+  const d = spec.data;
+  const vars = Object.keys(d.x);
+  const extra = [...vars, 'y'];
+  const out: Record<string, JsonPath> = {};
+  const add = (names: string[], p: JsonPath) => {
+    for (const n of names) if (!(n in out)) out[n] = p;
+  };
+  for (const v of vars) add(expressionColumns(d.x[v], false, header, []), vars.length === 1 && v === 'x' ? ['data', 'x'] : ['data', 'x', v]);
+  add(expressionColumns(d.y, false, header, []), ['data', 'y']);
+  if (d.sigma !== undefined) add(expressionColumns(d.sigma, false, header, []), ['data', 'sigma']);
+  if (d.weight !== undefined) add(expressionColumns(d.weight, false, header, extra), ['data', 'weight']);
+  if (d.where !== undefined) add(expressionColumns(d.where, true, header, extra), ['data', 'where']);
+  return out;
+}
+
+/** data rows listed in one problem */
+const MAX_ROWS_LISTED = 1000;
+/** dropped-row records kept (beyond this only counted) */
+const MAX_DROPPED_LISTED = 10000;
+
+function rowList(rows: number[], total: number, max = 8): string {
   const shown = rows.slice(0, max).join(', ');
-  return rows.length > max ? `${shown}, … (${rows.length} rows)` : shown;
+  return total > max ? `${shown}, …` : shown;
 }
 
 /**
@@ -163,13 +188,34 @@ export function prepareData(spec: NormalizedSpec, table: Table): PreparedData {
   // where, then finiteness of every value
   const keep = new Uint8Array(N);
   let filtered = 0;
-  const bad: { role: string; text: string; p: JsonPath; rows: number[]; code: string; why: string }[] = [];
-  const badEntry = (role: string, text: string, p: JsonPath, code: string, why: string) => {
+  interface Bad {
+    role: string;
+    text: string;
+    p: JsonPath;
+    code: string;
+    why: string;
+    /** the first rows (up to MAX_ROWS_LISTED) */
+    rows: number[];
+    count: number;
+    note(row: number): void;
+  }
+  const bad: Bad[] = [];
+  const badEntry = (role: string, text: string, p: JsonPath, code: string, why: string): Bad => {
     let b = bad.find((e) => e.role === role && e.code === code);
-    if (!b) bad.push((b = { role, text, p, rows: [], code, why }));
+    if (!b) {
+      const entry: Bad = {
+        role, text, p, code, why, rows: [], count: 0,
+        note(row: number) {
+          entry.count++;
+          if (entry.rows.length < MAX_ROWS_LISTED) entry.rows.push(row);
+        },
+      };
+      bad.push((b = entry));
+    }
     return b;
   };
   const newlyDropped: Table['dropped'] = [];
+  let droppedHere = 0;
   for (let i = 0; i < N; i++) {
     const row = table.row[i];
     if (excludedAt.has(row)) continue;
@@ -185,30 +231,31 @@ export function prepareData(spec: NormalizedSpec, table: Table): PreparedData {
       const v = (Xall[k] as Float64Array)[i];
       if (!Number.isFinite(v)) {
         const role = variables.length === 1 && variables[0] === 'x' ? 'data.x' : `data.x.${variables[k]}`;
-        badEntry(role, d.x[variables[k]], xPath(variables[k]), 'non-finite-value', 'is not a finite number').rows.push(row);
+        badEntry(role, d.x[variables[k]], xPath(variables[k]), 'non-finite-value', 'is not a finite number').note(row);
         reason = { column: d.x[variables[k]], reason: `${role} = ${d.x[variables[k]]} is ${v}` };
       }
     }
     if (!reason && !Number.isFinite(yAll[i])) {
-      badEntry('data.y', d.y, ['data', 'y'], 'non-finite-value', 'is not a finite number').rows.push(row);
+      badEntry('data.y', d.y, ['data', 'y'], 'non-finite-value', 'is not a finite number').note(row);
       reason = { column: d.y, reason: `data.y = ${d.y} is ${yAll[i]}` };
     }
     if (!reason && sigmaAll) {
       const s = sigmaAll[i];
       if (!(Number.isFinite(s) && s > 0)) {
-        badEntry('data.sigma', d.sigma as string, ['data', 'sigma'], 'bad-sigma', 'is not a positive finite number').rows.push(row);
+        badEntry('data.sigma', d.sigma as string, ['data', 'sigma'], 'bad-sigma', 'is not a positive finite number').note(row);
         reason = { column: d.sigma as string, reason: `sigma = ${s} (must be a positive number)` };
       }
     }
     if (!reason && weightAll) {
       const w = weightAll[i];
       if (!(Number.isFinite(w) && w > 0)) {
-        badEntry('data.weight', d.weight as string, ['data', 'weight'], 'bad-weight', 'is not a positive finite number').rows.push(row);
+        badEntry('data.weight', d.weight as string, ['data', 'weight'], 'bad-weight', 'is not a positive finite number').note(row);
         reason = { column: d.weight as string, reason: `weight = ${w} (must be a positive number)` };
       }
     }
     if (reason) {
-      newlyDropped.push({ row, line: table.line[i], column: reason.column, reason: reason.reason });
+      droppedHere++;
+      if (newlyDropped.length < MAX_DROPPED_LISTED) newlyDropped.push({ row, line: table.line[i], column: reason.column, reason: reason.reason });
       continue;
     }
     keep[i] = 1;
@@ -221,7 +268,7 @@ export function prepareData(spec: NormalizedSpec, table: Table): PreparedData {
     problems.push({
       code: b.code,
       severity: 'warning',
-      message: `${b.role} = ${b.text} ${b.why} in ${b.rows.length} row${b.rows.length === 1 ? '' : 's'} (data row${b.rows.length === 1 ? '' : 's'} ${rowList(b.rows)}) — ${fix}`,
+      message: `${b.role} = ${b.text} ${b.why} in ${b.count} row${b.count === 1 ? '' : 's'} (data row${b.count === 1 ? '' : 's'} ${rowList(b.rows, b.count)}) — ${fix}`,
       path: b.p,
       location: { file: label, row: b.rows[0] },
       rows: b.rows,
@@ -248,7 +295,7 @@ export function prepareData(spec: NormalizedSpec, table: Table): PreparedData {
     problems.push({
       code: 'no-data',
       severity: 'error',
-      message: `no data rows are left to fit in ${label} (${table.totalRows} rows, ${table.dropped.length + newlyDropped.length} dropped, ${excluded.length} excluded, ${filtered} filtered out by data.where) — check data.where, data.exclude and the columns`,
+      message: `no data rows are left to fit in ${label} (${table.totalRows} rows, ${(table.droppedTotal ?? table.dropped.length) + droppedHere} dropped, ${excluded.length} excluded, ${filtered} filtered out by data.where) — check data.where, data.exclude and the columns`,
       path: d.where !== undefined && filtered > 0 ? ['data', 'where'] : ['data'],
     });
   const dropped = [...table.dropped, ...newlyDropped].sort((a, b) => a.row - b.row);

@@ -15,8 +15,10 @@ export interface Table {
   line: Int32Array;
   /** total data rows in the file, kept or dropped */
   totalRows: number;
-  /** rows dropped for bad cells */
+  /** rows dropped for bad cells (the first 10,000 when there are more; see droppedTotal) */
   dropped: { row: number; line: number; column: string; reason: string }[];
+  /** number of rows dropped for bad cells, also beyond those listed in `dropped` */
+  droppedTotal?: number;
   /** data problems found while reading */
   problems: Problem[];
   /** sha256 of the file bytes, as "sha256:<hex>" */

@@ -584,6 +584,14 @@ function checkModel(c: Checker, ctx: ValidateContext, m: unknown, i: number, var
         formulaSpans = new Map();
         for (const id of formulaIdentifiers(f)) if (!formulaSpans.has(id.name)) formulaSpans.set(id.name, id.span.start);
         if (params.length === 0) c.add('spec-formula', [...P, 'formula'], `the formula of ${who} has no parameters to fit — every name in it is a variable or constant`);
+        // a formula written in x while data.x binds other names: x would silently become a fitted parameter
+        if (params.includes('x') && !variables.includes('x'))
+          c.add(
+            'spec-param-like-variable',
+            [...P, 'formula'],
+            `the formula of ${who} uses 'x', but data.x binds ${quoteList(variables)}, so 'x' would be fitted as a parameter — write the formula in ${quoteList(variables)} or bind "x" in data.x`,
+            { severity: 'warning', charIndex: formulaSpans.get('x') },
+          );
       } catch (e) {
         if (!(e instanceof FormulaError)) throw e;
         c.add('spec-formula', [...P, 'formula'], `the formula of ${who} does not parse: ${e.message}`, { charIndex: e.span.start });

@@ -395,6 +395,13 @@ describe('spec: validateSpec reports every problem with path and location', () =
     assert.deepStrictEqual(v, ['data.x.pi', 'data.x.exp', 'data.x.y', 'data.x.2t']);
   });
 
+  it('gives the data file even when the spec has errors (to read the header and check columns in the same pass)', () => {
+    const r = check(spec('{ "name": "m", "builtin": "nope" }', '', '"file": "sub/d.csv", "x": "hours", "y": "od600", "decimal": ","'), { columns: null });
+    assert.strictEqual(r.spec, null);
+    assert.deepStrictEqual(r.data, { file: path.join(ROOT, 'sub', 'd.csv'), fileGiven: 'sub/d.csv', delimiter: 'auto', decimal: ',' });
+    assert.match(one(r.problems, 'spec-unknown-builtin').message, /unknown built-in model 'nope' \(available: linear, exponential/);
+  });
+
   it('reports many problems at once in one pass', () => {
     const text = spec('{ "name": "m", "builtin": "nope" }, { "name": "m", "polynomial": -2 }', '"confidence": 2, "output": "../o.json", "thresholds": { "x": 1 }', '"file": "d.csv", "x": "hourz", "y": "od600", "decimal": ";"');
     const r = check(text);

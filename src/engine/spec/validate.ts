@@ -25,6 +25,11 @@ export interface ValidateResult {
   /** null when any error-level problem was found */
   spec: NormalizedSpec | null;
   problems: Problem[];
+  /**
+   * The data file and reading options, whenever data.file itself is valid — also when the spec has other errors, so
+   * a caller can read the header and validate again with columns to report every problem in one pass.
+   */
+  data?: { file: string; fileGiven: string; delimiter: NormalizedData['delimiter']; decimal: NormalizedData['decimal'] };
 }
 
 const TOP_KEYS = ['$schema', 'title', 'data', 'models', 'confidence', 'predict', 'solveFor', 'output', 'expect', 'thresholds'];
@@ -393,7 +398,13 @@ export function validateSpec(raw: unknown, ctx: ValidateContext): ValidateResult
     }
   }
 
-  if (c.errors > 0 || !data) return { spec: null, problems: c.problems };
+  let dataFile: ValidateResult['data'];
+  if (isObj(d) && typeof d.file === 'string' && d.file.trim() !== '') {
+    const delimiter = ['auto', ',', ';', '\t'].includes(d.delimiter as string) ? (d.delimiter as NormalizedData['delimiter']) : DEFAULTS.data.delimiter;
+    const decimal = ['.', ','].includes(d.decimal as string) ? (d.decimal as NormalizedData['decimal']) : DEFAULTS.data.decimal;
+    dataFile = { file: path.resolve(specDir, d.file), fileGiven: d.file, delimiter, decimal };
+  }
+  if (c.errors > 0 || !data) return { spec: null, problems: c.problems, ...(dataFile ? { data: dataFile } : {}) };
   const spec: NormalizedSpec = {
     specFile,
     specGiven: ctx.file,
@@ -410,7 +421,7 @@ export function validateSpec(raw: unknown, ctx: ValidateContext): ValidateResult
     spec.output = output;
     spec.outputGiven = outputGiven;
   }
-  return { spec, problems: c.problems };
+  return { spec, problems: c.problems, ...(dataFile ? { data: dataFile } : {}) };
 }
 
 function exampleObj(variables: string[]): string {
@@ -558,7 +569,10 @@ function checkModel(c: Checker, ctx: ValidateContext, m: unknown, i: number, var
   if (kind === 'builtin') {
     const b = m.builtin;
     if (typeof b !== 'string') c.type([...P, 'builtin'], `a catalogue id such as "logistic4"`, b);
-    else if (!isBuiltinId(b)) c.add('spec-unknown-builtin', [...P, 'builtin'], `unknown built-in model '${b}'${didYouMean(b, BUILTIN_IDS)} (available: ${BUILTIN_IDS.join(', ')})`);
+    else if (!isBuiltinId(b)) {
+      const hint = didYouMean(b, BUILTIN_IDS);
+      c.add('spec-unknown-builtin', [...P, 'builtin'], `unknown built-in model '${b}'${hint || ` (available: ${BUILTIN_IDS.join(', ')})`}`);
+    }
     else {
       params = [...BUILTIN_PARAMS[b]];
       if (!variables.includes('x'))

@@ -75,7 +75,7 @@ describe('stats compareModels', () => {
     assert.equal(cmp.best === 'expoff' || cmp.best === 'mine', true, `best ${cmp.best}`);
   });
 
-  it('a polynomial whose fixed coefficient differs is not nested (a line through the origin vs a free quadratic)', () => {
+  it('polynomials with fixed coefficients are nested only when the fixed values agree', () => {
     const y = X.map((x, i) => 2 * x + 0.1 * E[i]);
     const { cmp } = analyse([
       { name: 'origin', formula: 'c0 + c1*x', kind: 'polynomial', degree: 1, fixed: { c0: 0 }, x: X, y },
@@ -83,8 +83,14 @@ describe('stats compareModels', () => {
       { name: 'quad', formula: 'c0 + c1*x + c2*x^2', kind: 'polynomial', degree: 2, x: X, y },
     ]);
     const pairs = cmp.fTests.map((t) => `${t.simpler}<${t.richer}`).sort();
-    // origin ⊂ quad0 (both c0 = 0) and origin ⊂ quad (c0 estimated in the richer); quad0 ⊂ quad via the fixed c0
-    assert.deepEqual(pairs, ['origin<quad', 'origin<quad0']);
+    // origin ⊂ quad0 (both c0 = 0), origin ⊂ quad (c0 estimated in the richer), quad0 ⊂ quad (the same degree, c0 fixed)
+    assert.deepEqual(pairs, ['origin<quad', 'origin<quad0', 'quad0<quad']);
+    // but a free line is not nested in a quadratic through the origin
+    const free = analyse([
+      { name: 'line', formula: 'c0 + c1*x', kind: 'polynomial', degree: 1, x: X, y },
+      { name: 'quad0', formula: 'c0 + c1*x + c2*x^2', kind: 'polynomial', degree: 2, fixed: { c0: 0 }, x: X, y },
+    ]);
+    assert.deepEqual(free.cmp.fTests, []);
     assert.equal(cmp.best, 'origin');
   });
 

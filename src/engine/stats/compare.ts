@@ -46,7 +46,7 @@ export function nestedRelation(s: ModelAnalysisInput, r: ModelAnalysisInput, si:
   const ds = polyDegree(s);
   const dr = polyDegree(r);
   if (ds && dr) {
-    if (!(ds.degree < dr.degree)) return null;
+    if (ds.degree > dr.degree || freeCount(s) >= freeCount(r)) return null;
     const fs = fixedValues(s, ds.rename);
     const fr = fixedValues(r, dr.rename);
     for (const [name, v] of fr) {

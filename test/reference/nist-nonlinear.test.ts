@@ -79,7 +79,10 @@ describe('NIST StRD nonlinear regression (certified values: NIST ITL StRD .dat f
       );
     }
     const six = rows.filter((r) => r.minParams >= 6).length;
+    const worstP = rows.reduce((a, b) => (b.minParams < a.minParams ? b : a));
+    const worstS = rows.filter((r) => r.name !== 'Lanczos1').reduce((a, b) => (b.minSd < a.minSd ? b : a));
     lines.push(`passing: ${pass}/${rows.length}; cases with ≥ 6 digits in every parameter: ${six}/${rows.length}; solver time ${total.toFixed(0)} ms`);
+    lines.push(`worst parameter LRE ${worstP.minParams.toFixed(1)} (${worstP.name} Start ${(worstP.start ?? 0) + 1}); worst SD LRE outside Lanczos1 ${worstS.minSd.toFixed(1)} (${worstS.name} Start ${(worstS.start ?? 0) + 1})`);
     console.log(lines.join('\n'));
   });
 });

@@ -13,7 +13,7 @@
 // - bounds: a parameter on a bound whose descent direction −g_j points outward is held (active set); the LM step is
 //   computed over the others and then shortened along its own direction to stay in the box, the blocking parameter
 //   landing exactly on its bound; ρ uses the predicted reduction of the shortened step. Never clamped after the step.
-// - at the end, up to three Gauss–Newton steps (pivoted QR, rank-truncated) polish the solution if they reduce SSE.
+// - at the end, (damped) Gauss–Newton steps polish the solution while they contract (see polish()).
 import type { LsqProblem, SolveOptions, SolveResult } from './types';
 import type { Termination } from '../report';
 import { EPS, norm2, qrFactor, applyQt, rankTolerance } from './linalg';
@@ -517,9 +517,11 @@ function qrsolv(n: number, r: Float64Array, ldr: number, ipvt: Int32Array, diag:
 // ---------------------------------------------------------------- Gauss–Newton polishing
 
 /**
- * Gauss–Newton steps at the LM solution. Near the minimum the SSE is flat to rounding, so a step is accepted while
- * the steps contract (‖z_k‖ < ‖z_{k−1}‖, a Newton-type convergence check) and the residual norm does not grow by
- * more than its rounding level 16 ε ‖√w y‖ (common practice); it stops when the step is below 1e-15 of ‖D θ‖.
+ * (Damped) Gauss–Newton steps at the LM solution, z = argmin ‖A_s z − r‖² + λ‖z‖² in column-scaled units. Near the
+ * minimum the SSE is flat to rounding, so steps are judged by contraction, not by SSE: a step is taken while
+ * ‖z_k‖ < ‖z_{k−1}‖ and the residual norm does not grow by more than its rounding level 16 ε ‖√w y‖ (common
+ * practice). On a large-residual problem plain Gauss–Newton may expand (the second-order term exceeds JᵀJ); then λ
+ * grows (0 → 1e-4 → ×4 … ≤ 1), which makes the fixed-point iteration contract. Stops when ‖z‖ ≤ 1e-15 ‖D θ‖.
  */
 function polish(P: Prepared, run: RunResult): void {
   const { n, q } = P;
@@ -534,7 +536,9 @@ function polish(P: Prepared, run: RunResult): void {
   const lo = P.free.map((j) => P.lower[j]);
   const hi = P.free.map((j) => P.upper[j]);
   let prevZ = Infinity;
-  for (let step = 0; step < 50; step++) {
+  let lambda = 0;
+  let raises = 0;
+  for (let step = 0; step < 60; step++) {
     // hold parameters on a bound whose descent direction points outward
     const idx: number[] = [];
     for (let k = 0; k < q; k++) {
@@ -545,19 +549,23 @@ function polish(P: Prepared, run: RunResult): void {
     }
     const kk = idx.length;
     if (kk === 0) return;
-    const a = new Float64Array(m * kk);
+    const mm = m + kk;
+    const a = new Float64Array(mm * kk);
     const d = new Float64Array(kk);
     let xs = 0;
+    const sl = Math.sqrt(lambda);
     for (let t = 0; t < kk; t++) {
       const c = idx[t] * m;
       const nj = norm2(A, c, m);
       d[t] = nj > 0 ? nj : 1;
       xs += (d[t] * run.x[idx[t]]) ** 2;
-      for (let i = 0; i < m; i++) a[t * m + i] = A[c + i] / d[t];
+      for (let i = 0; i < m; i++) a[t * mm + i] = A[c + i] / d[t];
+      a[t * mm + m + t] = sl;
     }
     xs = Math.sqrt(xs);
-    const qr = qrFactor(a, m, kk, true);
-    const b = Float64Array.from(r);
+    const qr = qrFactor(a, mm, kk, true);
+    const b = new Float64Array(mm);
+    b.set(r.subarray(0, m));
     applyQt(qr, b);
     const tol = rankTolerance(m, kk) * Math.abs(qr.rdiag[0]);
     let rank = 0;
@@ -565,17 +573,25 @@ function polish(P: Prepared, run: RunResult): void {
     const z = new Float64Array(kk);
     for (let j = rank - 1; j >= 0; j--) {
       let s = b[j];
-      for (let i = j + 1; i < rank; i++) s -= a[i * m + j] * z[i];
+      for (let i = j + 1; i < rank; i++) s -= a[i * mm + j] * z[i];
       z[j] = s / qr.rdiag[j];
     }
     const zn = norm2(z);
-    if (!(zn > 0) || !(zn < prevZ)) return;
+    if (!(zn > 0)) return;
+    if (!(zn < prevZ)) {
+      // expanding: damp more and measure contraction afresh
+      if (raises >= 8) return;
+      raises++;
+      lambda = lambda === 0 ? 1e-4 : Math.min(1, lambda * 4);
+      prevZ = Infinity;
+      continue;
+    }
     const xNew = Float64Array.from(run.x);
     let changed = false;
     for (let t = 0; t < rank; t++) {
       const k = idx[qr.perm[t]];
       const v = run.x[k] - z[t] / d[qr.perm[t]];
-      if (v < lo[k] || v > hi[k]) return; // a Gauss–Newton step that leaves the box is not a polish
+      if (v < lo[k] || v > hi[k]) return; // a step that leaves the box is not a polish
       if (v !== run.x[k]) changed = true;
       xNew[k] = v;
     }

@@ -103,7 +103,8 @@ export class PanelController extends Disposable implements vscode.WebviewPanelSe
   private adopt(panel: vscode.WebviewPanel, specUri: vscode.Uri): void {
     const entry: PanelEntry = { specUri, panel, ready: false, posted: null, readyCount: 0, snapshots: new Map(), disposables: [] };
     this.panels.set(specUri.toString(), entry);
-    panel.iconPath = vscode.Uri.joinPath(this.extensionUri, 'media', 'icon.svg');
+    const icon = vscode.Uri.joinPath(this.extensionUri, 'media', 'icon.svg');
+    if (fs.existsSync(icon.fsPath)) panel.iconPath = icon;
     panel.webview.html = this.html(panel.webview);
     entry.disposables.push(
       panel.webview.onDidReceiveMessage((m: WebviewToHost) => this.onMessage(entry, m)),

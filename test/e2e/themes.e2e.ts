@@ -1,20 +1,24 @@
-// The panel on the demo-like growth fixture in a light and a dark theme (switching theme live re-colours the panel).
-import { open, openFile, panelText, type Ctx } from './ui';
+// The panel on the demo-like growth fixture in a light and a dark theme. The theme changes live (the workspace
+// setting is rewritten), so the panel re-reads its colours from the 'theme' message without being reopened.
+import * as fs from 'fs';
+import * as path from 'path';
+import { open, openFile, panelText, QUIET, type Ctx } from './ui';
 
 export async function run(ctx: Ctx): Promise<void> {
   await open(ctx, { 'workbench.colorTheme': 'Default Light Modern' });
+  await ctx.page.locator('.monaco-workbench.vs').waitFor({ timeout: 20000 });
   await openFile(ctx.page, 'growth.fitspec.json');
   await ctx.runCommand('Curvewright: Show Fit Panel');
   await panelText(ctx, /logistic/);
+  await ctx.webview().locator('canvas').first().scrollIntoViewIfNeeded();
   await ctx.page.waitForTimeout(1000);
   await ctx.shot('light');
-  await ctx.runCommand('Preferences: Color Theme');
-  const input = ctx.page.locator('.quick-input-widget input');
-  await input.fill('Default Dark Modern');
-  await ctx.page.locator('.quick-input-list .monaco-list-row', { hasText: 'Default Dark Modern' }).first().waitFor({ timeout: 10000 });
-  await ctx.page.keyboard.press('Enter');
-  await ctx.page.locator('.monaco-workbench.vs-dark').waitFor({ timeout: 10000 });
+  const settings = path.join(ctx.workspace, '.vscode', 'settings.json');
+  fs.mkdirSync(path.dirname(settings), { recursive: true });
+  fs.writeFileSync(settings, JSON.stringify({ ...QUIET, 'workbench.colorTheme': 'Default Dark Modern' }, null, 2));
+  await ctx.page.locator('.monaco-workbench.vs-dark').waitFor({ timeout: 30000 });
   await panelText(ctx, /logistic/);
+  await ctx.webview().locator('canvas').first().scrollIntoViewIfNeeded();
   await ctx.page.waitForTimeout(1500);
   await ctx.shot('dark');
 }

@@ -11,8 +11,11 @@ export interface Ctx {
   log?(m: string): void;
 }
 
+/** Workspace settings every scenario uses: no git prompt over the panel. */
+export const QUIET = { 'git.openRepositoryInParentFolders': 'never', 'git.enabled': false };
+
 export async function open(ctx: Ctx, settings?: Record<string, unknown>): Promise<void> {
-  if (ctx.openWorkspace) ctx.workspace = await ctx.openWorkspace(settings);
+  if (ctx.openWorkspace) ctx.workspace = await ctx.openWorkspace({ ...QUIET, ...settings });
   await ctx.page.locator('.monaco-workbench').waitFor({ timeout: 60000 });
 }
 

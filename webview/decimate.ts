@@ -31,19 +31,27 @@ function usable(v: number, log: boolean | undefined): boolean {
  */
 export function decimateScatter(x: ArrayLike<number>, y: ArrayLike<number>, opts: DecimateOptions): Int32Array {
   const n = Math.min(x.length, y.length);
-  const idx: number[] = [];
-  for (let i = 0; i < n; i++) if (usable(x[i]!, opts.logX) && usable(y[i]!, opts.logY)) idx.push(i);
+  // Usable indices in x order (tie: index); data usually arrive sorted, so the sort is skipped then.
+  let idx = new Int32Array(n);
+  let m = 0, sorted = true;
+  for (let i = 0; i < n; i++) {
+    if (!usable(x[i]!, opts.logX) || !usable(y[i]!, opts.logY)) continue;
+    if (m > 0 && x[i]! < x[idx[m - 1]!]!) sorted = false;
+    idx[m++] = i;
+  }
+  idx = idx.slice(0, m);
+  if (!sorted) idx.sort((a, b) => x[a]! - x[b]! || a - b);
+  const threshold = opts.threshold ?? DECIMATE_THRESHOLD;
+  if (m <= threshold) return idx;
+
   const tx = (v: number) => (opts.logX ? Math.log10(v) : v);
   const ty = (v: number) => (opts.logY ? Math.log10(v) : v);
-  const byX = (a: number, b: number) => x[a]! - x[b]! || a - b;
-  const threshold = opts.threshold ?? DECIMATE_THRESHOLD;
-  if (idx.length <= threshold) return Int32Array.from(idx.sort(byX));
-
-  let x0 = Infinity, x1 = -Infinity, y0 = Infinity, y1 = -Infinity;
-  for (const i of idx) {
-    const a = tx(x[i]!), b = ty(y[i]!);
-    if (a < x0) x0 = a; if (a > x1) x1 = a;
-    if (b < y0) y0 = b; if (b > y1) y1 = b;
+  const x0 = tx(x[idx[0]!]!), x1 = tx(x[idx[m - 1]!]!);
+  let y0 = Infinity, y1 = -Infinity;
+  for (let k = 0; k < m; k++) {
+    const b = ty(y[idx[k]!]!);
+    if (b < y0) y0 = b;
+    if (b > y1) y1 = b;
   }
   const columns = Math.max(1, Math.floor(opts.columns));
   const cell = Math.max(1, opts.cell ?? 2);
@@ -53,25 +61,30 @@ export function decimateScatter(x: ArrayLike<number>, y: ArrayLike<number>, opts
   const sy = y1 > y0 ? 1 / (y1 - y0) : 0;
   const colMin = new Int32Array(columns).fill(-1);
   const colMax = new Int32Array(columns).fill(-1);
-  const seen = new Set<number>();
-  const keep = new Set<number>();
-  for (const i of idx) {
+  const seen = new Uint8Array(gx * gy);
+  const keep = new Uint8Array(m); // by position k in idx
+  for (let k = 0; k < m; k++) {
+    const i = idx[k]!;
     const fx = (tx(x[i]!) - x0) * sx, fy = (ty(y[i]!) - y0) * sy;
     const c = Math.min(columns - 1, Math.floor(fx * columns));
     const yi = y[i]!;
-    if (colMin[c]! < 0 || yi < y[colMin[c]!]!) colMin[c] = i;
-    if (colMax[c]! < 0 || yi > y[colMax[c]!]!) colMax[c] = i;
+    if (colMin[c]! < 0 || yi < y[idx[colMin[c]!]!]!) colMin[c] = k;
+    if (colMax[c]! < 0 || yi > y[idx[colMax[c]!]!]!) colMax[c] = k;
     const key = Math.min(gx - 1, Math.floor(fx * gx)) * gy + Math.min(gy - 1, Math.floor(fy * gy));
-    if (!seen.has(key)) { seen.add(key); keep.add(i); }
+    if (!seen[key]) { seen[key] = 1; keep[k] = 1; }
   }
-  // The first and last point along x (extremes of x) are always drawn.
-  keep.add(idx.reduce((b, i) => (x[i]! < x[b]! ? i : b), idx[0]!));
-  keep.add(idx.reduce((b, i) => (x[i]! > x[b]! ? i : b), idx[0]!));
+  // The first and last point along x (extremes of x) and each column's lowest and highest y are always drawn.
+  keep[0] = 1;
+  keep[m - 1] = 1;
   for (let c = 0; c < columns; c++) {
-    if (colMin[c]! >= 0) keep.add(colMin[c]!);
-    if (colMax[c]! >= 0) keep.add(colMax[c]!);
+    if (colMin[c]! >= 0) keep[colMin[c]!] = 1;
+    if (colMax[c]! >= 0) keep[colMax[c]!] = 1;
   }
-  return Int32Array.from([...keep].sort(byX));
+  let count = 0;
+  for (let k = 0; k < m; k++) count += keep[k]!;
+  const out = new Int32Array(count);
+  for (let k = 0, j = 0; k < m; k++) if (keep[k]) out[j++] = idx[k]!;
+  return out;
 }
 
 /**

@@ -480,29 +480,44 @@ export class ReportView {
     const notes: string[] = [];
     const okX = (v: number) => Number.isFinite(v) && (!logX || v > 0);
     const yv = (v: number) => (Number.isFinite(v) && (!logY || v > 0) ? v : NaN);
-    const line = (xa: ArrayLike<number>, ya: ArrayLike<number>): Pt[] => {
+    const band = !multi && sel?.status === 'converged' ? sel.band : null;
+    // On a log y axis a band edge at or below zero is drawn at a floor a decade under the smallest positive value
+    // shown, so the band still reads as reaching down past the plot (a gap would look like a narrow band).
+    let floor = NaN;
+    if (logY) {
+      let minPos = Infinity;
+      const scan = (a: ArrayLike<number> | undefined) => { if (a) for (let i = 0; i < a.length; i++) if (a[i]! > 0 && a[i]! < minPos) minPos = a[i]!; };
+      scan(pts?.y); scan(band?.fit); scan(band?.ciLow); scan(band?.piLow);
+      if (Number.isFinite(minPos)) floor = minPos / 10;
+    }
+    const line = (xa: ArrayLike<number>, ya: ArrayLike<number>, clampLow = false): Pt[] => {
       const keep = decimateLine(xa, ya, width, { x: logX });
       const out: Pt[] = [];
-      for (const i of keep) if (okX(xa[i]!)) out.push({ x: xa[i]!, y: yv(ya[i]!), i });
+      for (const i of keep) {
+        if (!okX(xa[i]!)) continue;
+        const v = ya[i]!;
+        out.push({ x: xa[i]!, y: clampLow && logY && Number.isFinite(v) && v <= 0 ? floor : yv(v), i });
+      }
       return out;
     };
-    const band = !multi && sel?.status === 'converged' ? sel.band : null;
     const conf = `${fmtNum(r.confidence * 100, 3)}\u2009%`;
     const legend: Child[] = [];
 
     if (band && band.x.length) {
       const bandLine = { showLine: true, pointRadius: 0, pointHoverRadius: 0, borderWidth: 0, tension: 0, order: 30 } as const;
-      datasets.push({ ...bandLine, label: 'prediction band', data: line(band.x, band.piHigh), fill: '+1', backgroundColor: t.piFill, borderColor: t.piFill });
-      datasets.push({ ...bandLine, label: 'prediction band (low)', data: line(band.x, band.piLow), fill: false, borderColor: t.piFill });
-      datasets.push({ ...bandLine, label: 'confidence band', data: line(band.x, band.ciHigh), fill: '+1', backgroundColor: t.ciFill, borderColor: t.ciFill });
-      datasets.push({ ...bandLine, label: 'confidence band (low)', data: line(band.x, band.ciLow), fill: false, borderColor: t.ciFill });
+      const base = this.modelColor(r, sel!.name);
+      const piFill = withAlpha(base, t.piAlpha), ciFill = withAlpha(base, t.ciAlpha);
+      datasets.push({ ...bandLine, label: 'prediction band', data: line(band.x, band.piHigh), fill: '+1', backgroundColor: piFill, borderColor: piFill });
+      datasets.push({ ...bandLine, label: 'prediction band (low)', data: line(band.x, band.piLow, true), fill: false, borderColor: piFill });
+      datasets.push({ ...bandLine, label: 'confidence band', data: line(band.x, band.ciHigh), fill: '+1', backgroundColor: ciFill, borderColor: ciFill });
+      datasets.push({ ...bandLine, label: 'confidence band (low)', data: line(band.x, band.ciLow, true), fill: false, borderColor: ciFill });
       kinds.push({ kind: 'band' }, { kind: 'band' }, { kind: 'band' }, { kind: 'band' });
       if (t.highContrast) {
         // Outline the bands too, so they read without relying on fill opacity.
         for (const d of datasets.slice(-4)) { d.borderWidth = 1; d.borderDash = [2, 3]; d.borderColor = t.foreground; }
       }
-      legend.push(h('span', { class: 'cw-legend-item' }, boxSwatch(withAlpha(t.series[0] ?? t.accent, 0.4)), ` ${conf} confidence band (${sel!.name})`),
-        h('span', { class: 'cw-legend-item' }, boxSwatch(withAlpha(t.series[0] ?? t.accent, 0.15)), ` ${conf} prediction band`));
+      legend.push(h('span', { class: 'cw-legend-item' }, boxSwatch(withAlpha(base, Math.min(1, t.ciAlpha + t.piAlpha))), ` ${conf} confidence band (${sel!.name})`),
+        h('span', { class: 'cw-legend-item' }, boxSwatch(piFill), ` ${conf} prediction band`));
     }
 
     if (multi) {
@@ -551,13 +566,14 @@ export class ReportView {
         const data: Pt[] = new Array(keep.length);
         for (let k = 0; k < keep.length; k++) { const i = keep[k]!; data[k] = { x: px[i]!, y: py[i]!, i }; }
         shown = data.length;
+        // Many points: small and translucent (a density), drawn under the curves so the fits stay visible.
         const big = shown > 2000;
         datasets.push({
-          label: 'data', data, showLine: false, order: 0,
-          pointRadius: big ? 1.6 : t.highContrast ? 3.5 : 3, pointHoverRadius: big ? 4 : 6, pointHitRadius: big ? 3 : 6,
-          pointBackgroundColor: t.highContrast ? t.background : withAlpha(t.points, big ? 0.55 : 0.8),
-          pointBorderColor: t.highContrast ? t.foreground : withAlpha(t.points, big ? 0.55 : 0.9),
-          pointBorderWidth: t.highContrast ? 1.5 : 0.5,
+          label: 'data', data, showLine: false, order: big ? 25 : 0,
+          pointRadius: big ? 1.3 : t.highContrast ? 3.5 : 3, pointHoverRadius: big ? 4 : 6, pointHitRadius: big ? 3 : 6,
+          pointBackgroundColor: t.highContrast && !big ? t.background : withAlpha(t.points, big ? 0.28 : 0.8),
+          pointBorderColor: t.highContrast && !big ? t.foreground : withAlpha(t.points, big ? 0.28 : 0.9),
+          pointBorderWidth: t.highContrast && !big ? 1.5 : big ? 0 : 0.5,
           pointStyle: 'circle',
         });
         kinds.push({ kind: 'points' });
@@ -606,9 +622,10 @@ export class ReportView {
       }
       const color = this.modelColor(r, sel!.name);
       const big = data.length > 2000;
-      rd.push({ label: 'residual', data, showLine: false, order: 0, pointRadius: big ? 1.4 : 2.6, pointHoverRadius: big ? 4 : 5, pointHitRadius: big ? 3 : 5,
-        pointBackgroundColor: t.highContrast ? t.background : withAlpha(color, big ? 0.55 : 0.85), pointBorderColor: t.highContrast ? t.foreground : color,
-        pointBorderWidth: t.highContrast ? 1.5 : 0.5, pointStyle: t.highContrast ? 'rectRot' : 'circle' });
+      rd.push({ label: 'residual', data, showLine: false, order: 0, pointRadius: big ? 1.2 : 2.6, pointHoverRadius: big ? 4 : 5, pointHitRadius: big ? 3 : 5,
+        pointBackgroundColor: t.highContrast && !big ? t.background : withAlpha(color, big ? 0.3 : 0.85),
+        pointBorderColor: t.highContrast && !big ? t.foreground : big ? withAlpha(color, 0.3) : color,
+        pointBorderWidth: t.highContrast && !big ? 1.5 : big ? 0 : 0.5, pointStyle: t.highContrast && !big ? 'rectRot' : 'circle' });
       rk.push({ kind: 'points', model: sel!.name });
       el.residBox.hidden = false;
     } else {
@@ -879,9 +896,7 @@ export class ReportView {
       m.linear ? ' \u00b7 linear in its parameters' : '',
       m.start ? ` \u00b7 start: ${m.start.source}` : '');
 
-    const sections: Child[] = [solver, h('div', { class: 'cw-grid' },
-      h('div', { class: 'cw-col-wide' }, h('h3', { class: 'cw-h3' }, 'Parameters'), paramTable),
-      h('div', { class: 'cw-col' }, h('h3', { class: 'cw-h3' }, 'Fit statistics'), statsList))];
+    const wide: Child[] = [h('h3', { class: 'cw-h3' }, 'Parameters'), paramTable];
     const rt = m.residualTests;
     if (rt) {
       const rows: Child[] = [];
@@ -889,9 +904,12 @@ export class ReportView {
       if (rt.normality) rows.push(h('tr', null, h('td', null, rt.normality.test === 'shapiro-wilk' ? 'Shapiro\u2013Wilk' : 'D\u2019Agostino\u2013Pearson K\u00b2'),
         h('td', { class: 'num' }, `${rt.normality.test === 'shapiro-wilk' ? 'W' : 'K\u00b2'} = ${fmtNum(rt.normality.statistic, 4)}`), h('td', null, ''), h('td', { class: 'num' }, fmtP(rt.normality.p))));
       if (rt.durbinWatson !== null) rows.push(h('tr', null, h('td', null, 'Durbin\u2013Watson'), h('td', { class: 'num' }, `d = ${fmtNum(rt.durbinWatson, 3)}`), h('td', null, ''), h('td', { class: 'num' }, MISSING)));
-      if (rows.length) sections.push(h('h3', { class: 'cw-h3' }, 'Residual tests'), h('div', { class: 'cw-table-wrap' }, h('table', { class: 'cw-table cw-tests' },
+      if (rows.length) wide.push(h('h3', { class: 'cw-h3' }, 'Residual tests'), h('div', { class: 'cw-table-wrap' }, h('table', { class: 'cw-table cw-tests' },
         h('thead', null, h('tr', null, th('test', 'l'), th('statistic'), th(''), th('p'))), h('tbody', null, rows))));
     }
+    const sections: Child[] = [solver, h('div', { class: 'cw-grid' },
+      h('div', { class: 'cw-col-wide' }, wide),
+      h('div', { class: 'cw-col' }, h('h3', { class: 'cw-h3' }, 'Fit statistics'), statsList))];
     if (m.predictions.length) {
       sections.push(h('h3', { class: 'cw-h3' }, 'Predictions'), h('div', { class: 'cw-table-wrap' }, h('table', { class: 'cw-table cw-predictions' },
         h('thead', null, h('tr', null, th('x'), th('\u0177'), th(`${conf} CI of the mean`), th(`${conf} prediction interval`), th('', 'l'))),

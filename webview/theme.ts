@@ -23,10 +23,14 @@ export interface ThemeColors {
   series: string[];
   /** colour of the observed data points */
   points: string;
-  /** fill of the confidence band of the mean */
+  /** fill of the confidence band of the mean (in the first series colour; bands take the selected model's colour at ciAlpha) */
   ciFill: string;
   /** fill of the prediction band */
   piFill: string;
+  /** opacity of the confidence-band fill */
+  ciAlpha: number;
+  /** opacity of the prediction-band fill */
+  piAlpha: number;
   /** width of a model curve in CSS pixels (the selected model is drawn wider) */
   lineWidth: number;
   fontFamily: string;
@@ -98,6 +102,9 @@ export function readTheme(doc: Document = document): ThemeColors {
     return fallback;
   };
   const highContrast = kind === 'high-contrast' || kind === 'high-contrast-light';
+  const dark = kind === 'dark' || kind === 'high-contrast';
+  const ciAlpha = highContrast ? 0.35 : dark ? 0.3 : 0.26;
+  const piAlpha = highContrast ? 0.18 : dark ? 0.13 : 0.1;
   const chartNames = ['blue', 'red', 'green', 'yellow', 'purple', 'orange'];
   // Keep our ordering (blue, red, green, amber, purple, teal) and take VS Code's chart colours where they exist.
   const series = pal.series.map((fb, i) => (i < chartNames.length ? pick(fb, `--vscode-charts-${chartNames[i]}`) : fb));
@@ -120,8 +127,10 @@ export function readTheme(doc: Document = document): ThemeColors {
     ok: pick(pal.ok, '--vscode-testing-iconPassed', '--vscode-charts-green'),
     series,
     points: highContrast ? foreground : pick(pal.points, '--vscode-charts-foreground'),
-    ciFill: withAlpha(series[0] ?? pal.accent, highContrast ? 0.35 : 0.28),
-    piFill: withAlpha(series[0] ?? pal.accent, highContrast ? 0.18 : 0.11),
+    ciFill: withAlpha(series[0] ?? pal.accent, ciAlpha),
+    piFill: withAlpha(series[0] ?? pal.accent, piAlpha),
+    ciAlpha,
+    piAlpha,
     lineWidth: highContrast ? 3 : 1.75,
     fontFamily: pick('system-ui, -apple-system, "Segoe UI", sans-serif', '--vscode-font-family'),
     fontSize,

@@ -89,7 +89,7 @@ export function summaryText(r: FitReport, specShown: string, written: string | n
   const d = r.data;
   const notes: string[] = [];
   if (d.filtered) notes.push(`${d.filtered} filtered by where`);
-  if (d.dropped.length) notes.push(`${d.dropped.length} dropped`);
+  if (d.dropped.length) notes.push(`${d.droppedTotal ?? d.dropped.length} dropped`);
   if (d.excluded.length) notes.push(`${d.excluded.length} excluded`);
   out.push(`  data: ${d.file}, ${d.used} of ${d.rows} rows used${notes.length ? ` (${notes.join(', ')})` : ''}`);
   const rows: string[][] = [['', 'model', 'status', 'parameters (± SE)', 'AICc', 'R²', 'problems']];

@@ -249,6 +249,8 @@ export interface DataReport {
   rows: number;
   used: number;
   dropped: { row: number; line: number; column: string; reason: string }[];
+  /** number of rows dropped for bad cells, when `dropped` lists only the first of them */
+  droppedTotal?: number;
   excluded: { row: number; reason: string }[];
   /** rows left out by `where` */
   filtered?: number;

@@ -450,6 +450,7 @@ function dataReport(spec: NormalizedSpec, table: Table, prepared: ReturnType<typ
     rows: table.totalRows,
     used: prepared.y.length,
     dropped: prepared.dropped ?? table.dropped,
+    ...(table.droppedTotal !== undefined && table.droppedTotal > (prepared.dropped ?? table.dropped).length ? { droppedTotal: table.droppedTotal } : {}),
     excluded: prepared.excluded,
     filtered: prepared.filtered,
     range: { x: vars.length === 1 ? xRanges[vars[0]] : xRanges, y: range(prepared.y) },

@@ -235,7 +235,7 @@ class Parser {
           if (close.kind === 'eof') {
             throw new FormulaError(
               `unexpected end of formula at column ${col(close.start)} — add ')' to close the '(' at column ${col(t.start)}`,
-              { start: t.start, end: close.end },
+              { start: close.start, end: close.end },
             );
           }
           throw this.unexpectedAfterValue(close);
@@ -332,7 +332,7 @@ class Parser {
         if (t.kind === 'eof') {
           throw new FormulaError(
             `unexpected end of formula at column ${col(t.start)} — add ')' to close '${nameTok.text}(' at column ${col(open.start)}`,
-            { start: nameTok.start, end: t.end },
+            { start: t.start, end: t.end },
           );
         }
         throw this.unexpectedAfterValue(t);

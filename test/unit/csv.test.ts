@@ -5,6 +5,7 @@ import { createHash } from 'crypto';
 import * as fs from 'fs';
 import * as os from 'os';
 import * as path from 'path';
+import fc from 'fast-check';
 import { DataError, parseNumber, readHeader, readTable } from '../../src/engine/data';
 
 let dir: string;
@@ -232,5 +233,62 @@ describe('csv: readTable', () => {
     assert.deepStrictEqual([...cr.values.b], [2, 6]);
     assert.deepStrictEqual([...cr.line], [2, 5]);
     assert.deepStrictEqual(cr.dropped.map((d) => [d.row, d.line]), [[2, 3]]);
+  });
+});
+
+describe('csv: never crashes on arbitrary bytes (property test, fast-check)', () => {
+  it('readTable either returns a table or throws a DataError', async () => {
+    await fc.assert(
+      fc.asyncProperty(
+        fc.oneof(
+          fc.uint8Array({ maxLength: 200 }),
+          fc.array(fc.constantFrom('a', 'b', ',', ';', '\t', '"', '\n', '\r', '1', '.', '-', 'e', ' ', 'é', 'x'), { maxLength: 120 }).map((cs) => Buffer.from('a,b\n' + cs.join(''))),
+        ),
+        fc.constantFrom<'drop' | 'fail'>('drop', 'fail'),
+        async (bytes, badRows) => {
+          const f = write('fuzz.csv', Buffer.from(bytes));
+          try {
+            const t = await readTable(f, { columns: ['a'], badRows });
+            assert.strictEqual(t.values.a.length, t.row.length);
+            assert.strictEqual(t.line.length, t.row.length);
+            for (const v of t.values.a) assert.ok(Number.isFinite(v));
+            for (let i = 1; i < t.line.length; i++) assert.ok(t.line[i] > t.line[i - 1] && t.row[i] > t.row[i - 1]);
+          } catch (e) {
+            assert.ok(e instanceof DataError, String(e));
+          }
+        },
+      ),
+      { numRuns: 300, seed: 11 },
+    );
+  });
+});
+
+describe('csv: line numbers with quoted multi-line fields and blank lines (property test, fast-check)', () => {
+  it('each kept row reports the line it starts on', async () => {
+    const text = fc.array(fc.constantFrom('a', ',', '\n', '""', ' ', 'é', ';'), { maxLength: 8 }).map((cs) => '"' + cs.join('') + '"');
+    const row = fc.record({ n: fc.integer({ min: -1000, max: 1000 }), note: fc.oneof(text, fc.constantFrom('plain', '')), blanksAfter: fc.integer({ min: 0, max: 2 }) });
+    await fc.assert(
+      fc.asyncProperty(fc.array(row, { minLength: 1, maxLength: 30 }), fc.constantFrom('\n', '\r\n'), async (rows, nl) => {
+        let content = `n,note${nl}`;
+        let line = 2;
+        const expected: number[] = [];
+        for (const r of rows) {
+          expected.push(line);
+          const note = r.note.split('\n').join(nl);
+          content += `${r.n},${note}${nl}`;
+          line += 1 + (note.split(nl).length - 1);
+          for (let k = 0; k < r.blanksAfter; k++) {
+            content += nl;
+            line++;
+          }
+        }
+        const f = write('lines.csv', content);
+        const t = await readTable(f, { columns: ['n'] });
+        assert.deepStrictEqual([...t.line], expected);
+        assert.deepStrictEqual([...t.values.n], rows.map((r) => r.n));
+        assert.deepStrictEqual([...t.row], rows.map((_, i) => i + 1));
+      }),
+      { numRuns: 150, seed: 3 },
+    );
   });
 });

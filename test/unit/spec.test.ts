@@ -2,6 +2,7 @@
 // its line:column; good specs normalise with defaults filled.
 import * as assert from 'assert';
 import * as path from 'path';
+import fc from 'fast-check';
 import { locatePath, locateInString, parseSpecText, validateSpec, type NormalizedSpec } from '../../src/engine/spec';
 import type { Problem } from '../../src/engine/report';
 
@@ -409,5 +410,40 @@ describe('spec: validateSpec reports every problem with path and location', () =
     for (const c of ['spec-unknown-builtin', 'spec-duplicate-name', 'spec-polynomial-degree', 'spec-range', 'spec-output', 'spec-unknown-key', 'spec-unknown-column', 'spec-type'])
       assert.ok(codes.has(c), `${c} in ${[...codes].join(', ')}`);
     for (const p of r.problems) assert.ok(p.location && p.location.line && p.location.column, `located: ${p.code}`);
+  });
+});
+
+describe('spec: never throws (property tests, fast-check)', () => {
+  const keys = ['data', 'models', 'file', 'x', 'y', 'name', 'builtin', 'polynomial', 'formula', 'params', 'start', 'min', 'max', 'fixed', 'expect', 'output', 'where', 'exclude', 'row', 'reason', 'confidence', 'predict', 'solveFor', 'thresholds', 'sigma', 'weight', 'value', 'tol', 'rel'];
+  const value = fc.letrec((tie) => ({
+    v: fc.oneof(
+      { depthSize: 'small' },
+      fc.constantFrom(null, true, false, 0, -1, 1.5, 1e308, '', 'x', 'hours', 'a*exp(-k*x)', 'log(', '`a b`', 'linear', 'logistic3', '../x', 'x <'),
+      fc.double(),
+      fc.string(),
+      fc.array(tie('v'), { maxLength: 4 }),
+      fc.dictionary(fc.oneof(fc.constantFrom(...keys), fc.string()), tie('v'), { maxKeys: 5 }),
+    ),
+  })).v;
+  it('validateSpec returns problems for any JSON value, with or without columns and text', () => {
+    fc.assert(
+      fc.property(value, fc.boolean(), (raw, withColumns) => {
+        const text = JSON.stringify(raw) ?? 'null';
+        const r = validateSpec(raw, { file: SPEC, text, columns: withColumns ? COLUMNS : undefined, workspaceRoot: ROOT });
+        assert.ok(Array.isArray(r.problems));
+        if (r.spec === null) assert.ok(r.problems.some((p) => p.severity === 'error'));
+      }),
+      { numRuns: 400, seed: 7 },
+    );
+  });
+  it('parseSpecText returns problems for any text', () => {
+    fc.assert(
+      fc.property(fc.oneof(fc.string(), fc.constantFrom('{', '{"a":', '{"a": [1,', '/*', '"')), (t) => {
+        const r = parseSpecText(t, FILE);
+        assert.ok(Array.isArray(r.problems));
+        for (const p of r.problems) assert.ok(p.location && (p.location.line as number) >= 1);
+      }),
+      { numRuns: 400, seed: 7 },
+    );
   });
 });

@@ -170,6 +170,9 @@ export function fitspecSchema(): Schema {
     $schema: 'http://json-schema.org/draft-07/schema#',
     title: 'Curvewright fit spec',
     description: 'A fit definition: data, candidate models, and what to report and check. JSON with comments and trailing commas.',
+    // VS Code's JSON language service reads these two: no warnings for // comments and trailing commas in spec files
+    allowComments: true,
+    allowTrailingCommas: true,
     type: 'object',
     properties: {
       $schema: str('Path or address of this schema (optional; editors use it for completion and hover help).'),

@@ -45,7 +45,7 @@ function interfaceKeys(name: string): string[] {
 function ajv(): Ajv {
   const a = new Ajv({ allErrors: true, strict: true, strictRequired: false, allowUnionTypes: true }) // oneOf: [{ required: [k] }] names properties defined beside it;
   // editor-only annotations VS Code reads
-  a.addVocabulary(['enumDescriptions', 'markdownDescription', 'defaultSnippets']);
+  a.addVocabulary(['enumDescriptions', 'markdownDescription', 'defaultSnippets', 'allowComments', 'allowTrailingCommas']);
   return a;
 }
 
@@ -55,6 +55,11 @@ describe('schema: fitspec.schema.json', () => {
   it('is exactly what schema/generate.ts produces (regenerate with npx tsx schema/generate.ts)', () => {
     assert.strictEqual(fs.readFileSync(path.join(root, 'schema', 'fitspec.schema.json'), 'utf8'), schemaText(fitspecSchema()));
     assert.strictEqual(fs.readFileSync(path.join(root, 'schema', 'fitreport.schema.json'), 'utf8'), schemaText(fitreportSchema()));
+  });
+
+  it('tells VS Code that spec files may have comments and trailing commas', () => {
+    assert.strictEqual(specSchema.allowComments, true);
+    assert.strictEqual(specSchema.allowTrailingCommas, true);
   });
 
   it('the type-level key lists are exhaustive', () => {

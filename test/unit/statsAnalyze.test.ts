@@ -7,7 +7,7 @@ import { tQuantile, normalQuantile, chi2Sf } from '../../src/engine/stats/distri
 import { informationCriteria, akaikeWeights } from '../../src/engine/stats/information';
 import { cvFolds } from '../../src/engine/stats/crossval';
 import { bandGrid } from '../../src/engine/stats/predict';
-import { makeInput, PUROMYCIN } from './statsHelpers';
+import { makeInput, noise, PUROMYCIN } from './statsHelpers';
 import { readStrd, strdDir, lre } from '../reference/strd';
 
 const close = (a: number | null | undefined, b: number, tol: number, what: string) =>
@@ -275,5 +275,79 @@ describe('stats analyzeModel', () => {
     const b = analyzeModel(makeInput({ formula: 'Vm*x/(K + x)', x: PUROMYCIN.conc, y: PUROMYCIN.rate, start: { Vm: 200, K: 0.1 } }));
     assert.equal(JSON.stringify(a), JSON.stringify(b));
     void fs;
+  });
+});
+
+describe('stats analyzeModel at the edges', () => {
+  const X = Array.from({ length: 12 }, (_, i) => i + 1);
+
+  it('zero residual: SE 0, degenerate intervals, no likelihood (−∞ is reported as null), no residual tests, no problems', () => {
+    const r = analyzeModel(makeInput({ formula: 'a + b*x', x: X, y: X.map((v) => 2 + 3 * v), predict: [4], solveFor: [11] }));
+    assert.equal(r.status, 'converged');
+    assert.equal(r.params.b.se, 0);
+    assert.equal(r.params.b.t, null);
+    assert.deepEqual(r.params.b.ci, [3, 3]);
+    assert.equal(r.stats.r2, 1);
+    assert.equal(r.stats.logLik, null);
+    assert.equal(r.stats.aicc, null);
+    assert.deepEqual(r.residualTests, { runs: null, normality: null, durbinWatson: null });
+    assert.deepEqual(r.predictions[0].pi, [14, 14]);
+    assert.deepEqual(r.inverse[0].roots, [{ x: 3, interval: [3, 3] }]);
+    assert.deepEqual(r.problems, []);
+    const nl = analyzeModel(makeInput({ formula: 'A*exp(-k*x)', x: X, y: X.map((v) => 2 * Math.exp(-0.3 * v)), start: { A: 1, k: 0.1 } }));
+    assert.equal(nl.status, 'converged');
+    assert.equal(nl.params.k.profileCi, null, 'no profile to walk at s = 0');
+    assert.ok(!nl.problems.some((p) => p.code === 'poorly-determined'));
+  });
+
+  it('huge and tiny scales: R², t, relative SE, residual tests and problems do not depend on the units of y and x', () => {
+    const e = noise(12, 3);
+    const base = X.map((v, i) => 5 * Math.exp(-0.2 * v) + 0.05 * e[i]);
+    const reports = [1e-12, 1, 1e12].map((s) =>
+      analyzeModel(makeInput({
+        formula: 'A*exp(-k*x)', x: X.map((v) => v * s), y: base.map((v) => v * s), start: { A: 4 * s, k: 0.1 / s },
+        options: { crossValidate: false },
+      })));
+    const [tiny, unit, huge] = reports;
+    for (const r of [tiny, huge]) {
+      assert.equal(r.status, 'converged');
+      rel(r.stats.r2, unit.stats.r2!, 1e-8, 'R²');
+      rel(r.params.k.t, unit.params.k.t!, 1e-6, 't(k)');
+      rel(r.params.A.se! / r.params.A.value, unit.params.A.se! / unit.params.A.value, 1e-6, 'relative SE');
+      rel(r.residualTests!.normality!.statistic, unit.residualTests!.normality!.statistic, 1e-8, 'W');
+      rel(r.params.k.profileCi![0]! * r.params.A.value, unit.params.k.profileCi![0]! * unit.params.A.value, 1e-4, 'profile bound (scaled)');
+      assert.deepEqual(r.problems.map((p) => p.code), unit.problems.map((p) => p.code));
+    }
+  });
+
+  it('bounds active: the profile interval stops at a box bound and reports that side as null', () => {
+    const e = noise(12, 4);
+    const y = X.map((v, i) => 3 * Math.exp(-0.25 * v) + 0.05 * e[i]);
+    // the offset C ≥ 0 is close to 0: walking down, the bound is met before τ reaches the t quantile
+    const r = analyzeModel(makeInput({ formula: 'A*exp(-k*x) + C', x: X, y, start: { A: 3, k: 0.25, C: 0.1 }, lower: { C: 0 } }));
+    assert.equal(r.status, 'converged');
+    const C = r.params.C;
+    assert.ok(C.value > 0 && C.atBound === null);
+    assert.equal(C.profileCi![0], null);
+    assert.ok(C.profileCi![1]! > C.value);
+    // the other parameters' profiles close on both sides
+    for (const n of ['A', 'k']) {
+      const ci = r.params[n].profileCi!;
+      assert.ok(ci[0]! < r.params[n].value && r.params[n].value < ci[1]!, n);
+    }
+    assert.ok(r.problems.some((p) => p.code === 'poorly-determined' && p.path.join('/') === 'models/0/params/C'));
+  });
+
+  it('several x variables: predictions take objects, there is no band and no inverse', () => {
+    const t = X;
+    const T = X.map((v) => (v * 7) % 5);
+    const y = X.map((v, i) => 1 + 2 * t[i] - 0.5 * T[i] + 0.1 * noise(12, 9)[i]);
+    const r = analyzeModel(makeInput({ formula: 'a + b*t + c*T', x: { t, T }, y, predict: [{ t: 3, T: 2 }, { t: 30, T: 2 }], solveFor: [5] }));
+    assert.equal(r.band, null);
+    assert.equal(r.predictions[0].extrapolated, false);
+    assert.equal(r.predictions[1].extrapolated, true);
+    close(r.predictions[0].y, r.params.a.value + 3 * r.params.b.value + 2 * r.params.c.value, 1e-9, 'ŷ');
+    assert.deepEqual(Object.keys(r.points!.x), ['t', 'T']);
+    assert.deepEqual(r.inverse[0].roots, []);
   });
 });

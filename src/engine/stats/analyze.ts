@@ -323,7 +323,8 @@ export function analyzeModel(input: ModelAnalysisInput): ModelReport {
 
   // ------------------------------------------------------------ profile-likelihood intervals (nonlinear only)
   const openProfile = new Set<number>();
-  if (!input.linear && opts.profile !== false && dof > 0 && Number.isFinite(qWald)) {
+  // (an exact fit, s = 0, has no profile to walk: its intervals are degenerate and profileCi stays null)
+  if (!input.linear && opts.profile !== false && dof > 0 && Number.isFinite(qWald) && scale > 0) {
     const seconds = opts.profileSeconds ?? PROFILE_SECONDS;
     const prof = profileIntervals({
       problem: lsqProblem(input), theta, lower: input.lower, upper: input.upper, fixed: input.fixed,
@@ -398,7 +399,7 @@ export function analyzeModel(input: ModelAnalysisInput): ModelReport {
         severity: 'warning',
         message:
           `${input.name} does not reach y = ${fmt(yv)} within or near the data range (${input.variables[0]} from ${fmt(lo)} to ${fmt(hi)}), so no x is reported for it. ` +
-          `Check that the value is inside the range of the curve (fitted ${fmt(Math.min(...f))} to ${fmt(Math.max(...f))}) and in the same units as y.`,
+          `Check that the value is inside the range of the curve (fitted ${fmt(minOf(f))} to ${fmt(maxOf(f))}) and in the same units as y.`,
         path: ['solveFor', k],
       });
     } else if (inv.extrapolated) {
@@ -428,6 +429,18 @@ function rankDeficient(name: string, names: string[], rank: number, pFree: numbe
       `Their standard errors are not reported. Fix ${names.length > 1 ? 'one of them' : 'it'} ("fixed": true with a start), remove a redundant term, or add data that vary more.`,
     path: names.length === 1 ? [...base, 'params', names[0]] : base,
   };
+}
+
+function minOf(a: ArrayLike<number>): number {
+  let m = Infinity;
+  for (let i = 0; i < a.length; i++) if (a[i] < m) m = a[i];
+  return m;
+}
+
+function maxOf(a: ArrayLike<number>): number {
+  let m = -Infinity;
+  for (let i = 0; i < a.length; i++) if (a[i] > m) m = a[i];
+  return m;
 }
 
 function terminationAdvice(t: string): string {

@@ -215,7 +215,13 @@ export function computeInverse(ctx: PredictionContext, y0: number): InverseRepor
   for (const r of roots) {
     let low: number | null = null;
     let high: number | null = null;
-    if (h(r) < 0) {
+    xv[0] = r;
+    const atRoot = predict(xv);
+    if (atRoot.sePred === 0) {
+      // an exact fit: the band has zero width
+      low = r;
+      high = r;
+    } else if (h(r) < 0) {
       // walk left and right on the grid to the first point outside the band
       let k = searchGrid.findIndex((x) => x > r);
       if (k < 0) k = searchGrid.length;

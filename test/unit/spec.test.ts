@@ -294,6 +294,12 @@ describe('spec: validateSpec reports every problem with path and location', () =
     assert.deepStrictEqual(check(spec('{ "name": "m", "polynomial": 1 }', '', '"file": "d.csv", "x": "hours", "y": "log(`OD 600`)"')).problems, []);
   });
 
+  it('a column with a dash read as a subtraction gets a backtick hint', () => {
+    const r = check(spec('{ "name": "m", "polynomial": 1 }', '', '"file": "d.csv", "x": "hours", "y": "log(od-600)"'), { columns: ['hours', 'od-600'] });
+    assert.match(one(r.problems, 'spec-unknown-column').message, /uses 'od'.*write the column `od-600` in backticks/);
+    assert.deepStrictEqual(check(spec('{ "name": "m", "polynomial": 1 }', '', '"file": "d.csv", "x": "hours", "y": "od-600"'), { columns: ['hours', 'od-600'] }).problems, []);
+  });
+
   it('an invalid where expression', () => {
     const p = one(check(spec('{ "name": "m", "polynomial": 1 }', '', '"file": "d.csv", "x": "hours", "y": "od600", "where": "hours <= "')).problems, 'spec-expression');
     assert.deepStrictEqual(p.path, ['data', 'where']);

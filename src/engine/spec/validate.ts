@@ -199,12 +199,12 @@ function checkExpression(c: Checker, ctx: ValidateContext, text: string, p: Json
     for (const id of ids) {
       if (known.includes(id.name)) continue;
       const extra = env.extra.length > 0 ? ` (or ${quoteList(env.extra)})` : '';
-      c.add(
-        'spec-unknown-column',
-        p,
-        `${role} uses '${id.name}', which is not a column of ${label}${didYouMean(id.name, known)} (columns: ${quoteList(columns, 12)}${extra})`,
-        { charIndex: id.span.start },
-      );
+      // e.g. log(od-600) reads as od - 600: point at the column name that needs backticks
+      const odd = columns.find((name) => !PLAIN_IDENT.test(name) && name.startsWith(id.name) && text.includes(name));
+      const hint = odd !== undefined ? ` — write the column \`${odd}\` in backticks` : didYouMean(id.name, known);
+      c.add('spec-unknown-column', p, `${role} uses '${id.name}', which is not a column of ${label}${hint} (columns: ${quoteList(columns, 12)}${extra})`, {
+        charIndex: id.span.start,
+      });
     }
   }
   return text;

@@ -37,18 +37,15 @@ function paramText(m: ModelReport, max = 4): string {
   return parts.join(' ');
 }
 
-/** "path:line:column" or "path" for a problem, relative to the spec's folder when the problem names a file. */
-export function where(p: Problem, specShown: string): string {
-  if (p.location) {
-    const loc = p.location;
-    const file = loc.file && !loc.file.endsWith('.fitspec.json') && !path.isAbsolute(loc.file)
-      ? path.join(path.dirname(specShown), loc.file)
-      : specShown;
-    if (loc.line !== undefined) return `${file}:${loc.line}${typeof loc.column === 'number' ? `:${loc.column}` : ''}`;
-    if (loc.row !== undefined) return `${file} row ${loc.row}`;
-    return file;
-  }
-  return specShown;
+/** "file:line:column" (or "file row N", or "file") for a problem: the spec, or a data file named relative to the spec's folder. */
+export function where(p: { location?: Problem['location'] }, specShown: string): string {
+  const loc = p.location;
+  if (!loc) return specShown;
+  const isSpec = !loc.file || path.basename(loc.file) === path.basename(specShown);
+  const file = isSpec ? specShown : path.isAbsolute(loc.file) ? loc.file : path.join(path.dirname(specShown), loc.file).split(path.sep).join('/');
+  if (loc.line !== undefined) return `${file}:${loc.line}${typeof loc.column === 'number' ? `:${loc.column}` : ''}`;
+  if (loc.row !== undefined) return `${file} row ${loc.row}`;
+  return file;
 }
 
 export function pathText(p: (string | number)[]): string {
@@ -72,12 +69,14 @@ export function errorText(r: ErrorReport, specShown: string): string {
   const lines: string[] = [];
   const problems = r.error.problems ?? [];
   if (problems.length) {
-    for (const p of problems) lines.push(`${problemLine(p, specShown)}`);
+    for (const p of problems) {
+    const line = problemLine(p, specShown);
+    lines.push(line.startsWith(specShown) ? line : `${line} (spec ${specShown})`);
+  }
   } else {
-    const loc = r.error.location;
-    const at = loc && loc.line !== undefined ? `${specShown}:${loc.line}${typeof loc.column === 'number' ? `:${loc.column}` : ''}` : specShown;
     const jp = r.error.path && r.error.path.length ? ` [${pathText(r.error.path)}]` : '';
-    lines.push(`${at}: error${jp}: ${r.error.message}`);
+    const at = where(r.error, specShown);
+    lines.push(`${at}: error${jp}: ${r.error.message}${at.startsWith(specShown) ? '' : ` (spec ${specShown})`}`);
   }
   return lines.join('\n');
 }
@@ -117,13 +116,23 @@ export function summaryText(r: FitReport, specShown: string, written: string | n
     const met = r.expect.filter(e => e.ok).length;
     out.push(`  expect: ${met} of ${r.expect.length} met${met < r.expect.length ? ` — ${r.expect.filter(e => !e.ok).map(expectText).join('; ')}` : ''}`);
   }
-  const problems = allProblems(r).filter(x => x.problem.severity !== 'info');
-  const shown = problems.slice(0, 12);
-  for (const { problem, model } of shown) {
-    const named = model !== undefined && !problem.message.startsWith(`${model}:`);
-    out.push(`  ${problem.severity}${named ? ` (${model})` : ''}: ${problem.message} [${problem.code}]`);
+  // one line per (model, code): the first message, and how many more of the same kind
+  const groups = new Map<string, { problem: Problem; model?: string; count: number }>();
+  for (const x of allProblems(r)) {
+    if (x.problem.severity === 'info') continue;
+    const key = `${x.model ?? ''}\u0000${x.problem.code}\u0000${x.problem.severity}`;
+    const g = groups.get(key);
+    if (g) g.count++;
+    else groups.set(key, { ...x, count: 1 });
   }
-  if (problems.length > shown.length) out.push(`  … and ${problems.length - shown.length} more problems (see the results file or --json)`);
+  const list = [...groups.values()];
+  const shownGroups = list.slice(0, 12);
+  for (const { problem, model, count } of shownGroups) {
+    const named = model !== undefined && !problem.message.startsWith(`${model}:`);
+    const more = count > 1 ? ` (+${count - 1} more like it)` : '';
+    out.push(`  ${problem.severity}${named ? ` (${model})` : ''}: ${problem.message} [${problem.code}]${more}`);
+  }
+  if (list.length > shownGroups.length) out.push(`  … and ${list.length - shownGroups.length} more kinds of problem (see the results file or --json)`);
   if (written) out.push(`  wrote ${written}`);
   return out.join('\n');
 }

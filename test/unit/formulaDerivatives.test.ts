@@ -45,11 +45,21 @@ describe('formula derivatives against central differences (Richardson-extrapolat
     // powers: base with a parameter, constant integer exponents on negative bases
     ['(a - x)^2 + (a - x)^3 + (a*x)^-1 + (a*x)^-2', [0.5], [2]],
     ['(b*x)^a', [2.5, 1.2], [0.8]],
+    // model statements of NIST StRD Bennett5, MGH10, Eckerle4, Roszman1, Misra1d, ENSO, Nelson (the points are arbitrary)
+    ['b1*(b2 + x)^(-1/b3)', [-2523.5, 46.7, 0.932], [7.447]],
+    ['b1*exp(b2/(x + b3))', [0.0056, 6181, 345], [50]],
+    ['(b1/b2) * exp(-0.5*((x - b3)/b2)^2)', [1.55, 4.09, 451.5], [440]],
+    ['b1 - b2*x - atan(b3/(x - b4))/pi', [0.2, -6e-6, 1200, -180], [-4000]],
+    ['b1*b2*x*((1 + b2*x)^(-1))', [438, 3e-4], [200]],
+    ['b1 + b2*cos(2*pi*x/12) + b3*sin(2*pi*x/12) + b5*cos(2*pi*x/b4) + b6*sin(2*pi*x/b4) + b8*cos(2*pi*x/b7) + b9*sin(2*pi*x/b7)',
+      [10.5, 3.08, 0.53, 44.3, -1.62, 0.53, 26.9, 0.21, 1.5], [17]],
     // two variables
+    ['b1 - b2*x1*exp(-b3*x2)', [2.59, 5.6e-9, -5.8e-2], [1, 180]],
     ['A*exp(-k*t)*(1 + c*(T - 298))', [2, 0.1, 0.01], [5, 310]],
   ];
   for (const [text, theta, x] of cases) {
-    it(text, () => checkAgainstDifferences(text, x.length === 2 ? ['t', 'T'] : ['x'], theta, x));
+    const variables = x.length === 1 ? ['x'] : text.includes('x1') ? ['x1', 'x2'] : ['t', 'T'];
+    it(text, () => checkAgainstDifferences(text, variables, theta, x));
   }
 
   it('random smooth formulas at random points (property, 2 variables, 3 parameters)', () => {

@@ -260,7 +260,8 @@ describe('compileExpression (column expressions for data.x / data.y / data.where
     expectFormulaError(() => compileExpression('log(od60)', ['hours', 'od600']), /^unknown column 'od60' at column 5 — did you mean 'od600'\?$/, 5);
     expectFormulaError(() => compileExpression('Hours*2', ['hours']), /did you mean 'hours'\?/, 1);
     expectFormulaError(() => compileExpression('zzz', ['hours', 'od600']), /unknown column 'zzz' at column 1 — the columns are: hours, od600/, 1);
-    expectFormulaError(() => compileExpression('`OD 60` + 1', ['OD 600']), /unknown column `OD 60` at column 1 — did you mean 'OD 600'\?/, 1);
+    expectFormulaError(() => compileExpression('`OD 60` + 1', ['OD 600']), /unknown column `OD 60` at column 1 — did you mean `OD 600`\?/, 1);
+    expectFormulaError(() => compileExpression('od-600', ['od-600']), /unknown column 'od' at column 1 — did you mean `od-600`\?/, 1);
   });
   it('parse errors come through with their position', () => {
     expectFormulaError(() => compileExpression('hours <', ['hours'], { logic: true }), /unexpected end of formula at column 8/, 8);

@@ -204,6 +204,7 @@ describe('formula parser: errors name the column and suggest a fix', () => {
     expectError('`OD 600 * 2', /unterminated quoted name starting at column 1 — add the closing backtick/, 1);
     expectError('`` + 1', /empty quoted name at column 1/, 1);
     expectError('a − b', /write '-' \(ASCII minus\)/, 3);
+    expectError('2*temp.c', /unexpected '\.' at column 7 — a name containing '\.' must be quoted in backticks, e\.g\. `temp\.c`/, 7);
   });
   it('excessive nesting is an error, not a stack overflow', () => {
     expectError('('.repeat(5000) + 'x' + ')'.repeat(5000), /nested too deeply/, 202);

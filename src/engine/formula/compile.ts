@@ -3,9 +3,9 @@
 
 import { generateKernels } from './codegen';
 import { derivative } from './derive';
-import { isConstantName } from './functions';
+import { isConstantName, isFunctionName, isLogicWord } from './functions';
 import { Graph } from './graph';
-import { col } from './lexer';
+import { col, isPlainIdentifier } from './lexer';
 import { lower, Resolved } from './lower';
 import { parseFormula } from './parser';
 import { suggest } from './suggest';
@@ -41,6 +41,13 @@ export function identUses(node: Node, out: IdentUse[] = []): IdentUse[] {
 
 export function quoteName(name: string, quoted: boolean): string {
   return quoted ? `\`${name}\`` : `'${name}'`;
+}
+
+/** How a suggested name is written in a formula: plain, or in backticks when it is not an identifier. */
+export function writtenName(name: string): string {
+  return isPlainIdentifier(name) && !isFunctionName(name) && !isConstantName(name) && !isLogicWord(name)
+    ? `'${name}'`
+    : `\`${name.replace(/`/g, '``')}\``;
 }
 
 /** Compile formula text to evaluators of f and its exact Jacobian; throws FormulaError. */
@@ -85,8 +92,8 @@ export function prepareFormula(text: string, opts: CompileOptions): PreparedForm
     for (const u of uses) {
       if (varIndex.has(u.name) || known.has(u.name)) continue;
       const s = suggest(u.name, [...params, ...variables]);
-      const fix = s ? `did you mean '${s}'?` : `declare it under params${variables.length ? ` or bind it as a variable (${variables.join(', ')})` : ''}`;
-      throw new FormulaError(`unknown identifier ${quoteName(u.name, u.quoted)} at column ${col(u.span.start)} — ${fix}`, u.span, s ? `did you mean '${s}'?` : undefined);
+      const fix = s ? `did you mean ${writtenName(s)}?` : `declare it under params${variables.length ? ` or bind it as a variable (${variables.join(', ')})` : ''}`;
+      throw new FormulaError(`unknown identifier ${quoteName(u.name, u.quoted)} at column ${col(u.span.start)} — ${fix}`, u.span, s ? `did you mean ${writtenName(s)}?` : undefined);
     }
   } else {
     params = [];

@@ -1,7 +1,7 @@
 // Public API of the formula language: parse, inspect, format and compile formulas to fast evaluators with exact
 // derivatives (symbolic differentiation on a hash-consed graph + JavaScript code generation; see bench/formula-derivatives.ts).
 
-import { compileFormula, identUses, quoteName } from './compile';
+import { compileFormula, identUses, quoteName, writtenName } from './compile';
 import { col } from './lexer';
 import { parseFormula } from './parser';
 import { suggest } from './suggest';
@@ -55,11 +55,11 @@ export function compileExpression(text: string, columns: string[], opts: { logic
       const s = suggest(u.name, columns);
       const listed = columns.length <= 12 ? columns.join(', ') : `${columns.slice(0, 12).join(', ')}, …`;
       const fix = s
-        ? `did you mean '${s}'?`
+        ? `did you mean ${writtenName(s)}?`
         : columns.length
           ? `the columns are: ${listed}; quote a name with spaces in backticks, e.g. \`OD 600\``
           : 'the table has no columns';
-      throw new FormulaError(`unknown column ${quoteName(u.name, u.quoted)} at column ${col(u.span.start)} — ${fix}`, u.span, s ? `did you mean '${s}'?` : undefined);
+      throw new FormulaError(`unknown column ${quoteName(u.name, u.quoted)} at column ${col(u.span.start)} — ${fix}`, u.span, s ? `did you mean ${writtenName(s)}?` : undefined);
     }
     if (!used.includes(u.name)) used.push(u.name);
   }

@@ -48,6 +48,18 @@ export function tokenize(text: string): Token[] {
       i = tokens[tokens.length - 1].end;
       continue;
     }
+    if (c === '.' && i > 0 && IDENT_PART.test(text[i - 1]) && text[i + 1] !== undefined && IDENT_START.test(text[i + 1])) {
+      // 'temp.c': a dotted column name
+      let a = i - 1;
+      while (a > 0 && (IDENT_PART.test(text[a - 1]) || text[a - 1] === '.')) a--;
+      let b = i + 1;
+      while (b < n && (IDENT_PART.test(text[b]) || text[b] === '.')) b++;
+      const name = text.slice(a, b);
+      throw new FormulaError(
+        `unexpected '.' at column ${col(i)} — a name containing '.' must be quoted in backticks, e.g. \`${name}\``,
+        { start: i, end: i + 1 },
+      );
+    }
     if (c === '.') {
       throw new FormulaError(
         `unexpected '.' at column ${col(i)} — a decimal point must be followed by digits, e.g. '0.5'`,

@@ -40,19 +40,21 @@ export class FitCodeActions implements vscode.CodeActionProvider {
       }
       const modelIndex = modelIndexAt(path);
       const model = report && modelIndex >= 0 ? report.models[modelIndex] : undefined;
-      // 2. bounds
+      // 2. bounds: relax a bound the estimate sits on; bound parameters whose values broke the formula
       const param = paramAt(path) ?? quotedParam(d.message, model);
-      if (param && model && /bound|negative|sign|unbounded|diverg|range/i.test(code + ' ' + d.message)) {
-        const pr = model.params[param];
-        if (pr?.atBound) {
-          const key = pr.atBound;
-          out.push(this.edit(doc, d, `Remove the ${key} bound of '${param}'`, ['models', modelIndex, 'params', param, key], undefined));
-        } else if (pr) {
-          const v = pr.value;
-          const [lo, hi] = v >= 0 ? [0, undefined] : [undefined, 0];
-          const a = this.edit(doc, d, `Add bounds to '${param}' (${lo !== undefined ? `min ${lo}` : `max ${hi}`})`,
-            ['models', modelIndex, 'params', param, lo !== undefined ? 'min' : 'max'], 0);
-          out.push(a);
+      const specParams = specParamsOf(text, modelIndex);
+      if (model && param && (code === 'param-at-bound' || /at-bound/.test(code))) {
+        const key = model.params[param]?.atBound;
+        if (key && specParams[param]?.[key] !== undefined) {
+          out.push(this.edit(doc, d, `Remove the ${key} bound of '${param}' (the best fit may lie beyond it)`, ['models', modelIndex, 'params', param, key], undefined));
+        }
+      } else if (model && (code === 'non-finite-values' || /through-bound|crossed-bound|negative/.test(code))) {
+        const names = param ? [param] : model.paramOrder.filter(n => !model.params[n]?.fixed);
+        for (const n of names.slice(0, 6)) {
+          if (specParams[n]?.min !== undefined || specParams[n]?.max !== undefined) continue;
+          const v = model.params[n]?.value;
+          const key = typeof v === 'number' && v < 0 ? 'max' : 'min';
+          out.push(this.edit(doc, d, `Add bounds to '${n}' (${key} 0) to keep it in the valid region`, ['models', modelIndex, 'params', n, key], 0));
         }
       }
       // 3. overfitting model
@@ -60,8 +62,12 @@ export class FitCodeActions implements vscode.CodeActionProvider {
         out.push(this.edit(doc, d, `Remove model '${model.name}' from the spec`, ['models', modelIndex], undefined));
       }
       // 4. iteration limit
+      if (model && model.termination === 'time-limit' && /converge|time/i.test(code)) {
+        const cur = currentSolver(text, modelIndex, 'seconds') ?? 10;
+        out.push(this.edit(doc, d, `Raise solver.seconds of '${model.name}' to ${cur * 4}`, ['models', modelIndex, 'solver', 'seconds'], cur * 4));
+      }
       if (model && (/iteration/i.test(code) || model.termination === 'iteration-limit') && /iteration|converge/i.test(code + d.message)) {
-        const cur = currentMaxIterations(text, modelIndex) ?? Math.max(model.iterations, 100);
+        const cur = currentSolver(text, modelIndex, 'maxIterations') ?? Math.max(model.iterations, 100);
         const next = Math.max(1000, cur * 4);
         out.push(this.edit(doc, d, `Raise solver.maxIterations of '${model.name}' to ${next}`, ['models', modelIndex, 'solver', 'maxIterations'], next));
       }
@@ -99,10 +105,17 @@ function quotedParam(message: string, model: ModelReport | undefined): string | 
   return undefined;
 }
 
-function currentMaxIterations(text: string, i: number): number | undefined {
-  const raw = jsonc.parse(text, [], { allowTrailingComma: true }) as { models?: { solver?: { maxIterations?: unknown } }[] };
-  const v = raw?.models?.[i]?.solver?.maxIterations;
+function currentSolver(text: string, i: number, key: 'maxIterations' | 'seconds'): number | undefined {
+  const raw = jsonc.parse(text, [], { allowTrailingComma: true }) as { models?: { solver?: Record<string, unknown> }[] };
+  const v = raw?.models?.[i]?.solver?.[key];
   return typeof v === 'number' ? v : undefined;
+}
+
+function specParamsOf(text: string, i: number): Record<string, { min?: unknown; max?: unknown } | undefined> {
+  if (i < 0) return {};
+  const raw = jsonc.parse(text, [], { allowTrailingComma: true }) as { models?: { params?: Record<string, { min?: unknown; max?: unknown }> }[] };
+  const p = raw?.models?.[i]?.params;
+  return p && typeof p === 'object' ? p : {};
 }
 
 function escapeRe(s: string): string { return s.replace(/[.*+?^${}()|[\]\\]/g, '\\$&'); }

@@ -40,6 +40,7 @@ export function activate(context: vscode.ExtensionContext): CurvewrightApi {
     workerPath: vscode.Uri.joinPath(context.extensionUri, 'dist', 'worker.js').fsPath,
     size: () => settings().workers,
     cancelTimeoutMs: () => settings().cancelTimeoutMs,
+    log,
   });
   context.subscriptions.push({ dispose: () => pool.dispose() });
   const ownWrites = new OwnWrites();

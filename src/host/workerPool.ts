@@ -2,7 +2,6 @@
 // in flight; a worker that does not answer a cancel within the timeout is terminated and replaced on next use.
 import { Worker } from 'worker_threads';
 import type { RunRequest, SpecSuggestion, WorkerInit, WorkerToHost, WorkerResultMessage } from '../protocol';
-import { log } from './log';
 
 export type RunOutcome =
   | { kind: 'result'; message: WorkerResultMessage }
@@ -26,11 +25,17 @@ interface Slot {
   suggests: Map<number, (m: { suggestion?: SpecSuggestion; error?: string }) => void>;
 }
 
+export interface PoolLog { info(m: string): void; warn(m: string): void; error(m: string): void }
+
 export interface PoolOptions {
   workerPath: string;
   size: () => number;
   cancelTimeoutMs: () => number;
+  /** where to log (the host passes its output channel; the pool itself needs no vscode) */
+  log?: PoolLog;
 }
+
+const quiet: PoolLog = { info() {}, warn() {}, error() {} };
 
 export class WorkerPool {
   private slots: Slot[] = [];
@@ -41,7 +46,8 @@ export class WorkerPool {
   /** counters for tests and the log */
   readonly stats = { started: 0, terminated: 0, runs: 0, cancelled: 0 };
 
-  constructor(private readonly opts: PoolOptions) {}
+  private readonly log: PoolLog;
+  constructor(private readonly opts: PoolOptions) { this.log = opts.log ?? quiet; }
 
   /** Run a spec; any earlier run with the same key is cancelled (its promise resolves 'cancelled'). */
   run(key: string, req: Omit<RunRequest, 'type' | 'id'>, onProgress?: (m: string) => void): Promise<RunOutcome> {
@@ -71,7 +77,7 @@ export class WorkerPool {
     job.resolve({ kind: 'cancelled' });
     job.cancelTimer = setTimeout(() => {
       if (slot.job === job) {
-        log.warn(`worker did not stop run ${job.id} within ${this.opts.cancelTimeoutMs()} ms; terminating it`);
+        this.log.warn(`worker did not stop run ${job.id} within ${this.opts.cancelTimeoutMs()} ms; terminating it`);
         this.killSlot(slot);
         this.drain();
       }
@@ -110,17 +116,17 @@ export class WorkerPool {
     this.stats.started++;
     worker.on('message', (m: WorkerToHost) => this.onMessage(slot, m));
     worker.on('error', e => {
-      log.error(`engine worker crashed: ${e.stack || e.message}`);
+      this.log.error(`engine worker crashed: ${e.stack || e.message}`);
       this.failSlot(slot, `The fitting engine stopped unexpectedly: ${e.message}. It restarts on the next fit; see the Curvewright log.`);
     });
     worker.on('exit', code => {
       if (this.slots.includes(slot)) {
-        if (code !== 0) log.warn(`engine worker exited with code ${code}`);
+        if (code !== 0) this.log.warn(`engine worker exited with code ${code}`);
         this.failSlot(slot, `The fitting engine exited (code ${code}). It restarts on the next fit.`);
       }
     });
     this.slots.push(slot);
-    log.info(`engine worker started (${this.slots.length} of at most ${this.opts.size()})`);
+    this.log.info(`engine worker started (${this.slots.length} of at most ${this.opts.size()})`);
     return slot;
   }
 

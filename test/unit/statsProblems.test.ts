@@ -114,6 +114,11 @@ describe('stats problems', () => {
     const p = only(r, 'param-correlation');
     assert.deepEqual(p.path, ['models', 0, 'params', 'a']);
     assert.match(p.message, /a and b/);
+    // several correlated pairs give one problem that lists them, strongest first
+    const cubic = run({ formula: 'a + b*x + c*x^2 + d*x^3', x, y: x.map((v, i) => 2 + 0.5 * v + 0.2 * noise(20, 2)[i]), options: { crossValidate: false } });
+    const found = cubic.problems.filter((q) => q.code === 'param-correlation');
+    assert.equal(found.length, 1);
+    assert.match(found[0].message, /more pair|, /);
   });
 
   it('overfit-dof: fewer than 2 residual degrees of freedom', () => {

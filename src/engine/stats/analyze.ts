@@ -532,24 +532,30 @@ function detectProblems(input: ModelAnalysisInput, report: ModelReport, k: Facts
     }
   }
 
-  // pairwise correlation of the estimates
+  // pairwise correlation of the estimates: one problem per model, strongest pair first
   const cor = report.correlation;
   if (cor) {
+    const pairs: { a: number; b: number; r: number }[] = [];
     for (let a = 0; a < p; a++) {
       for (let b = a + 1; b < p; b++) {
         const c = cor[a][b];
-        if (c !== null && Math.abs(c) > th.paramCorrelation) {
-          problems.push({
-            code: 'param-correlation',
-            severity: 'warning',
-            message:
-              `${name}: the estimates of ${params[a]} and ${params[b]} are correlated (r = ${c.toFixed(4)}, beyond ±${th.paramCorrelation}). ` +
-              `The data mainly determine a combination of the two, so each alone is uncertain and sensitive to the start. ` +
-              `Reparametrise (e.g. centre x), fix one of them, or collect data that separate their effects.`,
-            path: [...base, 'params', params[a]],
-          });
-        }
+        if (c !== null && Math.abs(c) > th.paramCorrelation) pairs.push({ a, b, r: c });
       }
+    }
+    if (pairs.length > 0) {
+      pairs.sort((u, v) => Math.abs(v.r) - Math.abs(u.r));
+      const top = pairs[0];
+      const listed = pairs.slice(0, 4).map((q) => `${params[q.a]} and ${params[q.b]} (r = ${q.r.toFixed(4)})`);
+      const more = pairs.length > 4 ? ` and ${pairs.length - 4} more pair${pairs.length - 4 === 1 ? '' : 's'}` : '';
+      problems.push({
+        code: 'param-correlation',
+        severity: 'warning',
+        message:
+          `${name}: the estimates of ${listed.join(', ')}${more} are correlated beyond ±${th.paramCorrelation}. ` +
+          `The data mainly determine a combination of ${pairs.length === 1 ? 'the two' : 'each pair'}, so each alone is uncertain and sensitive to the start. ` +
+          `Reparametrise (e.g. centre x), fix one of them, or collect data that separate their effects.`,
+        path: [...base, 'params', params[top.a]],
+      });
     }
   }
 

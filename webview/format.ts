@@ -57,6 +57,16 @@ export function fmtEstimate(value: number | null | undefined, se?: number | null
   return fmtNum(value, sig);
 }
 
+/**
+ * A coefficient of determination: at least 4 significant digits, and enough that a value just below 1 never shows
+ * as "1" (0.99999912 -> "0.9999991"): the digits run to the first digit that is not a 9.
+ */
+export function fmtR2(r2: number | null | undefined): string {
+  if (!isNum(r2) || !Number.isFinite(r2) || r2 >= 1 || r2 <= 0) return fmtNum(r2, 4);
+  const nines = Math.floor(-Math.log10(1 - r2)); // 0.9991 -> 3
+  return fmtNum(r2, Math.min(15, Math.max(4, nines + 1)));
+}
+
 /** A p-value: three significant digits down to 0.001, then scientific; exactly 0 shows as "< 1e-300". */
 export function fmtP(p: number | null | undefined): string {
   if (!isNum(p)) return MISSING;

@@ -24,7 +24,7 @@ import type {
 import type { ExportFormat } from '../src/protocol';
 import { decimateLine, decimateScatter } from './decimate';
 import { boxSwatch, h, lineSwatch, setChildren, type Child } from './dom';
-import { MISSING, fmtEstimate, fmtInt, fmtInterval, fmtNum, fmtP, fmtPct } from './format';
+import { MISSING, fmtEstimate, fmtInt, fmtInterval, fmtNum, fmtP, fmtPct, fmtR2 } from './format';
 import { dashFor, withAlpha, type ThemeColors } from './theme';
 
 Chart.register(ScatterController, LineElement, PointElement, LinearScale, LogarithmicScale, Tooltip, Filler);
@@ -170,6 +170,7 @@ export class ReportView {
   private mainKinds: Kind[] = [];
   private residKinds: Kind[] = [];
   private openModels = new Set<string>();
+  private allProblems = false;
   private closedModels = new Set<string>();
 
   private readonly el: {
@@ -406,7 +407,20 @@ export class ReportView {
     for (const x of all) counts[x.p.severity]++;
     const summary = (['error', 'warning', 'info'] as const).filter(s => counts[s]).map(s => `${counts[s]} ${s}${counts[s] > 1 ? 's' : ''}`).join(', ');
     el.hidden = false;
-    el.replaceChildren(h('h2', { class: 'cw-h2' }, 'Problems ', h('span', { class: 'cw-count' }, summary)), this.problemList(all));
+    // A long list would push the plot out of sight: show the most severe first and fold the rest (report-level
+    // problems and the selected model's come before other models' at the same severity).
+    const sel = this.selectedModel(r)?.name;
+    const weight = (x: { p: Problem; model?: string }) => SEVERITY_RANK[x.p.severity] * 3 + (x.model === undefined ? 0 : x.model === sel ? 1 : 2);
+    all.sort((a, b) => weight(a) - weight(b));
+    const LIMIT = 6;
+    const folded = !this.allProblems && all.length > LIMIT + 1;
+    const shown = folded ? all.slice(0, LIMIT) : all;
+    const toggle = all.length > LIMIT + 1
+      ? h('button', { class: 'cw-link cw-more', type: 'button', 'aria-expanded': folded ? 'false' : 'true', onclick: () => { this.allProblems = !this.allProblems; this.drawProblems(r); } },
+        folded ? `Show all ${all.length} problems` : 'Show fewer')
+      : null;
+    el.replaceChildren(h('h2', { class: 'cw-h2' }, 'Problems ', h('span', { class: 'cw-count' }, summary)), this.problemList(shown));
+    if (toggle) el.append(toggle);
   }
 
   private problemList(items: { p: Problem; model?: string }[]): HTMLElement {
@@ -814,7 +828,7 @@ export class ReportView {
         h('td', { class: 'num' }, fmtNum(row.deltaAicc, 3)),
         h('td', { class: 'num' }, weightCell),
         h('td', { class: 'num' }, fmtNum(row.cvRmse, 4)),
-        h('td', { class: 'num' }, fmtNum(m?.stats.r2, 5)),
+        h('td', { class: 'num' }, fmtR2(m?.stats.r2)),
       );
       tr.addEventListener('click', () => this.setState({ selected: row.name }));
       return tr;
@@ -874,8 +888,8 @@ export class ReportView {
 
     const stat = (label: string, value: string, title?: string) => [h('dt', title ? { title } : null, label), h('dd', null, value)];
     const statsList = h('dl', { class: 'cw-stats' },
-      stat(s.r2Uncentred ? 'R\u00b2 (uncentred)' : 'R\u00b2', fmtNum(s.r2, 6)),
-      stat('adjusted R\u00b2', fmtNum(s.adjR2, 6)),
+      stat(s.r2Uncentred ? 'R\u00b2 (uncentred)' : 'R\u00b2', fmtR2(s.r2)),
+      stat('adjusted R\u00b2', fmtR2(s.adjR2)),
       stat('\u03c3 (residual SE)', fmtNum(s.sigma, 4), 'sqrt(SSE / dof)'),
       stat('RMSE', fmtNum(s.rmse, 4), 'sqrt(SSE / n)'),
       stat('SSE', fmtNum(s.sse, 5)),

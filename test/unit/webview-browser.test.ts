@@ -179,7 +179,13 @@ describe('webview in a real browser (headless Chromium)', function () {
 
   it('draws an ErrorReport as an error box with the message and location, and several specs as sections', async function () {
     const err: ErrorReport = { version: 1, spec: 'assay.fitspec.json', error: { message: "unknown identifier 'K2' at column 5 \u2014 did you mean 'K'?", path: ['models', 1, 'formula'], location: { file: 'assay.fitspec.json', line: 12, column: 18 } } };
-    const { page, problems, ctx } = await openReport([sampleReport(), err], 'two');
+    const many = sampleReport();
+    for (let k = 0; k < 12; k++) many.models[1]!.problems.push({ code: 'poorly-determined', severity: 'warning', message: `invented warning ${k}`, path: ['models', 1] });
+    const { page, problems, ctx } = await openReport([many, err], 'two');
+    // 16 problems: the 6 most severe show, the rest fold behind a button.
+    assert.strictEqual(await page.$$eval('#cw-spec-1 .cw-problem', l => l.length), 6);
+    await page.click('#cw-spec-1 button.cw-more');
+    assert.strictEqual(await page.$$eval('#cw-spec-1 .cw-problem', l => l.length), 16);
     assert.strictEqual(await page.$$eval('section.cw-spec', s => s.length), 2);
     const box = await page.innerText('#cw-spec-2 .cw-error');
     assert.ok(box.includes('could not be run') && box.includes("unknown identifier 'K2'") && box.includes('assay.fitspec.json:12:18'), box);

@@ -4,7 +4,7 @@ import * as assert from 'assert';
 import { createHash } from 'crypto';
 import { buildReportHtml, escapeHtml, jsonForScript, panelHtml, scriptForInline } from '../../webview/html';
 import { DECIMATE_THRESHOLD, decimateLine, decimateScatter } from '../../webview/decimate';
-import { fmtEstimate, fmtInt, fmtInterval, fmtNum, fmtP, fmtPct } from '../../webview/format';
+import { fmtEstimate, fmtInt, fmtInterval, fmtNum, fmtP, fmtPct, fmtR2 } from '../../webview/format';
 import { formatPath, parametersCsv, reportJson } from '../../webview/render';
 import { dashFor, withAlpha } from '../../webview/theme';
 import type { ErrorReport, RunResult } from '../../src/engine/report';
@@ -197,6 +197,15 @@ describe('webview number formatting', function () {
     assert.strictEqual(fmtEstimate(0.5, 1e-12), '0.5'); // capped at 8 significant digits, zeros trimmed
     assert.strictEqual(fmtEstimate(3.14159265, null), '3.14159');
     assert.strictEqual(fmtEstimate(123456, 5e4), '123000'); // at least 3 significant digits
+  });
+
+  it('never shows an R\u00b2 just below 1 as 1', function () {
+    assert.strictEqual(fmtR2(0.99999912), '0.9999991');
+    assert.strictEqual(fmtR2(0.9971), '0.9971');
+    assert.strictEqual(fmtR2(0.72359), '0.7236');
+    assert.strictEqual(fmtR2(1), '1');
+    assert.strictEqual(fmtR2(-0.25), '\u22120.25');
+    assert.strictEqual(fmtR2(null), '\u2014');
   });
 
   it('formats p-values, percentages, intervals and counts', function () {

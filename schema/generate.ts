@@ -5,6 +5,7 @@ import * as fs from 'fs';
 import * as path from 'path';
 import { BUILTINS } from '../src/engine/models';
 import { DEFAULTS, THRESHOLD_KEYS } from '../src/engine/spec/defaults';
+import { MAX_DEGREE } from '../src/engine/spec/validate';
 import { DEFAULT_THRESHOLDS } from '../src/engine/stats/thresholds';
 
 type Schema = Record<string, unknown>;
@@ -70,7 +71,7 @@ export function fitspecSchema(): Schema {
         enum: ids,
         enumDescriptions: ids.map((id) => `${BUILTINS[id].formula} — parameters ${BUILTINS[id].params.join(', ')}`),
       },
-      polynomial: int('Degree n of a polynomial c0 + c1*x + … + cn*x^n in the single x variable (coefficients c0 … cn, raw basis).', { minimum: 0 }),
+      polynomial: int('Degree n of a polynomial c0 + c1*x + … + cn*x^n in the single x variable (coefficients c0 … cn, raw basis).', { minimum: 0, maximum: MAX_DEGREE }),
       formula: str(
         'A formula in the variables bound by data.x, e.g. "K / (1 + exp(-r*(x - t0)))". Every other name (except the functions and the constants pi and e) is a parameter. Column names with spaces go in backticks.',
         { minLength: 1 },

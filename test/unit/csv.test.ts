@@ -292,3 +292,19 @@ describe('csv: line numbers with quoted multi-line fields and blank lines (prope
     );
   });
 });
+
+describe('csv: round trip of numbers (property test, fast-check)', () => {
+  it('every finite double written with String() reads back identical, with "." and with ","', async () => {
+    await fc.assert(
+      fc.asyncProperty(fc.array(fc.double({ noNaN: true, noDefaultInfinity: true }), { minLength: 1, maxLength: 50 }), async (xs) => {
+        const dot = write('rt-dot.csv', 'v,w\n' + xs.map((x, i) => `${String(x)},${i}`).join('\n') + '\n');
+        const t = await readTable(dot, { columns: ['v'] });
+        assert.deepStrictEqual([...t.values.v], xs.map((x) => (Object.is(x, -0) ? 0 : x)));
+        const comma = write('rt-comma.csv', 'v;w\n' + xs.map((x, i) => `${String(x).replace('.', ',')};${i}`).join('\n') + '\n');
+        const c = await readTable(comma, { columns: ['v'], decimal: ',' });
+        assert.deepStrictEqual([...c.values.v], xs.map((x) => (Object.is(x, -0) ? 0 : x)));
+      }),
+      { numRuns: 100, seed: 5 },
+    );
+  });
+});

@@ -179,6 +179,7 @@ describe('schema: fitspec.schema.json', () => {
     ['unknown builtin', (s) => ((s.models as Record<string, unknown>[])[0].builtin = 'logistic7')],
     ['negative degree', (s) => (s.models = [{ name: 'p', polynomial: -1 }])],
     ['fractional degree', (s) => (s.models = [{ name: 'p', polynomial: 1.5 }])],
+    ['degree 21', (s) => (s.models = [{ name: 'p', polynomial: 21 }])],
     ['model without name', (s) => (s.models = [{ builtin: 'linear' }])],
     ['confidence 95', (s) => (s.confidence = 95)],
     ['confidence 1', (s) => (s.confidence = 1)],

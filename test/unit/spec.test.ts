@@ -126,6 +126,7 @@ describe('spec: validateSpec normalises', () => {
     assert.deepStrictEqual(s.solveFor, []);
     assert.deepStrictEqual(s.models.map((m) => [m.name, m.kind, m.index]), [['logistic', 'builtin', 0], ['cubic', 'polynomial', 1]]);
     assert.strictEqual(s.models[0].solver.seconds, 20);
+    assert.strictEqual(s.models[0].params, undefined, 'params stays absent when not given (a formula then fits every name)');
   });
 
   it('keeps several variables, backticks a column name that is not an identifier, and accepts predict objects', () => {
@@ -207,10 +208,10 @@ describe('spec: validateSpec reports every problem with path and location', () =
   });
 
   it('polynomial degree must be a non-negative whole number, with a single x variable', () => {
-    for (const bad of ['-1', '2.5', '"3"']) {
+    for (const bad of ['-1', '2.5', '"3"', '21']) {
       const p = one(check(spec(`{ "name": "p", "polynomial": ${bad} }`)).problems, 'spec-polynomial-degree');
       assert.deepStrictEqual(p.path, ['models', 0, 'polynomial']);
-      assert.match(p.message, /the degree: a whole number/);
+      assert.match(p.message, bad === '21' ? /above the limit of 20/ : /the degree: a whole number/);
     }
     const r = check(spec('{ "name": "p", "polynomial": 2 }', '', '"file": "a.csv", "x": { "t": "hours", "T": "temp_c" }, "y": "od600"'));
     assert.match(one(r.problems, 'spec-polynomial-variables').message, /needs a single x variable.*'t', 'T'/);
@@ -451,5 +452,35 @@ describe('spec: never throws (property tests, fast-check)', () => {
       }),
       { numRuns: 400, seed: 7 },
     );
+  });
+});
+
+describe('spec: round trip', () => {
+  /** the FitSpec a NormalizedSpec stands for (internal fields dropped, paths as written) */
+  function denormalize(s: NormalizedSpec): Record<string, unknown> {
+    const { file: _abs, fileGiven, ...data } = s.data;
+    return {
+      ...(s.title !== undefined ? { title: s.title } : {}),
+      data: { ...data, file: fileGiven },
+      models: s.models.map(({ kind: _k, index: _i, ...m }) => m),
+      confidence: s.confidence,
+      predict: s.predict,
+      solveFor: s.solveFor,
+      ...(s.outputGiven !== undefined ? { output: s.outputGiven } : {}),
+      expect: s.expect,
+      thresholds: s.thresholds,
+    };
+  }
+  it('validating the normalised spec again gives the same normalised spec (idempotent)', () => {
+    const text = spec(
+      '{ "name": "logistic", "builtin": "logistic3", "params": { "K": { "start": 2, "min": 0 } } }, { "name": "q", "polynomial": 2, "params": { "c0": { "start": 0, "fixed": true } } }, { "name": "f", "formula": "a*exp(-k*x)", "solver": { "multiStart": 5 } }',
+      '"title": "t", "confidence": 0.9, "predict": [1, 2], "solveFor": [0.5], "output": "out/r.json", "expect": { "logistic": { "K": { "value": 2, "rel": 0.1 } } }, "thresholds": { "runsP": 0.05 }',
+      '"file": "d.csv", "x": "hours", "y": "log(`OD 600`)", "sigma": "od_sd", "where": "reactor == 1", "exclude": [{ "row": 3, "reason": "spill" }], "sigmaMode": "absolute", "delimiter": ";", "decimal": ",", "badRows": "fail"',
+    );
+    const first = check(text);
+    assert.deepStrictEqual(first.problems, []);
+    const again = validateSpec(JSON.parse(JSON.stringify(denormalize(first.spec as NormalizedSpec))), { file: SPEC, columns: COLUMNS, workspaceRoot: ROOT });
+    assert.deepStrictEqual(again.problems, []);
+    assert.deepStrictEqual(again.spec, first.spec);
   });
 });

@@ -20,7 +20,11 @@ export interface NormalizedModel extends ModelSpec {
   kind: 'builtin' | 'polynomial' | 'formula';
   /** position in the spec's models array (for JSON paths) */
   index: number;
-  params: Record<string, ParamSpec>;
+  /**
+   * per-parameter settings, only when the spec gives `params` (for a formula, a missing params means every
+   * non-variable name is a parameter, while {} would declare none)
+   */
+  params?: Record<string, ParamSpec>;
   solver: Required<SolverSpec>;
 }
 

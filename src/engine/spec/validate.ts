@@ -42,6 +42,9 @@ const EXCLUDE_KEYS = ['row', 'reason'];
 
 type Obj = Record<string, unknown>;
 
+/** highest polynomial degree accepted (the model builder's limit) */
+export const MAX_DEGREE = 20;
+
 function isObj(v: unknown): v is Obj {
   return typeof v === 'object' && v !== null && !Array.isArray(v);
 }
@@ -582,6 +585,8 @@ function checkModel(c: Checker, ctx: ValidateContext, m: unknown, i: number, var
     const n = m.polynomial;
     if (!isNum(n) || !Number.isInteger(n) || n < 0)
       c.add('spec-polynomial-degree', [...P, 'polynomial'], `"polynomial" is the degree: a whole number 0, 1, 2, …, not ${typeName(n)}`);
+    else if (n > MAX_DEGREE)
+      c.add('spec-polynomial-degree', [...P, 'polynomial'], `polynomial degree ${n} is above the limit of ${MAX_DEGREE} — raw-basis polynomials that high are numerically meaningless; use a lower degree or a formula`);
     else {
       params = polynomialParams(n);
       if (variables.length !== 1)
@@ -694,7 +699,8 @@ function checkModel(c: Checker, ctx: ValidateContext, m: unknown, i: number, var
   }
 
   if (c.errors > errorsBefore || name === undefined || kind === undefined) return undefined;
-  const out: NormalizedModel = { name, kind, index: i, params: nparams, solver };
+  const out: NormalizedModel = { name, kind, index: i, solver };
+  if (rp !== undefined) out.params = nparams;
   if (kind === 'builtin') out.builtin = m.builtin as string;
   if (kind === 'polynomial') out.polynomial = m.polynomial as number;
   if (kind === 'formula') out.formula = m.formula as string;

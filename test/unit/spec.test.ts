@@ -198,13 +198,14 @@ describe('spec: validateSpec reports every problem with path and location', () =
     assert.deepStrictEqual(p.location, { file: SPEC, ...lineColOf(text, '"logistc4"') });
   });
 
-  it('built-in parameters: unknown name with did-you-mean; built-ins need the variable x', () => {
+  it('built-in parameters: unknown name with did-you-mean; built-ins need a single x variable (of any name)', () => {
     const r = check(spec('{ "name": "m", "builtin": "logistic4", "params": { "ec5": { "start": 1 } } }'));
     const p = one(r.problems, 'spec-unknown-param');
     assert.deepStrictEqual(p.path, ['models', 0, 'params', 'ec5']);
     assert.match(p.message, /parameter 'ec5' is not a parameter of model 'm' — did you mean 'ec50'\?/);
-    const r2 = check(spec('{ "name": "m", "builtin": "linear" }', '', '"file": "a.csv", "x": { "t": "hours" }, "y": "od600"'));
-    assert.match(one(r2.problems, 'spec-builtin-variable').message, /written in the variable x.*'t'/);
+    const r2 = check(spec('{ "name": "m", "builtin": "linear" }', '', '"file": "a.csv", "x": { "t": "hours", "T": "temp_c" }, "y": "od600"'));
+    assert.match(one(r2.problems, 'spec-builtin-variable').message, /built-in model 'linear' needs a single x variable, but data.x binds 't', 'T'/);
+    assert.deepStrictEqual(check(spec('{ "name": "m", "builtin": "linear" }', '', '"file": "a.csv", "x": { "t": "hours" }, "y": "od600"')).problems, []);
   });
 
   it('polynomial degree must be a non-negative whole number, with a single x variable', () => {

@@ -578,8 +578,9 @@ function checkModel(c: Checker, ctx: ValidateContext, m: unknown, i: number, var
     }
     else {
       params = [...BUILTIN_PARAMS[b]];
-      if (!variables.includes('x'))
-        c.add('spec-builtin-variable', [...P, 'builtin'], `built-in models are written in the variable x, but data.x binds ${quoteList(variables)} — bind one as "x" or use a formula`);
+      // the catalogue formulas are in x; the single data variable is bound to x whatever its name
+      if (variables.length !== 1)
+        c.add('spec-builtin-variable', [...P, 'builtin'], `built-in model '${b}' needs a single x variable, but data.x binds ${quoteList(variables)} — use a formula for several variables`);
     }
   } else if (kind === 'polynomial') {
     const n = m.polynomial;

@@ -39,10 +39,20 @@ export async function staleness(report: FitReport, outputAbs: string, outShown: 
 export function verdictOf(report: FitReport, specShown: string, strict: boolean): Verdict {
   const failures: string[] = [];
   const warnings: string[] = [];
-  for (const m of report.models)
-    if (m.status !== 'converged') failures.push(`model '${m.name}' did not converge (${m.termination}) — give start values or bounds in models[${report.models.indexOf(m)}].params, or remove the model`);
+  report.models.forEach((m, i) => {
+    if (m.status === 'converged') return;
+    const advice: Record<string, string> = {
+      singular: 'its parameters cannot all be determined from these data (see the problem below)',
+      'non-finite': 'the formula gave non-finite values — check its domain (log, sqrt, division) and add bounds in models[' + i + '].params',
+      'iteration-limit': `give start values in models[${i}].params or raise models[${i}].solver.maxIterations`,
+      'time-limit': `give start values in models[${i}].params or raise models[${i}].solver.seconds`,
+      cancelled: 'the run was cancelled',
+    };
+    failures.push(`model '${m.name}' did not converge (${m.termination}) — ${advice[m.termination] ?? `give start values or bounds in models[${i}].params, or remove the model`}`);
+  });
   for (const { problem, model } of allProblems(report)) {
-    const line = `${model ? `model '${model}': ` : ''}${problemLine(problem, specShown)}`;
+    const named = model !== undefined && !problem.message.startsWith(`${model}:`) && !problem.message.startsWith(`${model} `);
+    const line = `${named ? `model '${model}': ` : ''}${problemLine(problem, specShown)}`;
     if (problem.severity === 'error') failures.push(line);
     else if (problem.severity === 'warning') (strict ? failures : warnings).push(line);
   }
@@ -105,7 +115,7 @@ export async function checkCommand(parsed: Parsed, io: Io): Promise<number> {
     else failed++;
     if (!ok) code = Math.max(code, 1);
     const r = result;
-    const summary = `${r.models.length} model${r.models.length === 1 ? '' : 's'}, ${r.expect.filter(e => e.ok).length}/${r.expect.length} expectations met${verdict.warnings.length ? `, ${verdict.warnings.length} warning${verdict.warnings.length === 1 ? '' : 's'}` : ''}`;
+    const summary = `${r.models.length} model${r.models.length === 1 ? '' : 's'}, ${r.expect.length ? `${r.expect.filter(e => e.ok).length}/${r.expect.length} expectations met` : 'no expectations'}${verdict.warnings.length ? `, ${verdict.warnings.length} warning${verdict.warnings.length === 1 ? '' : 's'}` : ''}`;
     const lines = [`${ok ? 'PASS' : 'FAIL'} ${specShown} (${summary})`, ...failures.map(f => indent(f)), ...notes.map(n => indent(n))];
     if (!ok && !strict && verdict.warnings.length) lines.push(indent(`(${verdict.warnings.length} warning${verdict.warnings.length === 1 ? '' : 's'} not counted; --strict fails on them)`));
     (json ? io.err : io.out)(lines.join('\n'));

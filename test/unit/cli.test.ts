@@ -229,6 +229,26 @@ describe('cli', function () {
     });
   });
 
+  describe('check: error-level problems', () => {
+    it('a formula without "params" takes every other name as a parameter; a singular fit fails check, not fit', () => {
+      const sub = tmpDir();
+      write(sub, {
+        'line.csv': 'x,y\n1,2.1\n2,3.9\n3,6.2\n4,8.1\n5,9.8\n6,12.2\n',
+        'ok.fitspec.json': '{ "data": { "file": "line.csv", "x": "x", "y": "y" }, "models": [{ "name": "through0", "formula": "a*x" }] }',
+        'dup.fitspec.json': '{ "data": { "file": "line.csv", "x": "x", "y": "y" }, "models": [{ "name": "dup", "formula": "a*x + b*(2*x)" }] }',
+      });
+      const ok = cw(['check', 'ok.fitspec.json'], sub);
+      assert.equal(ok.code, 0, ok.out + ok.err);
+      assert.match(ok.out, /PASS ok\.fitspec\.json \(1 model, no expectations/);
+      const f = cw(['fit', 'dup.fitspec.json'], sub);
+      assert.equal(f.code, 0, f.err);
+      assert.match(f.out, /error: dup: .*singular.*\[rank-deficient\]/);
+      const c = cw(['check', 'dup.fitspec.json'], sub);
+      assert.equal(c.code, 1);
+      assert.match(c.out, /dup\.fitspec\.json: error \[models\[0\]\]: .*\(rank-deficient\)/);
+    });
+  });
+
   describe('check', () => {
     it('the demo workspace passes (every model converges, expectations met, results up to date)', () => {
       const r = cw(['check', 'examples/*.fitspec.json']);

@@ -169,6 +169,15 @@ describe('run: runSpecFile', function () {
     assert.notEqual(r.meta.specHash, sha256(fs.readFileSync(spec, 'utf8')), 'specHash follows the text given');
   });
 
+  it('reports progress per model, and a cancel ends the fits as "cancelled" instead of throwing', async () => {
+    const notes: string[] = [];
+    const r = asReport(await runSpecFile(spec, { workspaceRoot: dir, onProgress: m => notes.push(m), shouldStop: () => true }));
+    assert.deepEqual(notes, ['reading rate.csv', 'fitting model 1 of 3: line', 'fitting model 2 of 3: mm', 'fitting model 3 of 3: quad']);
+    const mm = r.models.find(m => m.name === 'mm')!;
+    assert.equal(mm.status, 'failed');
+    assert.equal(mm.termination, 'cancelled');
+  });
+
   it('omits per-point arrays from results files above 10,000 rows', async () => {
     const big = tmpDir();
     const z = normalSource(mulberry32(3));

@@ -119,12 +119,22 @@ describe('formula derivatives at the edges', () => {
     const c = compileFormula(text, { variables });
     const g = new Float64Array(c.params.length);
     c.gradientAt(theta, x, g);
-    return [...g];
+    return [...g].map((v) => (v === 0 ? 0 : v)); // -0 and 0 compare equal here
   };
   it('x^n with constant n: n*x^(n-1), finite for a negative base (no log of a negative)', () => {
     assert.deepEqual(grad('(a*x)^2', [-3], [2]), [2 * -6 * 2]);
     assert.deepEqual(grad('(a*x)^3', [-1], [2]), [3 * 4 * 2]);
     assert.deepEqual(grad('c^x', [-2], [3]), [3 * 4], 'parameter base, variable exponent: x*c^(x-1)');
+  });
+  it('at x = 0 where the model does not depend on a parameter, the derivative is 0, not NaN (hand-derived: f is constant in θ there; lim u→0+ of u^b·ln u = 0 for b > 0)', () => {
+    assert.deepEqual(grad('upper - (upper - y0)*exp(-(x/scale)^shape)', [2, 0.1, 5, 0.8], [0]), [0, 1, 0, 0]);
+    assert.deepEqual(grad('upper - (upper - y0)*exp(-(x/scale)^shape)', [2, 0.1, 5, 1.8], [0]), [0, 1, 0, 0]);
+    assert.deepEqual(grad('Vmax*x^n/(K^n + x^n)', [2, 1.5, 0.7], [0]), [0, 0, 0]);
+    assert.deepEqual(grad('x^n', [2], [0]), [0]);
+    assert.deepEqual(grad('sqrt(a*x) + asin(b*x)', [2, 3], [0]), [0, 0]);
+    assert.deepEqual(grad('log(1 + a*x^2)', [2], [0]), [0]);
+    // where the function itself moves, an infinite derivative stays infinite
+    assert.deepEqual(grad('sqrt(a)', [0], [0]), [Infinity]);
   });
   it('general a^b: a^b*(b\'*ln a + b*a\'/a)', () => {
     const [a, b] = [1.7, 2.3];

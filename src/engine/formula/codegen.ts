@@ -76,6 +76,7 @@ export class Emitter {
       case 'or': return `(${r(0)} || ${r(1)} ? 1 : 0)`;
       case 'not': return `(${r(0)} ? 0 : 1)`;
       case 'select': return `(${r(0)} ? ${r(1)} : ${r(2)})`;
+      case 'mulz': return `(${r(1)} === 0 ? 0 : ${r(0)} * ${r(1)})`;
       default: throw new Error(`internal: no code for ${n.op}`);
     }
   }

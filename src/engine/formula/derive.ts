@@ -1,5 +1,6 @@
 // Exact symbolic derivatives on the expression graph (chain rule, one pass in topological order), with
-// power rule n*u^(n-1) for exponents free of the parameter (no log of a negative base) and subgradients for abs/min/max.
+// power rule n*u^(n-1) for exponents free of the parameter (no log of a negative base), subgradients for abs/min/max,
+// and the convention 0·∞ = 0 in chain-rule products whose inner derivative is exactly 0 (limits at u = 0 of u^b, ln, sqrt).
 
 import { Graph } from './graph';
 
@@ -51,10 +52,10 @@ export function derivative(g: Graph, root: number, j: number): number {
           // exponent free of θ_j: b*a^(b-1)*a'
           const nb = g.get(b);
           const expo = nb.op === 'const' ? g.num(nb.value - 1) : g.raw('sub', [b, one]);
-          r = g.mul(g.mul(b, g.pow(a, expo)), da);
+          r = g.mulz(g.mul(b, g.pow(a, expo)), da);
         } else if (isZero(da)) {
-          // base free of θ_j: a^b * ln(a) * b'
-          r = g.mul(g.mul(id, g.call('log', a)), db);
+          // base free of θ_j: a^b * ln(a) * b', with a^b*ln(a) = 0 where a^b = 0 (the limit at a = 0, b > 0)
+          r = g.mul(g.mulz(g.call('log', a), id), db);
         } else {
           // general: a^b * (b' ln a + b a'/a)
           r = g.mul(id, g.add(g.mul(db, g.call('log', a)), g.div(g.mul(b, da), a)));
@@ -64,6 +65,7 @@ export function derivative(g: Graph, root: number, j: number): number {
       case 'fn':
         if (isZero(da)) r = zero;
         else if (n.fn === 'log' || n.fn === 'sqrt' || n.fn === 'log10') r = unaryQuotient(g, n.fn, a, id, da);
+        else if (n.fn === 'asin' || n.fn === 'acos') r = g.mulz(unaryDerivative(g, n.fn, a, id), da);
         else r = g.mul(unaryDerivative(g, n.fn, a, id), da);
         break;
       case 'min':
@@ -83,6 +85,9 @@ export function derivative(g: Graph, root: number, j: number): number {
         r = dx === dy ? dx : g.raw('select', [a, dx, dy]);
         break;
       }
+      case 'mulz':
+        r = g.add(g.mul(da, b), g.mul(a, db));
+        break;
       case 'sign':
       case 'cmp':
       case 'and':
@@ -122,12 +127,12 @@ function unaryDerivative(g: Graph, fn: string, u: number, node: number): number 
   throw new Error(`internal: no derivative rule for ${fn}`);
 }
 
-/** u'/u, u'/(u ln 10), u'/(2 sqrt u) */
+/** u'/u, u'/(u ln 10), u'/(2 sqrt u) — as (1/…)·u' with a zero u' winning (mulz) */
 function unaryQuotient(g: Graph, fn: string, u: number, node: number, du: number): number {
   switch (fn) {
-    case 'log': return g.div(du, u);
-    case 'log10': return g.div(du, g.mul(g.num(Math.LN10), u));
-    case 'sqrt': return g.div(du, g.mul(g.num(2), node));
+    case 'log': return g.mulz(reciprocal(g, u), du);
+    case 'log10': return g.mulz(reciprocal(g, g.mul(g.num(Math.LN10), u)), du);
+    case 'sqrt': return g.mulz(reciprocal(g, g.mul(g.num(2), node)), du);
   }
   throw new Error(`internal: no quotient rule for ${fn}`);
 }

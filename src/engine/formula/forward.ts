@@ -1,6 +1,7 @@
 // Forward-mode automatic differentiation (dual numbers, Griewank & Walther 2008, ch. 3) as generated code over the
 // same expression graph: one value and one tangent per parameter for each node, local partials computed once.
 // Kept as the alternative measured in bench/formula-derivatives.ts and as an independent cross-check in tests.
+// Same conventions as the symbolic derivatives: a zero tangent wins over an infinite local partial (0·∞ = 0).
 
 import { Emitter, numberLiteral } from './codegen';
 import { reachable } from './derive';
@@ -40,8 +41,12 @@ export function generateForwardJacobian(g: Graph, f: number, p: number): { kerne
     const b = n.args[1];
     const va = a === undefined ? '' : e.ref(a);
     const vb = b === undefined ? '' : e.ref(b);
-    const lin = (terms: [string, string | null][]): string => {
-      const parts = terms.filter((t) => t[1] !== null).map(([c, d]) => (c === '1' ? (d as string) : c === '-1' ? `-${d}` : d === '1' ? c : `${c} * ${d}`));
+    const lin = (terms: [string, string | null][], absorb = false): string => {
+      const parts = terms
+        .filter((t) => t[1] !== null)
+        .map(([c, d]) =>
+          c === '1' ? (d as string) : c === '-1' ? `-${d}` : d === '1' ? c : absorb ? `(${d} === 0 ? 0 : ${c} * ${d})` : `${c} * ${d}`,
+        );
       return parts.length === 0 ? '0' : parts.join(' + ');
     };
     const local = (name: string, expr: string) => {
@@ -62,8 +67,8 @@ export function generateForwardJacobian(g: Graph, f: number, p: number): { kerne
       }
       case 'pow': {
         const pa = (deps.get(a) as number[]).length ? local('pa', `${vb} * Math.pow(${va}, ${vb} - 1)`) : '0';
-        const pb = (deps.get(b) as number[]).length ? local('pb', `${v} * Math.log(${va})`) : '0';
-        rule = (j) => lin([[pa, tangent(a, j)], [pb, tangent(b, j)]]);
+        const pb = (deps.get(b) as number[]).length ? local('pb', `(${v} === 0 ? 0 : ${v} * Math.log(${va}))`) : '0';
+        rule = (j) => lin([[pa, tangent(a, j)], [pb, tangent(b, j)]], true);
         break;
       }
       case 'fn': {
@@ -74,7 +79,8 @@ export function generateForwardJacobian(g: Graph, f: number, p: number): { kerne
           sinh: `Math.cosh(${va})`, cosh: `Math.sinh(${va})`, tanh: `1 - ${v} * ${v}`,
         };
         const pu = n.fn === 'exp' ? v : local('pu', partial[n.fn]);
-        rule = (j) => lin([[pu, tangent(a, j)]]);
+        const absorb = ['log', 'log10', 'sqrt', 'asin', 'acos'].includes(n.fn);
+        rule = (j) => lin([[pu, tangent(a, j)]], absorb);
         break;
       }
       case 'min':

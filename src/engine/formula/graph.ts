@@ -11,7 +11,8 @@ export type Op =
   | 'sign'
   | 'cmp' /* comparison, operator in fn; 1 or 0 */
   | 'and' | 'or' | 'not'
-  | 'select' /* args[0] ? args[1] : args[2] (args[0] is 0/1) */;
+  | 'select' /* args[0] ? args[1] : args[2] (args[0] is 0/1) */
+  | 'mulz' /* args[1] === 0 ? 0 : args[0]*args[1] — chain-rule product where a zero inner derivative wins over an infinite outer one */;
 
 export interface GNode {
   readonly id: number;
@@ -63,6 +64,7 @@ export function applyOp(op: Op, fn: string, v: readonly number[]): number {
     case 'or': return v[0] || v[1] ? 1 : 0;
     case 'not': return v[0] ? 0 : 1;
     case 'select': return v[0] ? v[1] : v[2];
+    case 'mulz': return v[1] === 0 ? 0 : v[0] * v[1];
     default: throw new Error(`internal: cannot apply ${op}`);
   }
 }
@@ -182,6 +184,18 @@ export class Graph {
       return this.mul(this.num(1 / nb.value), a);
     }
     return this.raw('div', [a, b]);
+  }
+
+  /**
+   * p*q, except that q = 0 gives 0 even when p is infinite or NaN: used for chain-rule products outer'·inner'
+   * where the outer derivative can be infinite at a point where the inner function does not move
+   * (e.g. ∂/∂scale of (x/scale)^shape at x = 0, or u^b·ln u at u = 0 with b > 0: the limits are 0).
+   */
+  mulz(p: number, q: number): number {
+    if (this.isConst(q)) return this.get(q).value === 0 ? this.num(0) : this.mul(p, q);
+    const np = this.nodes[p];
+    if (np.op === 'const' && Number.isFinite(np.value)) return this.mul(p, q);
+    return this.raw('mulz', [p, q]);
   }
 
   pow(a: number, b: number): number {

@@ -26,6 +26,20 @@ export function norm2(x: ArrayLike<number>, off = 0, len = x.length - off): numb
   return big * Math.sqrt(s);
 }
 
+/** Σ_i a[off + i] · v[i], i < len (a small function so the engine optimises it on its own) */
+export function dotAt(a: Float64Array, off: number, v: Float64Array, len: number): number {
+  let s = 0;
+  for (let i = 0; i < len; i++) s += a[off + i] * v[i];
+  return s;
+}
+
+/** Σ_i (u_i − v_i)(u_i + v_i) = ‖u‖² − ‖v‖² without the cancellation of the difference of squares */
+export function diffOfSquares(u: Float64Array, v: Float64Array, len: number): number {
+  let s = 0;
+  for (let i = 0; i < len; i++) s += (u[i] - v[i]) * (u[i] + v[i]);
+  return s;
+}
+
 /** true when every entry is a finite number */
 export function allFinite(x: ArrayLike<number>, len = x.length): boolean {
   for (let i = 0; i < len; i++) if (!Number.isFinite(x[i])) return false;
@@ -356,6 +370,74 @@ export function analyzeRank(aIn: Float64Array, m: number, q: number, relTol = ra
 }
 
 /**
+ * out = b − r − A x (A m×q column-major; b or r null = 0), accumulated in double-double column by column
+ * (TwoSum/TwoProduct inlined; Ogita, Rump & Oishi 2005) and rounded once.
+ */
+export function residualDD(
+  A: Float64Array, m: number, q: number, x: ArrayLike<number>, b: ArrayLike<number> | null, r: ArrayLike<number> | null,
+  out: Float64Array, lo: Float64Array = new Float64Array(m),
+): void {
+  for (let i = 0; i < m; i++) {
+    let hi = b ? b[i] : 0;
+    let l = 0;
+    if (r) {
+      const v = -r[i];
+      const s = hi + v;
+      const bb = s - hi;
+      l += hi - (s - bb) + (v - bb);
+      hi = s;
+    }
+    out[i] = hi;
+    lo[i] = l;
+  }
+  for (let k = 0; k < q; k++) {
+    const xb = -x[k];
+    if (xb === 0) continue;
+    let t = SPLIT * xb;
+    const bh = t - (t - xb);
+    const bl = xb - bh;
+    const ck = k * m;
+    for (let i = 0; i < m; i++) {
+      const a = A[ck + i];
+      const p = a * xb;
+      t = SPLIT * a;
+      const ah = t - (t - a);
+      const al = a - ah;
+      const e = al * bl - (p - ah * bh - al * bh - ah * bl);
+      const h = out[i];
+      const s = h + p;
+      const bb = s - h;
+      out[i] = s;
+      lo[i] += h - (s - bb) + (p - bb) + e;
+    }
+  }
+  for (let i = 0; i < m; i++) out[i] += lo[i];
+}
+
+/** c − Σ_i a_i r_i for one column a = A[off .. off+m), in double-double, rounded once */
+export function dotResidualDD(A: Float64Array, off: number, m: number, r: ArrayLike<number>, c: number): number {
+  let hi = c;
+  let lo = 0;
+  for (let i = 0; i < m; i++) {
+    const a = -A[off + i];
+    const v = r[i];
+    const p = a * v;
+    let t = SPLIT * a;
+    const ah = t - (t - a);
+    const al = a - ah;
+    t = SPLIT * v;
+    const vh = t - (t - v);
+    const vl = v - vh;
+    const e = al * vl - (p - ah * vh - al * vh - ah * vl);
+    const s = hi + p;
+    const bb = s - hi;
+    lo += hi - (s - bb) + (p - bb) + e;
+    hi = s;
+  }
+  return hi + lo;
+}
+
+/**
  * Iterative refinement of a full-rank least-squares problem on the augmented system [I A; Aᵀ 0][r; x] = [b; c]
  * (Björck 1967, "Iterative refinement of linear least squares solutions I"), with both residuals accumulated in
  * double-double so the result is accurate to about cond(A)·ε even for large residuals. A is m×q (column-major,
@@ -366,25 +448,18 @@ export function refineAugmented(
   A: Float64Array, m: number, q: number, ra: RankAnalysis, b: Float64Array | null, c: Float64Array | null,
   x: Float64Array, r: Float64Array, steps: number,
 ): void {
-  const acc = new CompensatedSum();
   const f = new Float64Array(m);
+  const lo = new Float64Array(m);
   const gs = new Float64Array(q);
   const { qr, d } = ra;
   const { perm, rdiag } = qr;
   const a = qr.a;
   for (let it = 0; it < steps; it++) {
     // f = b − r − A x,  g = c − Aᵀ r  (double-double accumulation, rounded once)
-    for (let i = 0; i < m; i++) {
-      acc.reset(b ? b[i] : 0);
-      acc.add(-r[i]);
-      for (let k = 0; k < q; k++) acc.addProduct(-A[k * m + i], x[k]);
-      f[i] = acc.value();
-    }
+    residualDD(A, m, q, x, b, r, f, lo);
     for (let t = 0; t < q; t++) {
       const k = perm[t];
-      acc.reset(c ? c[k] : 0);
-      for (let i = 0; i < m; i++) acc.addProduct(-A[k * m + i], r[i]);
-      gs[t] = acc.value() / d[k]; // exact: d is a power of two
+      gs[t] = dotResidualDD(A, k * m, m, r, c ? c[k] : 0) / d[k]; // exact: d is a power of two
     }
     // h = R⁻ᵀ g_s
     for (let j = 0; j < q; j++) {

@@ -1,6 +1,6 @@
 // Linear least squares by column-scaled Householder QR with column pivoting (Golub & Van Loan, Matrix Computations, 4th ed., §5.3.3, §5.4.2), rank by one-sided Jacobi SVD of R, minimal-norm solution when rank deficient (§5.5), and iterative refinement on the augmented system with double-double residuals (Björck 1967; Ogita, Rump & Oishi 2005). Never the normal equations.
 import type { LsqProblem, SolveOptions, SolveResult } from './types';
-import { CompensatedSum, analyzeRank, applyQt, refineAugmented, RankAnalysis } from './linalg';
+import { CompensatedSum, analyzeRank, applyQt, refineAugmented, residualDD, RankAnalysis } from './linalg';
 import { CONVERGED, Prepared, evaluate, prepare, solutionInfo } from './problem';
 import { DEFAULT_MAX_ITERATIONS, solvePrepared } from './lm';
 
@@ -52,21 +52,13 @@ export function solveLinear(problem: LsqProblem, opts: SolveOptions): SolveResul
     if (ra.rank === q) {
       // full rank: QR solution, then refinement on the augmented system with double-double residuals
       x.set(lsSolve(ra, b, m, q));
-      for (let i = 0; i < m; i++) {
-        acc.reset(b[i]);
-        for (let k = 0; k < q; k++) acc.addProduct(-A[k * m + i], x[k]);
-        resid[i] = acc.value();
-      }
+      residualDD(A, m, q, x, b, null, resid);
       refineAugmented(A, m, q, ra, b, null, x, resid, REFINEMENT_STEPS);
       refinedResidual = resid;
     } else {
       // rank deficient: minimal-norm solution, refined as x ← x + LS(A, b − A x) with a double-double residual
       for (let step = 0; step <= REFINEMENT_STEPS; step++) {
-        for (let i = 0; i < m; i++) {
-          acc.reset(b[i]);
-          for (let k = 0; k < q; k++) acc.addProduct(-A[k * m + i], x[k]);
-          resid[i] = acc.value();
-        }
+        residualDD(A, m, q, x, b, null, resid);
         const dx = lsSolve(ra, resid, m, q);
         for (let k = 0; k < q; k++) x[k] += dx[k];
       }

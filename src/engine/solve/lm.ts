@@ -16,7 +16,7 @@
 // - at the end, (damped) Gauss–Newton steps polish the solution while they contract (see polish()).
 import type { LsqProblem, SolveOptions, SolveResult } from './types';
 import type { Termination } from '../report';
-import { EPS, norm2, qrFactor, applyQt, rankTolerance } from './linalg';
+import { EPS, norm2, qrFactor, applyQt, rankTolerance, dotAt, diffOfSquares } from './linalg';
 import { CONVERGED, Prepared, evaluate, prepare, solutionInfo, stopReason } from './problem';
 
 /** default cap on LM iterations (accepted steps plus Jacobian refreshes) per scaling strategy */
@@ -31,7 +31,7 @@ const FACTOR = 100;
 const RETRY_GNORM = 1e-8;
 const DWARF = 2.2250738585072014e-308;
 
-type Scaling = 'jacobian' | 'unit';
+export type Scaling = 'jacobian' | 'unit';
 
 interface RunResult {
   x: Float64Array; // free parameters
@@ -48,7 +48,16 @@ export function solveNonlinear(problem: LsqProblem, opts: SolveOptions): SolveRe
   return solvePrepared(P);
 }
 
-export function solvePrepared(P: Prepared): SolveResult {
+/**
+ * As solveNonlinear with one scaling strategy only ('jacobian' = MINPACK mode 1, 'unit' = D = I), no second run;
+ * for benchmarks and tests that measure what the two-strategy design buys.
+ */
+export function solveNonlinearWithScaling(problem: LsqProblem, opts: SolveOptions, scaling: Scaling): SolveResult {
+  const P = prepare(problem, opts, DEFAULT_MAX_ITERATIONS);
+  return solvePrepared(P, scaling);
+}
+
+export function solvePrepared(P: Prepared, only?: Scaling): SolveResult {
   const { n, q, free } = P;
   const m = Math.max(n, q);
   const x0 = new Float64Array(q);
@@ -61,8 +70,8 @@ export function solvePrepared(P: Prepared): SolveResult {
     best = { x: x0, fnorm: ok ? norm2(r, 0, n) : NaN, termination: ok ? 'gradient' : 'non-finite', iterations: 0, gnorm: 0,
       message: ok ? 'every parameter is fixed: nothing to fit' : 'the model gives NaN or ±Infinity at the given parameter values' };
   } else {
-    best = lmRun(P, x0, 'jacobian');
-    if (shouldRetry(P, best)) {
+    best = lmRun(P, x0, only ?? 'jacobian');
+    if (!only && shouldRetry(P, best)) {
       const second = lmRun(P, x0, 'unit');
       if (second.termination === 'cancelled' || second.termination === 'time-limit') {
         if (!(best.fnorm <= second.fnorm)) best = second;
@@ -134,12 +143,19 @@ interface Sub {
   diag: Float64Array;
 }
 
-function buildSub(A: Float64Array, m: number, fvec: Float64Array, idx: number[], diagAll: Float64Array): Sub {
+/** scratch buffers reused across iterations (large fits would otherwise churn the garbage collector) */
+interface Scratch {
+  a: Float64Array;
+  wa: Float64Array;
+}
+
+function buildSub(A: Float64Array, m: number, fvec: Float64Array, idx: number[], diagAll: Float64Array, scratch: Scratch): Sub {
   const k = idx.length;
-  const a = new Float64Array(m * k);
+  const a = scratch.a.subarray(0, m * k);
   for (let t = 0; t < k; t++) a.set(A.subarray(idx[t] * m, idx[t] * m + m), t * m);
   const qr = qrFactor(a, m, k, true);
-  const wa = Float64Array.from(fvec);
+  const wa = scratch.wa;
+  wa.set(fvec);
   applyQt(qr, wa);
   const r = new Float64Array(k * k);
   for (let j = 0; j < k; j++) {
@@ -185,6 +201,7 @@ function lmRun(P: Prepared, xStart: Float64Array, scaling: Scaling): RunResult {
   let gnorm = NaN;
   const trial = new Float64Array(q);
   const wa3 = new Float64Array(q);
+  const scratch: Scratch = { a: new Float64Array(m * q), wa: new Float64Array(m) };
 
   for (;;) {
     if (fnorm <= exactTol) return done('exact', 'the model fits the data exactly (residuals at rounding level)', iter, fnorm, 0);
@@ -196,9 +213,7 @@ function lmRun(P: Prepared, xStart: Float64Array, scaling: Scaling): RunResult {
     // column norms and gradient g = Aᵀ r of ½‖r‖²
     for (let j = 0; j < q; j++) {
       colnorm[j] = norm2(A, j * m, m);
-      let s = 0;
-      for (let i = 0; i < m; i++) s += A[j * m + i] * fvec[i];
-      g[j] = s;
+      g[j] = dotAt(A, j * m, fvec, m);
     }
     if (iter === 0) {
       for (let j = 0; j < q; j++) diagAll[j] = scaling === 'unit' || colnorm[j] === 0 ? 1 : colnorm[j];
@@ -208,7 +223,7 @@ function lmRun(P: Prepared, xStart: Float64Array, scaling: Scaling): RunResult {
     // active set: on a bound with the descent direction pointing out of the box
     const activeMask = new Uint8Array(q);
     for (let j = 0; j < q; j++) if ((x[j] <= lo[j] && g[j] > 0) || (x[j] >= hi[j] && g[j] < 0)) activeMask[j] = 1;
-    let sub = buildSub(A, m, fvec, inactive(activeMask), diagAll);
+    let sub = buildSub(A, m, fvec, inactive(activeMask), diagAll, scratch);
     // scaled gradient test (cosine of the angle between r and the columns of A), over the free directions
     gnorm = scaledGradient(sub, fnorm);
     if (sub.k === 0 || gnorm <= GTOL) {
@@ -239,7 +254,7 @@ function lmRun(P: Prepared, xStart: Float64Array, scaling: Scaling): RunResult {
           }
         }
         if (!blocked) break;
-        sub = buildSub(A, m, fvec, inactive(activeMask), diagAll);
+        sub = buildSub(A, m, fvec, inactive(activeMask), diagAll, scratch);
         if (sub.k === 0) return done('gradient', 'every free parameter is held at a bound', iter, fnorm, gnorm);
       }
       // shorten the step to stay inside the box
@@ -290,9 +305,7 @@ function lmRun(P: Prepared, xStart: Float64Array, scaling: Scaling): RunResult {
       // actred = (‖r‖² − ‖r₁‖²)/‖r‖² as Σ (r − r₁)(r + r₁): free of the cancellation of 1 − (‖r₁‖/‖r‖)² near the minimum
       let actred = -1;
       if (0.1 * fnorm1 < fnorm) {
-        let s = 0;
-        for (let i = 0; i < n; i++) s += (fvec[i] - fvec1[i]) * (fvec[i] + fvec1[i]);
-        actred = s / fnorm / fnorm;
+        actred = diffOfSquares(fvec, fvec1, n) / fnorm / fnorm;
       }
       wa3.fill(0, 0, sub.k);
       for (let j = 0; j < sub.k; j++) {
@@ -538,19 +551,21 @@ function polish(P: Prepared, run: RunResult): void {
   let prevZ = Infinity;
   let lambda = 0;
   let raises = 0;
+  const aBuf = new Float64Array((m + q) * q);
+  const bBuf = new Float64Array(m + q);
   for (let step = 0; step < 60; step++) {
     // hold parameters on a bound whose descent direction points outward
     const idx: number[] = [];
     for (let k = 0; k < q; k++) {
-      let g = 0;
-      for (let i = 0; i < m; i++) g += A[k * m + i] * r[i];
+      const g = dotAt(A, k * m, r, m);
       if ((run.x[k] <= lo[k] && g > 0) || (run.x[k] >= hi[k] && g < 0)) continue;
       idx.push(k);
     }
     const kk = idx.length;
     if (kk === 0) return;
     const mm = m + kk;
-    const a = new Float64Array(mm * kk);
+    const a = aBuf.subarray(0, mm * kk);
+    a.fill(0);
     const d = new Float64Array(kk);
     let xs = 0;
     const sl = Math.sqrt(lambda);
@@ -559,12 +574,13 @@ function polish(P: Prepared, run: RunResult): void {
       const nj = norm2(A, c, m);
       d[t] = nj > 0 ? nj : 1;
       xs += (d[t] * run.x[idx[t]]) ** 2;
-      for (let i = 0; i < m; i++) a[t * mm + i] = A[c + i] / d[t];
+      scaleInto(a, t * mm, A, c, m, 1 / d[t]);
       a[t * mm + m + t] = sl;
     }
     xs = Math.sqrt(xs);
     const qr = qrFactor(a, mm, kk, true);
-    const b = new Float64Array(mm);
+    const b = bBuf.subarray(0, mm);
+    b.fill(0);
     b.set(r.subarray(0, m));
     applyQt(qr, b);
     const tol = rankTolerance(m, kk) * Math.abs(qr.rdiag[0]);
@@ -607,6 +623,11 @@ function polish(P: Prepared, run: RunResult): void {
     prevZ = zn;
     if (zn <= 1e-15 * xs) return;
   }
+}
+
+/** dst[doff + i] = src[soff + i] · s, i < len (d is a power of two in practice only when chosen so; here any scale) */
+function scaleInto(dst: Float64Array, doff: number, src: Float64Array, soff: number, len: number, s: number): void {
+  for (let i = 0; i < len; i++) dst[doff + i] = src[soff + i] * s;
 }
 
 export type { SolveOptions };

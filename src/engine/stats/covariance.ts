@@ -1,5 +1,5 @@
 // Parameter covariance s²(JᵀWJ)⁻¹ and hat values from the SVD of the column-scaled, pivoted-QR R factor of the weighted Jacobian (Golub & Van Loan, Matrix Computations, 4th ed., §5.3, §5.5), each covariance column refined on the augmented system (Björck 1967); JᵀJ is never formed.
-import { analyzeRank, CompensatedSum, refineAugmented } from '../solve/linalg';
+import { analyzeRank, refineAugmented, residualDD } from '../solve/linalg';
 
 /** refinement steps of each covariance column (double-double residuals) */
 const COV_REFINEMENT_STEPS = 2;
@@ -54,16 +54,11 @@ export function covarianceFromJacobian(
   if (kept === q && n >= q) {
     // refine each column c_j on the augmented system [I A; Aᵀ 0][r; c] = [0; −e_j] (so AᵀA c = e_j), Björck 1967
     const A = weightedFree(J, n, p, w, keep);
-    const acc = new CompensatedSum();
     const e = new Float64Array(q);
     const r = new Float64Array(n);
     for (let j = 0; j < q; j++) {
       const x = C.subarray(j * q, j * q + q);
-      for (let i = 0; i < n; i++) {
-        acc.reset(0);
-        for (let k = 0; k < q; k++) acc.addProduct(-A[k * n + i], x[k]);
-        r[i] = acc.value();
-      }
+      residualDD(A, n, q, x, null, null, r);
       e.fill(0);
       e[j] = -1;
       refineAugmented(A, n, q, rb, null, e, x, r, COV_REFINEMENT_STEPS);

@@ -4,7 +4,7 @@
 import { parentPort, workerData } from 'worker_threads';
 import { runSpecFile, writeResults } from './engine/run';
 import { suggestSpec } from './engine/starter';
-import { isErrorReport } from './engine/report';
+import { isErrorReport, type FitReport } from './engine/report';
 import type { HostToWorker, RunRequest, WorkerInit, WorkerToHost } from './protocol';
 import { PROTOCOL_VERSION } from './protocol';
 
@@ -53,10 +53,34 @@ async function runOne(req: RunRequest): Promise<void> {
       try { written = await writeResults(result, req.specPath, { workspaceRoot: req.workspaceRoot }); }
       catch (e) { writeError = (e as Error).message; }
     }
-    post({ type: 'result', inReplyTo: req.id, result, written, writeError, ms: Date.now() - t0 });
+    const transfer = isErrorReport(result) ? [] : packPoints(result);
+    port!.postMessage({ type: 'result', inReplyTo: req.id, result, written, writeError, ms: Date.now() - t0 } satisfies WorkerToHost, transfer);
   } catch (e) {
     post({ type: 'failure', inReplyTo: req.id, message: (e as Error)?.stack || String(e) });
   }
+}
+
+/** Above this many rows the per-point arrays travel as typed arrays whose buffers are transferred, not copied:
+ *  the host thread then spends no time deserializing 10^6-row reports, and the webview receives ArrayBuffers. */
+export const TYPED_POINTS_ABOVE = 2000;
+
+function packPoints(report: FitReport): ArrayBuffer[] {
+  const buffers: ArrayBuffer[] = [];
+  const pack = (a: unknown, int = false): unknown => {
+    if (!Array.isArray(a)) return a;
+    const t = int ? Int32Array.from(a as number[]) : Float64Array.from(a as number[]);
+    buffers.push(t.buffer as ArrayBuffer);
+    return t;
+  };
+  for (const m of report.models) {
+    const p = m.points as unknown as Record<string, unknown> | undefined;
+    if (!p || !Array.isArray(p.row) || (p.row as number[]).length <= TYPED_POINTS_ABOVE) continue;
+    for (const k of ['y', 'fitted', 'residual', 'standardized', 'leverage', 'cooks', 'weight']) if (k in p) p[k] = pack(p[k]);
+    p.row = pack(p.row, true);
+    const x = p.x as Record<string, unknown>;
+    for (const k of Object.keys(x)) x[k] = pack(x[k]);
+  }
+  return buffers;
 }
 
 port.on('message', (m: HostToWorker) => {

@@ -220,7 +220,7 @@ export class PanelController extends Disposable implements vscode.WebviewPanelSe
         bytes = Buffer.from(match[1], 'base64');
       } else if (m.data !== undefined) bytes = Buffer.from(m.data, 'utf8');
       else if (!last) throw new Error('there is no fit to export yet');
-      else bytes = Buffer.from(m.format === 'csv' ? resultsCsv(last, m.model) : JSON.stringify(last, null, 2) + '\n', 'utf8');
+      else bytes = Buffer.from(m.format === 'csv' ? resultsCsv(last, m.model) : JSON.stringify(last, plainArrays, 2) + '\n', 'utf8');
       const filters: Record<string, string[]> = m.format === 'png' ? { 'PNG image': ['png'] } : m.format === 'csv' ? { CSV: ['csv'] } : { JSON: ['json'] };
       const target = await vscode.window.showSaveDialog({ defaultUri: vscode.Uri.joinPath(p.specUri, '..', name), filters, title: 'Export from Curvewright' });
       if (!target) { this.post(p, { type: 'exported', inReplyTo: m.id, path: null }); return; }
@@ -271,6 +271,11 @@ export function resultsCsv(r: RunResult, model?: string): string {
     }
   }
   return rows.join('\n') + '\n';
+}
+
+/** JSON replacer: typed arrays (points of large reports) as plain arrays. */
+export function plainArrays(_k: string, v: unknown): unknown {
+  return ArrayBuffer.isView(v) && !(v instanceof DataView) ? Array.from(v as unknown as ArrayLike<number>) : v;
 }
 
 function csvCell(v: unknown): string {

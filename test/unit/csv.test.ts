@@ -217,6 +217,11 @@ describe('csv: readTable', () => {
     await rejects(readTable(f, { columns: ['a'], maxBytes: 100 }), /larger than the limit of 100 bytes/);
   });
 
+  it('a file without line breaks is refused instead of being held as one huge row', async () => {
+    const f = write('oneline.csv', 'a,b\n' + '1,'.repeat(3 << 19));
+    await rejects(readTable(f, { columns: ['a'], maxLineLength: 1 << 20 }), /has a line longer than 1048576 characters/);
+  });
+
   it('multi-byte characters split across stream chunks are decoded intact', async () => {
     // the reader uses 1 MiB chunks: put a 2-byte character across the boundary
     const pad = 'x'.repeat((1 << 20) - 8); // 7 header bytes + pad end one byte before the boundary

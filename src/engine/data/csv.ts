@@ -29,6 +29,8 @@ export interface ReadTableOptions extends ReadOptions {
   badRows?: 'drop' | 'fail';
   /** refuse files larger than this many bytes */
   maxBytes?: number;
+  /** refuse a line longer than this many characters (default 64 Mi: a file without line breaks is not a table) */
+  maxLineLength?: number;
   /** spec path each column's problems belong to (default ['data', 'file']) */
   columnPaths?: Record<string, (string | number)[]>;
   /** individual 'bad-cell' problems reported before they are summarised (default 20) */
@@ -90,10 +92,15 @@ class TextStage extends Transform {
   private readonly decoder = new TextDecoder('utf-8', { fatal: true });
   private first = true;
   bytes = 0;
-  /** the first decoded text, for delimiter detection */
-  head = '';
 
-  constructor(private readonly label: string, private readonly maxBytes: number | undefined) {
+  /** characters since the last line break */
+  private lineLength = 0;
+
+  constructor(
+    private readonly label: string,
+    private readonly maxBytes: number | undefined,
+    private readonly maxLineLength: number,
+  ) {
     super({ readableObjectMode: true });
   }
 
@@ -124,7 +131,12 @@ class TextStage extends Transform {
       if (text.charCodeAt(0) === 0xfeff) text = text.slice(1);
       this.first = false;
     }
-    if (this.head.length < 65536) this.head += text.slice(0, 65536 - this.head.length);
+    const lastBreak = Math.max(text.lastIndexOf('\n'), text.lastIndexOf('\r'));
+    this.lineLength = lastBreak === -1 ? this.lineLength + text.length : text.length - lastBreak - 1;
+    if (this.lineLength > this.maxLineLength) {
+      done(new DataError(`${this.label} has a line longer than ${this.maxLineLength} characters — it does not look like a table of rows; check that data.file is a CSV file`, { file: this.label }));
+      return;
+    }
     if (text.length > 0) this.push(text);
     done();
   }
@@ -169,7 +181,7 @@ interface RowSink {
 }
 
 /** Streams the file through papaparse and calls the sink per row; resolves with hash and row counts. */
-function streamRows(file: string, opts: ReadOptions & { maxBytes?: number; headerOnly?: boolean }, sink: RowSink): Promise<{ hash: string; bytes: number; sawHeader: boolean }> {
+function streamRows(file: string, opts: ReadOptions & { maxBytes?: number; maxLineLength?: number; headerOnly?: boolean }, sink: RowSink): Promise<{ hash: string; bytes: number; sawHeader: boolean }> {
   const label = opts.label ?? file;
   return new Promise((resolve, reject) => {
     let settled = false;
@@ -181,7 +193,7 @@ function streamRows(file: string, opts: ReadOptions & { maxBytes?: number; heade
       reject(e instanceof DataError ? e : new DataError(`could not read ${label}: ${e instanceof Error ? e.message : String(e)}`, { file: label }));
     };
     const input = fs.createReadStream(file, { highWaterMark: 1 << 20 });
-    const text = new TextStage(label, opts.maxBytes);
+    const text = new TextStage(label, opts.maxBytes, opts.maxLineLength ?? 64 * 2 ** 20);
     input.on('error', (e: NodeJS.ErrnoException) => {
       if (e.code === 'ENOENT') fail(new DataError(`data file not found: ${label} — check data.file in the spec (it is relative to the spec file)`, { file: label }));
       else if (e.code === 'EISDIR') fail(new DataError(`${label} is a folder, not a CSV file — point data.file at the CSV file`, { file: label }));

@@ -144,6 +144,38 @@ describe('solveNonlinear', function () {
     close(res.theta[0], num / den, 1e-10, 'A at the bound');
   });
 
+  it('a start on a bound with the optimum inside leaves the bound (active set released when −g points inward)', function () {
+    const x = range(0, 6, 0.5);
+    const y = x.map((v) => 3 * Math.exp(-0.5 * v));
+    const res = solveNonlinear(expModel(x, y), { theta0: [1, -2], lower: [1, -2], upper: [10, 0] });
+    assert.ok(res.converged, res.message);
+    close(res.theta[0], 3, 1e-10, 'A');
+    close(res.theta[1], -0.5, 1e-10, 'k');
+    assert.deepStrictEqual(res.atBound, [null, null]);
+  });
+
+  it('lower bound active: A held at its minimum, k the 1-D least-squares optimum given A (KKT; checked by a golden-section search on S(k))', function () {
+    const x = range(0, 6, 0.5);
+    const y = x.map((v, i) => 3 * Math.exp(-0.5 * v) + (i % 2 ? 0.02 : -0.02));
+    const Amin = 3.5;
+    const res = solveNonlinear(expModel(x, y), { theta0: [4, -1], lower: [Amin, -Infinity] });
+    assert.ok(res.converged, res.message);
+    assert.deepStrictEqual(res.atBound, ['min', null]);
+    assert.strictEqual(res.theta[0], Amin);
+    // S(k) with A = Amin is unimodal near the answer: golden-section search on [−2, 0] (Kiefer 1953)
+    const S = (k: number) => x.reduce((s, v, i) => s + (y[i] - Amin * Math.exp(k * v)) ** 2, 0);
+    let a = -2;
+    let b = 0;
+    const gr = (Math.sqrt(5) - 1) / 2;
+    for (let it = 0; it < 200; it++) {
+      const c = b - gr * (b - a);
+      const d = a + gr * (b - a);
+      if (S(c) < S(d)) b = d;
+      else a = c;
+    }
+    close(res.theta[1], (a + b) / 2, 1e-7, 'k given A at its bound');
+  });
+
   it('a start outside the box is projected into it, and the solution respects the bounds', function () {
     const x = range(0, 6, 0.5);
     const y = x.map((v) => 3 * Math.exp(-0.5 * v));

@@ -24,8 +24,12 @@ if (isCliWorker()) {
   process.stdout.on('error', (e: NodeJS.ErrnoException) => {
     if (e.code === 'EPIPE') process.exit(process.exitCode ?? 0); // reader went away (e.g. `| head`)
   });
-  process.on('uncaughtException', internal);
-  process.on('unhandledRejection', internal);
+  const fatal = (e: unknown) => {
+    internal(e);
+    process.exit(3);
+  };
+  process.on('uncaughtException', fatal);
+  process.on('unhandledRejection', fatal);
   main(process.argv.slice(2), processIo).then(
     code => {
       process.exitCode = code;

@@ -217,11 +217,20 @@ export function tQuantile(p: number, nu: number): number {
 
 // ---------------------------------------------------------------- F and χ²
 
+/** I_x(d1/2, d2/2) and its complement at x = d1F/(d1F + d2), using 1 − x = d2/(d1F + d2) directly when x is near 1. */
+function fBoth(F: number, d1: number, d2: number): { lower: number; upper: number } {
+  const den = d1 * F + d2;
+  const x = (d1 * F) / den;
+  if (x <= 0.5) return betaIncBoth(x, d1 / 2, d2 / 2);
+  const c = betaIncBoth(d2 / den, d2 / 2, d1 / 2);
+  return { lower: c.upper, upper: c.lower };
+}
+
 export function fCdf(F: number, d1: number, d2: number): number {
   if (Number.isNaN(F) || !(d1 > 0) || !(d2 > 0)) return NaN;
   if (F <= 0) return 0;
   if (F === Infinity) return 1;
-  return betaIncBoth((d1 * F) / (d1 * F + d2), d1 / 2, d2 / 2).lower;
+  return fBoth(F, d1, d2).lower;
 }
 
 /** Upper tail P(F' > F). */
@@ -229,7 +238,7 @@ export function fSf(F: number, d1: number, d2: number): number {
   if (Number.isNaN(F) || !(d1 > 0) || !(d2 > 0)) return NaN;
   if (F <= 0) return 1;
   if (F === Infinity) return 0;
-  return betaIncBoth((d1 * F) / (d1 * F + d2), d1 / 2, d2 / 2).upper;
+  return fBoth(F, d1, d2).upper;
 }
 
 export function fQuantile(p: number, d1: number, d2: number): number {
@@ -237,7 +246,10 @@ export function fQuantile(p: number, d1: number, d2: number): number {
   if (p === 0) return 0;
   if (p === 1) return Infinity;
   const x = betaQuantile(p, d1 / 2, d2 / 2);
-  return (d2 * x) / (d1 * (1 - x));
+  if (x <= 0.5) return (d2 * x) / (d1 * (1 - x));
+  // near x = 1 solve for y = 1 − x instead: I_y(b, a) = 1 − p keeps the digits of 1 − x
+  const y = betaQuantile(1 - p, d2 / 2, d1 / 2);
+  return (d2 * (1 - y)) / (d1 * y);
 }
 
 export function chi2Cdf(x: number, k: number): number {

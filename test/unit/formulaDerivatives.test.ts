@@ -133,8 +133,18 @@ describe('formula derivatives at the edges', () => {
     assert.deepEqual(grad('x^n', [2], [0]), [0]);
     assert.deepEqual(grad('sqrt(a*x) + asin(b*x)', [2, 3], [0]), [0, 0]);
     assert.deepEqual(grad('log(1 + a*x^2)', [2], [0]), [0]);
+    // zero dose in the 4-parameter logistic: (ec50/x)^slope = ∞, f = lower, flat in upper, ec50, slope
+    assert.deepEqual(grad('lower + (upper - lower)/(1 + (ec50/x)^slope)', [0.05, 2, 3, 1.4], [0]), [1, 0, 0, 0]);
+    assert.deepEqual(grad('lower + (upper - lower)/(1 + (ec50/x)^slope)', [0.05, 2, 3, 0.6], [0]), [1, 0, 0, 0]);
     // where the function itself moves, an infinite derivative stays infinite
     assert.deepEqual(grad('sqrt(a)', [0], [0]), [Infinity]);
+  });
+  it('a denominator that overflows to infinity gives 0 derivatives, not NaN (limit -a·b\'/b² → 0; hand-derived)', () => {
+    // logistic3 far from its midpoint: exp(1200) overflows, f = 0
+    assert.deepEqual(grad('K/(1 + exp(-r*(x - x0)))', [2, 100, 12], [0]), [0, 0, 0]);
+    // and where the denominator is finite, the usual values
+    const [gK] = grad('K/(1 + exp(-r*(x - x0)))', [2, 1, 12], [12]);
+    assert.equal(gK, 0.5);
   });
   it('general a^b: a^b*(b\'*ln a + b*a\'/a)', () => {
     const [a, b] = [1.7, 2.3];

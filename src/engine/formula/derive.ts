@@ -44,8 +44,10 @@ export function derivative(g: Graph, root: number, j: number): number {
         break;
       case 'div':
         // (a/b)' = a'*(1/b) + (-(a/b)*(1/b))*b': the quotient, the reciprocal and their product are shared by
-        // every parameter, so each column costs multiplications, not divisions
-        r = g.add(g.mul(da, reciprocal(g, b)), isZero(db) ? zero : g.mul(g.neg(g.mul(id, reciprocal(g, b))), db));
+        // every parameter, so each column costs multiplications, not divisions. Where b has overflowed to ±∞
+        // (exp(u) with large u, (c/x)^s at x = 0) the factor -(a/b)/b is 0 and wins over an infinite b'
+        // (the limit -a·b'/b² → 0 when b grows like its derivative), so such points get 0, not NaN.
+        r = g.add(g.mul(da, reciprocal(g, b)), isZero(db) ? zero : g.mulz(db, g.neg(g.mul(id, reciprocal(g, b)))));
         break;
       case 'pow': {
         if (isZero(db)) {

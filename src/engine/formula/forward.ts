@@ -1,7 +1,8 @@
 // Forward-mode automatic differentiation (dual numbers, Griewank & Walther 2008, ch. 3) as generated code over the
 // same expression graph: one value and one tangent per parameter for each node, local partials computed once.
 // Kept as the alternative measured in bench/formula-derivatives.ts and as an independent cross-check in tests.
-// Same conventions as the symbolic derivatives: a zero tangent wins over an infinite local partial (0·∞ = 0).
+// Same conventions as the symbolic derivatives: a zero tangent wins over an infinite local partial (0·∞ = 0), and in
+// a quotient a zero partial -(a/b)/b (b overflowed) wins over an infinite tangent of b.
 
 import { Emitter, numberLiteral } from './codegen';
 import { reachable } from './derive';
@@ -41,12 +42,19 @@ export function generateForwardJacobian(g: Graph, f: number, p: number): { kerne
     const b = n.args[1];
     const va = a === undefined ? '' : e.ref(a);
     const vb = b === undefined ? '' : e.ref(b);
-    const lin = (terms: [string, string | null][], absorb = false): string => {
+    /** Σ c·d over terms; absorb 'tangent': a zero tangent d wins (0·∞ = 0); 'partial': a zero partial c wins. */
+    const lin = (terms: [string, string | null, ('tangent' | 'partial')?][], absorb?: 'tangent'): string => {
       const parts = terms
         .filter((t) => t[1] !== null)
-        .map(([c, d]) =>
-          c === '1' ? (d as string) : c === '-1' ? `-${d}` : d === '1' ? c : absorb ? `(${d} === 0 ? 0 : ${c} * ${d})` : `${c} * ${d}`,
-        );
+        .map(([c, d, own]) => {
+          const mode = own ?? absorb;
+          if (c === '1') return d as string;
+          if (c === '-1') return `-${d}`;
+          if (d === '1') return c;
+          if (mode === 'tangent') return `(${d} === 0 ? 0 : ${c} * ${d})`;
+          if (mode === 'partial') return `(${c} === 0 ? 0 : ${c} * ${d})`;
+          return `${c} * ${d}`;
+        });
       return parts.length === 0 ? '0' : parts.join(' + ');
     };
     const local = (name: string, expr: string) => {
@@ -62,13 +70,13 @@ export function generateForwardJacobian(g: Graph, f: number, p: number): { kerne
       case 'div': {
         const r = local('r', `1 / ${vb}`);
         const q = local('q', `-${v} * ${r}`);
-        rule = (j) => lin([[r, tangent(a, j)], [q, tangent(b, j)]]);
+        rule = (j) => lin([[r, tangent(a, j)], [q, tangent(b, j), 'partial']]);
         break;
       }
       case 'pow': {
         const pa = (deps.get(a) as number[]).length ? local('pa', `${vb} * Math.pow(${va}, ${vb} - 1)`) : '0';
         const pb = (deps.get(b) as number[]).length ? local('pb', `(${v} === 0 ? 0 : ${v} * Math.log(${va}))`) : '0';
-        rule = (j) => lin([[pa, tangent(a, j)], [pb, tangent(b, j)]], true);
+        rule = (j) => lin([[pa, tangent(a, j)], [pb, tangent(b, j)]], 'tangent');
         break;
       }
       case 'fn': {
@@ -80,7 +88,7 @@ export function generateForwardJacobian(g: Graph, f: number, p: number): { kerne
         };
         const pu = n.fn === 'exp' ? v : local('pu', partial[n.fn]);
         const absorb = ['log', 'log10', 'sqrt', 'asin', 'acos'].includes(n.fn);
-        rule = (j) => lin([[pu, tangent(a, j)]], absorb);
+        rule = (j) => lin([[pu, tangent(a, j)]], absorb ? 'tangent' : undefined);
         break;
       }
       case 'min':

@@ -92,6 +92,7 @@ export class DiagnosticsController extends Disposable {
       if (rowsFile && problem.rows?.length) {
         for (const row of problem.rows.slice(0, MAX_RELATED)) {
           const line = rowLines.get(row) ?? row + 1;
+          if (rowsFile === locFile && line === problem.location?.line) continue; // already listed
           related.push(new vscode.DiagnosticRelatedInformation(
             new vscode.Location(vscode.Uri.file(rowsFile), lineRange(line)), `data row ${row} (line ${line})`));
         }

@@ -58,6 +58,21 @@ describe('diagnostics', () => {
     await revert(doc);
   });
 
+  it('shows unreadable CSV cells on the CSV lines too, linked from the spec', async () => {
+    const a = await api();
+    const { uri } = await openSpec('gappy.fitspec.json');
+    await a.waitForReport(uri);
+    const csv = vscode.Uri.joinPath(uri, '..', 'gappy.csv');
+    const onCsv = await until('diagnostics on gappy.csv', () => { const d = ours(csv); return d.length >= 2 ? d : null; });
+    assert.deepStrictEqual(onCsv.map(d => d.range.start.line).sort((x, y) => x - y), [4, 8], 'on file lines 5 and 9');
+    assert.ok(onCsv.every(d => d.severity === vscode.DiagnosticSeverity.Warning && codeOf(d) === 'bad-cell'));
+    assert.match(onCsv.find(d => d.range.start.line === 4)!.message, /n\/a/);
+    const inSpec = ours(uri).find(d => codeOf(d) === 'bad-cell' && /n\/a/.test(d.message))!;
+    assert.ok(inSpec, 'the spec has the problem as well');
+    const rel = inSpec.relatedInformation?.[0];
+    assert.ok(rel && rel.location.uri.fsPath === csv.fsPath && rel.location.range.start.line === 4, 'related information points at line 5 of the CSV');
+  });
+
   it('clears its diagnostics when the spec is closed', async () => {
     const a = await api();
     const { uri } = await openSpec('bad-column.fitspec.json');

@@ -174,6 +174,11 @@ describe('solveNonlinear', function () {
       else a = c;
     }
     close(res.theta[1], (a + b) / 2, 1e-7, 'k given A at its bound');
+    // the same optimum from a start a hair above the bound (the first step is shortened to almost nothing)
+    const res2 = solveNonlinear(expModel(x, y), { theta0: [Amin * (1 + 1e-13), -1], lower: [Amin, -Infinity] });
+    assert.ok(res2.converged, res2.message);
+    assert.strictEqual(res2.theta[0], Amin);
+    close(res2.theta[1], res.theta[1], 1e-10, 'k from a start next to the bound');
   });
 
   it('a start outside the box is projected into it, and the solution respects the bounds', function () {

@@ -320,7 +320,8 @@ function lmRun(P: Prepared, xStart: Float64Array, scaling: Scaling): RunResult {
       if (ratio <= 0.25) {
         let temp = actred >= 0 ? 0.5 : (0.5 * dirder) / (dirder + 0.5 * actred);
         if (0.1 * fnorm1 >= fnorm || temp < 0.1) temp = 0.1;
-        delta = temp * Math.min(delta, pnorm / 0.1);
+        // a step shortened at a bound says little about the region: shrink relative to the full LM step
+        delta = temp * Math.min(delta, pnormLM / 0.1);
         par /= temp;
       } else if (par === 0 || ratio >= 0.75) {
         delta = alpha < 1 ? Math.max(delta, pnorm / 0.5) : pnorm / 0.5;

@@ -132,7 +132,7 @@ export function parametersCsv(report: FitReport): string {
     for (const name of m.paramOrder) {
       const p = m.params[name];
       if (!p) continue;
-      const rel = p.se !== null && p.value !== 0 ? p.se / Math.abs(p.value) : null;
+      const rel = typeof p.se === 'number' && typeof p.value === 'number' && p.value !== 0 ? p.se / Math.abs(p.value) : null;
       lines.push([m.name, name, p.value, p.se, rel, p.ci?.[0], p.ci?.[1], p.profileCi?.[0], p.profileCi?.[1], p.t, p.p, p.fixed, p.atBound ?? '', m.status]
         .map(csvCell).join(','));
     }
@@ -171,6 +171,7 @@ export class ReportView {
   private residKinds: Kind[] = [];
   private openModels = new Set<string>();
   private allProblems = false;
+  private residHead: HTMLElement | null = null;
   private closedModels = new Set<string>();
 
   private readonly el: {
@@ -213,6 +214,7 @@ export class ReportView {
     };
     this.el = el;
     const residHead = h('div', { class: 'cw-resid-head' }, h('span', { class: 'cw-axis-title' }, 'Residuals'), residKind);
+    this.residHead = residHead;
     el.plot.append(h('div', { class: 'cw-plot-bar' }, el.chips, el.toggles), el.legend, mainBox, residHead, residBox, el.plotNote);
     el.wrap.append(el.head, el.error, el.problems, el.plot, el.body);
     root.replaceChildren(el.wrap);
@@ -645,6 +647,7 @@ export class ReportView {
     } else {
       el.residBox.hidden = true;
     }
+    if (this.residHead) this.residHead.hidden = !sp;
     const residConf = this.chartConfig(rd, rk, 'resid', { logX, logY: false, xLabel, yLabel: standardized ? 'standardized residual' : 'residual' });
     this.residKinds = rk;
     this.residChart = this.applyChart(this.residChart, el.residCanvas, residConf);
@@ -866,7 +869,7 @@ export class ReportView {
     const paramRows = m.paramOrder.map(name => {
       const p = m.params[name];
       if (!p) return null;
-      const rel = p.se !== null && p.value !== 0 ? p.se / Math.abs(p.value) : null;
+      const rel = typeof p.se === 'number' && typeof p.value === 'number' && p.value !== 0 ? p.se / Math.abs(p.value) : null;
       const notes: Child[] = [];
       if (p.fixed) notes.push(h('span', { class: 'cw-badge' }, 'fixed'));
       if (p.atBound) notes.push(h('span', { class: 'cw-badge cw-badge-warn' }, p.atBound === 'min' ? 'at lower bound' : 'at upper bound'));

@@ -172,7 +172,9 @@ export function watchTheme(onChange: (t: ThemeColors) => void, doc: Document = d
   };
   last = JSON.stringify(readTheme(doc));
   const obs = new MutationObserver(fire);
+  // VS Code switches the body's classes and rewrites the --vscode-* variables in <html>'s style; watch both.
   if (doc.body) obs.observe(doc.body, { attributes: true, attributeFilter: ['class', 'data-vscode-theme-kind', 'style'] });
+  obs.observe(doc.documentElement, { attributes: true, attributeFilter: ['style', 'class'] });
   const view = doc.defaultView;
   const queries = view?.matchMedia
     ? ['(prefers-color-scheme: dark)', '(forced-colors: active)', '(prefers-contrast: more)'].map(q => view.matchMedia(q))

@@ -33,6 +33,7 @@ function watch(page: Page): string[] {
 /** Number of pixels of each canvas that differ from its top-left (background) pixel. */
 async function inkedPixels(page: Page): Promise<number[]> {
   return page.$$eval('canvas', cs => cs.map(c => {
+    if (!(c as HTMLCanvasElement).width || !(c as HTMLCanvasElement).height) return 0;
     const ctx = (c as HTMLCanvasElement).getContext('2d')!;
     const { data } = ctx.getImageData(0, 0, (c as HTMLCanvasElement).width, (c as HTMLCanvasElement).height);
     let n = 0;
@@ -177,6 +178,31 @@ describe('webview in a real browser (headless Chromium)', function () {
     await hc.ctx.close();
   });
 
+  it('re-reads VS Code theme variables when the body class changes (MutationObserver), without rebuilding the plot', async function () {
+    const { page, problems, ctx } = await openReport([sampleReport()], 'vscode-theme');
+    await page.$eval('canvas', c => { (c as HTMLCanvasElement & { __mark?: number }).__mark = 7; });
+    const before = await canvasHash(page);
+    // What VS Code does on a theme switch: new --vscode-* values on <html> and a new body class.
+    await page.evaluate(() => {
+      const b = document.documentElement.style;
+      b.setProperty('--vscode-editor-background', '#0b0b0b');
+      b.setProperty('--vscode-editor-foreground', '#f0f0f0');
+      b.setProperty('--vscode-charts-blue', '#ffcc00');
+      b.setProperty('--vscode-contrastBorder', '#6fc3df');
+      document.body.className = 'vscode-high-contrast';
+    });
+    await page.waitForSelector('.cw-report.cw-hc');
+    await page.waitForTimeout(100);
+    assert.notStrictEqual(await canvasHash(page), before, 'plot re-coloured');
+    assert.strictEqual(await page.$eval('canvas', c => (c as HTMLCanvasElement & { __mark?: number }).__mark), 7, 'same canvas');
+    assert.strictEqual(await page.evaluate(() => getComputedStyle(document.body).backgroundColor), 'rgb(11, 11, 11)');
+    // The first model's curve now uses --vscode-charts-blue: its swatch says so.
+    assert.strictEqual(await page.$eval('.cw-chip[data-model="logistic"] line', l => l.getAttribute('stroke')), '#ffcc00');
+    await page.screenshot({ path: path.join(SHOTS, 'report-vscode-hc.png') });
+    assert.deepStrictEqual(problems, []);
+    await ctx.close();
+  });
+
   it('draws an ErrorReport as an error box with the message and location, and several specs as sections', async function () {
     const err: ErrorReport = { version: 1, spec: 'assay.fitspec.json', error: { message: "unknown identifier 'K2' at column 5 \u2014 did you mean 'K'?", path: ['models', 1, 'formula'], location: { file: 'assay.fitspec.json', line: 12, column: 18 } } };
     const many = sampleReport();
@@ -190,6 +216,39 @@ describe('webview in a real browser (headless Chromium)', function () {
     const box = await page.innerText('#cw-spec-2 .cw-error');
     assert.ok(box.includes('could not be run') && box.includes("unknown identifier 'K2'") && box.includes('assay.fitspec.json:12:18'), box);
     assert.ok((await page.innerText('nav.cw-toc')).includes('assay.fitspec.json'));
+    assert.deepStrictEqual(problems, []);
+    await ctx.close();
+  });
+
+  it('copes with other report shapes: two x variables, a failed model, omitted points, no comparison', async function () {
+    // Two x variables, no band: observed against fitted.
+    const multi = sampleReport();
+    const m0 = multi.models[0]!;
+    m0.band = null;
+    m0.points!.x = { T: m0.points!.x.hours!.map(v => 280 + v), t: m0.points!.x.hours! };
+    multi.models = [m0];
+    multi.comparison = null;
+    multi.title = 'Two variables';
+    // A failed fit (values may be null after JSON), and a results file without points.
+    const failed = sampleReport();
+    const f = failed.models[2]!;
+    f.status = 'failed';
+    f.termination = 'non-finite';
+    f.band = null;
+    f.params.c0!.value = null as unknown as number;
+    f.params.c0!.se = null;
+    for (const m of failed.models) { delete m.points; m.pointsOmitted = true; }
+    failed.title = 'Failed and omitted';
+    const { page, problems, ctx } = await openReport([multi, failed], 'shapes');
+    const text1 = await page.innerText('#cw-spec-1');
+    assert.ok(text1.includes('observed y against fitted values of logistic'), 'multi-variable note');
+    const ink = await inkedPixels(page);
+    assert.ok(ink[0]! > 2000, `multi-variable plot drawn (${ink[0]})`);
+    const text2 = await page.innerText('#cw-spec-2');
+    assert.ok(text2.includes('not stored in this results file'), 'omitted points explained');
+    assert.ok(text2.includes('failed'), 'failed model marked');
+    assert.ok(ink[2]! > 2000, 'curves drawn without points');
+    await page.screenshot({ path: path.join(SHOTS, 'report-shapes.png'), fullPage: true });
     assert.deepStrictEqual(problems, []);
     await ctx.close();
   });

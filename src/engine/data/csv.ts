@@ -2,7 +2,6 @@
 // growing Float64Array buffers, with each row's 1-based data row and file line, and a sha256 of the bytes.
 import { createHash } from 'crypto';
 import * as fs from 'fs';
-import * as path from 'path';
 import { Transform, type TransformCallback } from 'stream';
 import Papa from 'papaparse';
 import { suggest } from '../formula';
@@ -446,4 +445,3 @@ export async function readTable(file: string, opts: ReadTableOptions): Promise<T
   };
 }
 
-export const _internal = { detectDelimiter, path };

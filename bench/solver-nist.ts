@@ -109,11 +109,11 @@ function main(): void {
   const fmt = (v: number, w: number, d = 1) => (Number.isFinite(v) ? v.toFixed(d) : '—').padStart(w);
   const out: string[] = [
     `NIST StRD nonlinear, 54 cases: min LRE over the parameters, best-of-${repeats} time (ms)`,
-    `${'problem'.padEnd(9)} st | ${'ours LRE'.padStart(8)} ${'ms'.padStart(7)} ${'it'.padStart(4)} | ${'ml-lm(J) LRE'.padStart(12)} ${'ms'.padStart(7)} ${'it'.padStart(4)} | ${'ml-lm(def) LRE'.padStart(14)} ${'ms'.padStart(6)}`,
+    `${'problem'.padEnd(9)} st | ${'ours LRE'.padStart(8)} ${'ms'.padStart(7)} ${'it'.padStart(4)} ${'J-only'.padStart(6)} ${'U-only'.padStart(6)} | ${'ml-lm(J) LRE'.padStart(12)} ${'ms'.padStart(7)} ${'it'.padStart(4)} | ${'ml-lm(def) LRE'.padStart(14)} ${'ms'.padStart(6)}`,
   ];
   for (const r of rows) {
     out.push(
-      `${r.name.padEnd(9)} ${r.start + 1}  | ${fmt(r.ours.lre, 8)} ${fmt(r.ours.ms, 7, 2)} ${String(r.ours.iter).padStart(4)} | ` +
+      `${r.name.padEnd(9)} ${r.start + 1}  | ${fmt(r.ours.lre, 8)} ${fmt(r.ours.ms, 7, 2)} ${String(r.ours.iter).padStart(4)} ${fmt(r.jacOnly, 6)} ${fmt(r.unitOnly, 6)} | ` +
         `${fmt(r.peerJ.lre, 12)} ${fmt(r.peerJ.ms, 7, 2)} ${String(r.peerJ.iter).padStart(4)} | ${fmt(r.peerDefault.lre, 14)} ${fmt(r.peerDefault.ms, 6, 2)}` +
         `${r.peerJ.error ? `  (ml-lm(J) threw: ${r.peerJ.error.slice(0, 40)})` : ''}${r.peerDefault.error ? `  (ml-lm(def) threw: ${r.peerDefault.error.slice(0, 40)})` : ''}`,
     );

@@ -6,8 +6,10 @@
 //   elimination of √λ D against R (qrsolv); ratio ρ = actual / predicted reduction; Δ updated as in lmder.
 // - variable scaling D: MINPACK "mode 1" (D_j = running max of the Jacobian column norms) first; when that run ends
 //   badly (not converged, a step-size stop with a scaled gradient above 1e-8, or a rank-deficient Jacobian at the
-//   end) the fit is rerun from the start
-//   with unit scaling D = I and the lower SSE is kept (both choices fail on different NIST problems, see PEERS.md).
+//   end) the fit is rerun from the start with unit scaling D = I and the lower SSE is kept (both choices fail on
+//   different NIST problems, see PEERS.md). onIteration then counts again from 1 for the second run.
+// - the actual reduction is computed as Σ (r − r₁)(r + r₁) / ‖r‖², free of the cancellation in 1 − (‖r₁‖/‖r‖)²,
+//   so the relative tests (ftol = xtol = gtol = 1e-15) stay meaningful down to rounding.
 // - a trial step whose f or J has NaN/±Inf is rejected explicitly and the region shrinks (IEEE comparisons with NaN
 //   would otherwise accept it).
 // - bounds: a parameter on a bound whose descent direction −g_j points outward is held (active set); the LM step is
@@ -19,7 +21,7 @@ import type { Termination } from '../report';
 import { EPS, norm2, qrFactor, applyQt, rankTolerance, dotAt, diffOfSquares } from './linalg';
 import { CONVERGED, Prepared, evaluate, prepare, solutionInfo, stopReason } from './problem';
 
-/** default cap on LM iterations (accepted steps plus Jacobian refreshes) per scaling strategy */
+/** default cap on LM iterations (accepted steps, each with a new Jacobian) per scaling strategy */
 export const DEFAULT_MAX_ITERATIONS = 2000;
 /** relative tolerances of the convergence tests (ftol, xtol, gtol of MINPACK), near machine precision */
 export const FTOL = 1e-15;

@@ -18,7 +18,7 @@ interface VsCodeApi {
 declare const acquireVsCodeApi: undefined | (() => VsCodeApi);
 
 /** What the panel persists (the protocol's WebviewState plus the view's choices and the last report). */
-export type PanelState = WebviewState & Partial<ViewState> & { specName?: string; version?: number; report?: RunResult };
+export type PanelState = WebviewState & Partial<ViewState> & { specName?: string; version?: number; dirty?: boolean; report?: RunResult };
 
 /** Largest number of points kept in the persisted state; above it the points are dropped (the host refits anyway). */
 const MAX_PERSISTED_POINTS = 20000;
@@ -92,6 +92,8 @@ function startPanel(vscode: VsCodeApi): void {
           if (p.model) req.model = p.model;
           post(req);
         },
+        onRefit: () => post({ type: 'refit' }),
+        note: state.dirty ? 'unsaved edits' : undefined,
         onStateChange: (s: ViewState) => {
           state = { ...state, ...s, selectedModel: s.selected };
           save();
@@ -111,7 +113,7 @@ function startPanel(vscode: VsCodeApi): void {
       case 'report': {
         if (shownVersion !== null && msg.specUri === state.specUri && msg.version < shownVersion) return;
         shownVersion = msg.version;
-        state = { ...state, specUri: msg.specUri, specName: msg.specName, version: msg.version, report: plain(msg.report) };
+        state = { ...state, specUri: msg.specUri, specName: msg.specName, version: msg.version, dirty: !!msg.dirty, report: plain(msg.report) };
         save();
         draw(msg.report);
         view?.setBusy(false);

@@ -63,6 +63,10 @@ export interface RenderOptions {
   onExport?(payload: ExportPayload): void;
   /** the user changed the selected model, a log toggle or the residual kind */
   onStateChange?(state: ViewState): void;
+  /** ask for a refit now; without it no Refit button is shown */
+  onRefit?(): void;
+  /** a short note beside the spec name, e.g. "unsaved edits" */
+  note?: string;
 }
 
 const views = new WeakMap<HTMLElement, ReportView>();
@@ -259,20 +263,50 @@ export class ReportView {
     this.el.wrap.classList.toggle('cw-is-busy', busy);
   }
 
-  /** The plots (data + residuals) as one PNG data URL on the theme's background. */
+  /** The plots (data + residuals) as one PNG data URL on the theme's background, under a strip naming the report,
+   *  the selected model and each curve (colour and dash), so the image stands on its own. */
   plotImage(): string | null {
     const a = this.mainChart, b = this.residChart;
-    if (!a) return null;
-    const ca = a.canvas, cb = b?.canvas;
+    const r = this.result;
+    if (!a || !r || isError(r)) return a ? a.toBase64Image('image/png', 1) : null;
+    const ca = a.canvas, cb = b && !this.el.residBox.hidden ? b.canvas : null;
+    const scale = ca.width / Math.max(1, ca.clientWidth || ca.width);
+    const strip = Math.round(46 * scale);
     const out = document.createElement('canvas');
     out.width = Math.max(ca.width, cb?.width ?? 0);
-    out.height = ca.height + (cb && b ? cb.height : 0);
+    out.height = strip + ca.height + (cb ? cb.height : 0);
     const ctx = out.getContext('2d');
     if (!ctx) return a.toBase64Image('image/png', 1);
-    ctx.fillStyle = this.theme.background;
+    const t = this.theme;
+    ctx.fillStyle = t.background;
     ctx.fillRect(0, 0, out.width, out.height);
-    ctx.drawImage(ca, 0, 0);
-    if (cb && b) ctx.drawImage(cb, 0, ca.height);
+    ctx.textBaseline = 'middle';
+    ctx.fillStyle = t.foreground;
+    ctx.font = `600 ${Math.round(14 * scale)}px ${t.fontFamily}`;
+    const pad = Math.round(12 * scale);
+    ctx.fillText(r.title || baseName(r.spec), pad, Math.round(14 * scale));
+    ctx.font = `${Math.round(11.5 * scale)}px ${t.fontFamily}`;
+    let x = pad;
+    const y = Math.round(34 * scale);
+    const sel = this.selectedModel(r);
+    r.models.forEach((m, i) => {
+      if (m.status !== 'converged') return;
+      ctx.strokeStyle = this.modelColor(r, m.name);
+      ctx.lineWidth = t.lineWidth * scale;
+      ctx.setLineDash(dashFor(i).map(d => d * scale));
+      ctx.beginPath();
+      ctx.moveTo(x, y);
+      ctx.lineTo(x + 22 * scale, y);
+      ctx.stroke();
+      ctx.setLineDash([]);
+      x += 26 * scale;
+      const label = `${m.name}${m.name === r.best ? ' \u2605' : ''}${m.name === sel?.name ? ' (bands, residuals)' : ''}`;
+      ctx.fillStyle = t.foreground;
+      ctx.fillText(label, x, y);
+      x += ctx.measureText(label).width + 16 * scale;
+    });
+    ctx.drawImage(ca, 0, strip);
+    if (cb) ctx.drawImage(cb, 0, strip + ca.height);
     return out.toDataURL('image/png');
   }
 
@@ -350,11 +384,14 @@ export class ReportView {
   private drawHead(r: RunResult): void {
     const title = !isError(r) && r.title ? r.title : baseName(r.spec);
     const sub: Child[] = [h('code', null, r.spec)];
+    if (this.opts.note) sub.push(' ', h('span', { class: 'cw-badge cw-badge-warn' }, this.opts.note));
     if (!isError(r)) {
       sub.push(' \u00b7 ', `${fmtNum(r.confidence * 100, 3)}\u2009% intervals`);
       if (r.best) sub.push(' \u00b7 best: ', h('strong', null, r.best));
     }
     this.el.actions.replaceChildren();
+    const onRefit = this.opts.onRefit;
+    if (onRefit) this.el.actions.append(h('button', { class: 'cw-btn', type: 'button', title: 'Fit this spec again now', onclick: () => onRefit() }, 'Refit'));
     const onExport = this.opts.onExport;
     if (onExport) {
       const base = baseName(r.spec);
@@ -833,7 +870,11 @@ export class ReportView {
         h('td', { class: 'num' }, fmtNum(row.cvRmse, 4)),
         h('td', { class: 'num' }, fmtR2(m?.stats.r2)),
       );
+      tr.tabIndex = 0;
       tr.addEventListener('click', () => this.setState({ selected: row.name }));
+      tr.addEventListener('keydown', ev => {
+        if (ev.key === 'Enter' || ev.key === ' ') { ev.preventDefault(); this.setState({ selected: row.name }); }
+      });
       return tr;
     });
     const parts: Child[] = [

@@ -314,10 +314,11 @@ describe('webview in a real browser (headless Chromium)', function () {
     const r2 = sampleReport();
     r2.title = 'Culture B after refit';
     r2.models[0]!.params.K!.value = 2.0123;
-    await send({ type: 'report', report: r2, specUri: 'file:///w/culture-b.fitspec.json', specName: 'culture-b.fitspec.json', version: 2 });
+    await send({ type: 'report', report: r2, specUri: 'file:///w/culture-b.fitspec.json', specName: 'culture-b.fitspec.json', version: 2, dirty: true });
     await page.waitForTimeout(100);
     assert.strictEqual(await page.$eval('canvas', c => (c as HTMLCanvasElement & { __mark?: number }).__mark), 42, 'canvas kept');
     assert.strictEqual(await page.innerText('.cw-title'), 'Culture B after refit');
+    assert.ok((await page.innerText('.cw-sub')).includes('unsaved edits'), 'dirty report marked');
     assert.ok((await page.innerText('details[data-model="logistic"] .cw-params')).includes('2.012'));
     // An older report arriving late is ignored.
     await send({ type: 'report', report: r1, specUri: 'file:///w/culture-b.fitspec.json', specName: 'culture-b.fitspec.json', version: 1 });
@@ -330,6 +331,7 @@ describe('webview in a real browser (headless Chromium)', function () {
     await page.click('.cw-chip[data-model="gompertz"]');
     await page.click('button.cw-btn:has-text("PNG")');
     await page.click('button.cw-btn:has-text("CSV")');
+    await page.click('button.cw-btn:has-text("Refit")');
     await send({ type: 'snapshot?', id: 7 });
     await page.waitForTimeout(100);
     const msgs = await posted();
@@ -338,6 +340,8 @@ describe('webview in a real browser (headless Chromium)', function () {
     const png = msgs.find(m => m.type === 'export' && m.format === 'png')!;
     assert.ok(String(png.data).startsWith('data:image/png;base64,') && String(png.data).length > 10000, 'PNG data URL');
     assert.strictEqual(png.suggestedName, 'culture-b-plot.png');
+    fs.writeFileSync(path.join(SHOTS, 'export.png'), Buffer.from(String(png.data).split(',')[1]!, 'base64'));
+    assert.ok(msgs.some(m => m.type === 'refit'), 'refit requested');
     const csv = msgs.find(m => m.type === 'export' && m.format === 'csv')!;
     assert.ok(String(csv.data).startsWith('model,parameter,value'));
     assert.notStrictEqual(csv.id, png.id, 'request ids differ');

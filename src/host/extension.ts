@@ -83,7 +83,7 @@ export function activate(context: vscode.ExtensionContext): CurvewrightApi {
     vscode.commands.registerCommand('curvewright.refit', async (uri?: vscode.Uri) => {
       const spec = specArg(uri);
       if (!spec) { void vscode.window.showInformationMessage('Open a *.fitspec.json file to refit it.'); return; }
-      return fits.runNow(spec);
+      return fits.runNow(spec, { force: true });
     }),
     vscode.commands.registerCommand('curvewright.cancelFit', (uri?: vscode.Uri) => {
       const spec = specArg(uri);

@@ -103,8 +103,9 @@ export class FitService extends Disposable {
   }
 
   /** Refit now; resolves with the result (undefined when cancelled by a newer edit or declined). */
-  async runNow(uri: vscode.Uri): Promise<FitEvent | undefined> {
+  async runNow(uri: vscode.Uri, opts: { force?: boolean } = {}): Promise<FitEvent | undefined> {
     const e = this.entry(uri);
+    if (opts.force) e.largeDeclined = undefined;
     if (e.timer) { clearTimeout(e.timer); e.timer = undefined; }
     const doc = this.openDocument(uri);
     let text: string;

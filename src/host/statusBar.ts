@@ -4,6 +4,7 @@ import * as vscode from 'vscode';
 import * as path from 'path';
 import { Disposable } from './disposable';
 import { FitService, isSpecUri, summary } from './fitService';
+import { allProblems } from './diagnostics';
 
 export class FitStatusBar extends Disposable {
   private readonly item = this._register(vscode.window.createStatusBarItem('curvewright.status', vscode.StatusBarAlignment.Left, 50));
@@ -38,8 +39,12 @@ export class FitStatusBar extends Disposable {
     switch (state) {
       case 'fitting': this.item.text = '$(sync~spin) Curvewright: fitting'; this.item.tooltip = `Fitting ${name}${message && message !== 'fitting' ? ` — ${message}` : ''}`; break;
       case 'fitted': this.item.text = '$(check) Curvewright: fitted'; this.item.tooltip = `${name}: ${last ? summary(last.result) : ''}`; break;
-      case 'problems': this.item.text = '$(warning) Curvewright: problems'; this.item.tooltip = `${name}: ${last ? summary(last.result) : ''}`;
-        this.item.backgroundColor = new vscode.ThemeColor('statusBarItem.warningBackground'); break;
+      case 'problems': {
+        const errors = !!last && allProblems(last.result).some(p => p.problem.severity === 'error');
+        this.item.text = errors ? '$(error) Curvewright: problems' : '$(warning) Curvewright: problems';
+        this.item.tooltip = `${name}: ${last ? summary(last.result) : ''}`;
+        this.item.backgroundColor = new vscode.ThemeColor(errors ? 'statusBarItem.errorBackground' : 'statusBarItem.warningBackground'); break;
+      }
       case 'error': this.item.text = '$(error) Curvewright: spec error'; this.item.tooltip = `${name}: ${last ? summary(last.result) : ''}`;
         this.item.backgroundColor = new vscode.ThemeColor('statusBarItem.errorBackground'); break;
       default: this.item.text = '$(graph-line) Curvewright'; this.item.tooltip = `${name}: not fitted yet`;

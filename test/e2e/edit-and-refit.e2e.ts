@@ -28,7 +28,14 @@ export async function run(ctx: Ctx): Promise<void> {
     if (/cubic/.test(after) && !/\bc3\b/.test(after)) break;
     await ctx.page.waitForTimeout(300);
   }
+  // the CodeLens above the model shows the new figures too
+  const lens = ctx.page.locator('.codelens-decoration', { hasText: 'cubic: converged' }).first();
+  await lens.waitFor({ timeout: 20000 });
+  const lensEnd = Date.now() + 20000;
+  let lensText = await lens.innerText();
+  while (/R² 0\.9714/.test(lensText) && Date.now() < lensEnd) { await ctx.page.waitForTimeout(300); lensText = await lens.innerText(); }
   await ctx.shot('3-panel-after');
+  assertOk(!/R² 0\.9714/.test(lensText), `the CodeLens shows the quadratic's R², not the cubic's (lens: ${lensText})`);
   assertOk(!/\bc3\b/.test(after), `after the edit the panel no longer lists c3 (text: ${after.slice(0, 300)})`);
   assertOk(/\bc2\b/.test(after), 'the quadratic still lists c2');
 }

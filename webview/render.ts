@@ -696,6 +696,9 @@ export class ReportView {
     const t = this.theme;
     const view = this;
     const gridColor = t.grid;
+    // Log axes: full grid lines at labelled (1-2-5) ticks, faint ones between.
+    const faint = withAlpha(gridColor, 0.35);
+    const minorGrid = (c: { tick?: { label?: unknown } }) => (c.tick && c.tick.label ? gridColor : faint);
     const tick = (v: number | string) => (typeof v === 'number' ? fmtNum(v, 3) : v);
     const logTick = (v: number | string) => {
       if (typeof v !== 'number' || v <= 0) return '';
@@ -740,16 +743,17 @@ export class ReportView {
           x: {
             type: ax.logX ? 'logarithmic' : 'linear',
             title: { display: true, text: ax.xLabel, color: t.muted },
-            grid: { color: gridColor, lineWidth: t.highContrast ? 1 : 0.8 },
+            grid: { color: ax.logX ? minorGrid : gridColor, lineWidth: t.highContrast ? 1 : 0.8 },
             border: { color: t.border },
-            ticks: { color: t.foreground, callback: ax.logX ? logTick : tick, maxRotation: 0, autoSkipPadding: 12 },
+            // On a log axis we label only 1-2-5 steps ourselves, so Chart.js must not skip ticks on top of that.
+            ticks: { color: t.foreground, callback: ax.logX ? logTick : tick, maxRotation: 0, autoSkip: !ax.logX, autoSkipPadding: 12 },
           },
           y: {
             type: ax.logY ? 'logarithmic' : 'linear',
             title: { display: true, text: ax.yLabel, color: t.muted },
-            grid: { color: gridColor, lineWidth: t.highContrast ? 1 : 0.8 },
+            grid: { color: ax.logY ? minorGrid : gridColor, lineWidth: t.highContrast ? 1 : 0.8 },
             border: { color: t.border },
-            ticks: { color: t.foreground, callback: ax.logY ? logTick : tick },
+            ticks: { color: t.foreground, callback: ax.logY ? logTick : tick, autoSkip: !ax.logY },
             afterFit: fixWidth,
           },
         },

@@ -314,7 +314,17 @@ describe('webview in a real browser (headless Chromium)', function () {
     const r2 = sampleReport();
     r2.title = 'Culture B after refit';
     r2.models[0]!.params.K!.value = 2.0123;
-    await send({ type: 'report', report: r2, specUri: 'file:///w/culture-b.fitspec.json', specName: 'culture-b.fitspec.json', version: 2, dirty: true });
+    // The host may post points as typed arrays (structured clone keeps them): convert in the page, then post.
+    await page.evaluate(m => {
+      for (const md of m.report.models) {
+        if (!md.points) continue;
+        md.points.y = Float64Array.from(md.points.y) as unknown as number[];
+        md.points.residual = Float64Array.from(md.points.residual) as unknown as number[];
+        md.points.x.hours = Float64Array.from(md.points.x.hours!) as unknown as number[];
+        md.points.row = Int32Array.from(md.points.row) as unknown as number[];
+      }
+      window.postMessage(m, '*');
+    }, { type: 'report', report: r2, specUri: 'file:///w/culture-b.fitspec.json', specName: 'culture-b.fitspec.json', version: 2, dirty: true });
     await page.waitForTimeout(100);
     assert.strictEqual(await page.$eval('canvas', c => (c as HTMLCanvasElement & { __mark?: number }).__mark), 42, 'canvas kept');
     assert.strictEqual(await page.innerText('.cw-title'), 'Culture B after refit');

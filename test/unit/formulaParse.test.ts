@@ -209,6 +209,9 @@ describe('formula parser: errors name the column and suggest a fix', () => {
   it('excessive nesting is an error, not a stack overflow', () => {
     expectError('('.repeat(5000) + 'x' + ')'.repeat(5000), /nested too deeply/, 202);
     assert.throws(() => parseFormula('-'.repeat(100000) + 'x'), FormulaError);
+    assert.throws(() => parseFormula(Array(1001).fill('x').join('+')), /formula nested too deeply at column \d+ \(more than 1000 operations/);
+    assert.doesNotThrow(() => parseFormula(Array(1000).fill('x').join('+')));
+    expectError('x+'.repeat(10001) + 'x', /^formula too long at column 20001 \(20003 characters, the limit is 20000\)/, 20001);
   });
   it('bad input never throws anything but FormulaError (property, random printable text)', () => {
     fc.assert(

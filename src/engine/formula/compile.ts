@@ -2,7 +2,7 @@
 // and generated evaluators.
 
 import { generateKernels } from './codegen';
-import { derivative } from './derive';
+import { derivative, derivativePlan } from './derive';
 import { isConstantName, isFunctionName, isLogicWord } from './functions';
 import { Graph } from './graph';
 import { col, isPlainIdentifier } from './lexer';
@@ -119,7 +119,8 @@ export function prepareFormula(text: string, opts: CompileOptions): PreparedForm
 }
 
 function finishCompile(text: string, ast: Node, variables: string[], params: string[], g: Graph, f: number): CompiledFormula {
-  const d = params.map((_, j) => derivative(g, f, j));
+  const plan = derivativePlan(g, f, params.length);
+  const d = params.map((_, j) => derivative(g, f, j, plan));
   const linear = d.every((dj) => !g.get(dj).hasParam);
   const hasConstantTerm = d.some((dj) => {
     const n = g.get(dj);

@@ -9,22 +9,21 @@ import { Graph } from './graph';
  * `j` is the parameter index. Nodes are visited in increasing id order, which is topological (arguments are
  * always created before their users).
  */
-export function derivative(g: Graph, root: number, j: number): number {
-  const reach = reachable(g, [root]);
-  const d = new Map<number, number>();
+export function derivative(g: Graph, root: number, j: number, plan?: DerivativePlan): number {
+  const reach = plan ? plan.reach : reachable(g, [root]);
+  const depends = plan ? plan.depends : () => true;
   const zero = g.num(0);
   const one = g.num(1);
+  // d[id] = node of ∂(node id)/∂θ_j; only nodes that existed before this pass are looked up
+  const d = new Int32Array(g.nodes.length).fill(zero);
+  const isZero = (x: number) => x === zero;
   for (const id of reach) {
     const n = g.get(id);
-    if (!n.hasParam) {
-      d.set(id, zero);
-      continue;
-    }
+    if (!n.hasParam || !depends(id, j)) continue;
     const a = n.args[0];
     const b = n.args[1];
-    const da = a === undefined ? zero : (d.get(a) as number);
-    const db = b === undefined ? zero : (d.get(b) as number);
-    const isZero = (x: number) => x === zero;
+    const da = a === undefined ? zero : d[a];
+    const db = b === undefined ? zero : d[b];
     let r: number;
     switch (n.op) {
       case 'param':
@@ -82,8 +81,8 @@ export function derivative(g: Graph, root: number, j: number): number {
         break;
       }
       case 'select': {
-        const dx = d.get(n.args[1]) as number;
-        const dy = d.get(n.args[2]) as number;
+        const dx = d[n.args[1]];
+        const dy = d[n.args[2]];
         r = dx === dy ? dx : g.raw('select', [a, dx, dy]);
         break;
       }
@@ -100,9 +99,9 @@ export function derivative(g: Graph, root: number, j: number): number {
       default:
         r = zero; // const, var
     }
-    d.set(id, r);
+    d[id] = r;
   }
-  return d.get(root) as number;
+  return d[root];
 }
 
 function reciprocal(g: Graph, b: number): number {
@@ -137,6 +136,39 @@ function unaryQuotient(g: Graph, fn: string, u: number, node: number, du: number
     case 'sqrt': return g.mulz(reciprocal(g, g.mul(g.num(2), node)), du);
   }
   throw new Error(`internal: no quotient rule for ${fn}`);
+}
+
+/** Shared work for the derivatives of one root with respect to every parameter. */
+export interface DerivativePlan {
+  reach: number[];
+  /** does node `id` depend on parameter j */
+  depends: (id: number, j: number) => boolean;
+}
+
+/** Reachable nodes of `root` and a bitset of the parameters each depends on: each ∂/∂θ_j then visits only its nodes. */
+export function derivativePlan(g: Graph, root: number, p: number): DerivativePlan {
+  const reach = reachable(g, [root]);
+  const W = Math.max(1, Math.ceil(p / 32));
+  const row = new Map<number, number>();
+  reach.forEach((id, k) => row.set(id, k));
+  const bits = new Uint32Array(reach.length * W);
+  reach.forEach((id, k) => {
+    const n = g.get(id);
+    if (n.op === 'param' && n.index < p) bits[k * W + (n.index >>> 5)] |= 1 << (n.index & 31);
+    for (const a of n.args) {
+      const ka = row.get(a) as number;
+      for (let w = 0; w < W; w++) bits[k * W + w] |= bits[ka * W + w];
+    }
+  });
+  const rowOf = new Int32Array(g.nodes.length).fill(-1);
+  reach.forEach((id, k) => (rowOf[id] = k));
+  return {
+    reach,
+    depends: (id, j) => {
+      const k = rowOf[id];
+      return k >= 0 && (bits[k * W + (j >>> 5)] & (1 << (j & 31))) !== 0;
+    },
+  };
 }
 
 /** Ids of the nodes reachable from `roots`, in increasing (topological) order. */

@@ -98,7 +98,12 @@ export class Graph {
     return id;
   }
 
+  private zeroId = -1;
+  private oneId = -1;
+
   num(v: number): number {
+    if (v === 0 && !Object.is(v, -0)) return this.zeroId >= 0 ? this.zeroId : (this.zeroId = this.intern('const', [], 0, -1, ''));
+    if (v === 1) return this.oneId >= 0 ? this.oneId : (this.oneId = this.intern('const', [], 1, -1, ''));
     return this.intern('const', [], v, -1, '');
   }
   variable(k: number): number {

@@ -12,6 +12,10 @@ export interface ParseOptions {
 }
 
 const MAX_DEPTH = 200;
+/** longest formula text accepted (keeps compile time and recursion depth bounded) */
+const MAX_LENGTH = 20000;
+/** deepest AST accepted: every tree walk (here and in callers) stays far from the stack limit, also in workers */
+const MAX_TREE_DEPTH = 1000;
 const COMPARISONS = new Set(['<', '<=', '>', '>=', '==', '!=']);
 
 function describe(t: Token): string {
@@ -361,6 +365,33 @@ export function parseFormula(text: string, opts: ParseOptions = {}): Node {
   if (typeof text !== 'string') {
     throw new FormulaError('a formula must be text, e.g. "a*exp(b*x)"', { start: 0, end: 0 });
   }
+  if (text.length > MAX_LENGTH) {
+    throw new FormulaError(
+      `formula too long at column ${MAX_LENGTH + 1} (${text.length} characters, the limit is ${MAX_LENGTH}) — split it into simpler parts`,
+      { start: MAX_LENGTH, end: text.length },
+    );
+  }
   const tokens = tokenize(text);
-  return new Parser(text, tokens, !!opts.logic).parse();
+  const ast = new Parser(text, tokens, !!opts.logic).parse();
+  const deepest = deepestNode(ast);
+  if (deepest) {
+    throw new FormulaError(
+      `formula nested too deeply at column ${col(deepest.span.start)} (more than ${MAX_TREE_DEPTH} operations inside one another or in one chain) — split it into simpler parts`,
+      deepest.span,
+    );
+  }
+  return ast;
+}
+
+/** The first node deeper than MAX_TREE_DEPTH (iterative walk, so it cannot overflow the stack), or null. */
+function deepestNode(root: Node): Node | null {
+  const stack: [Node, number][] = [[root, 1]];
+  while (stack.length > 0) {
+    const [n, d] = stack.pop() as [Node, number];
+    if (d > MAX_TREE_DEPTH) return n;
+    if (n.type === 'unary') stack.push([n.arg, d + 1]);
+    else if (n.type === 'binary') stack.push([n.left, d + 1], [n.right, d + 1]);
+    else if (n.type === 'call') for (const a of n.args) stack.push([a, d + 1]);
+  }
+  return null;
 }

@@ -57,12 +57,25 @@ export const TUNING: {
   localRuns: number;
   /** iteration cap of one short local run */
   localIterations: number;
+  /** the search rejects points whose linear terms sum (in norm) to more than this multiple of the fit */
+  cancellation: number;
+  /** cap on screened candidates */
+  maxCandidates: number;
+  /** differential-evolution population per sampled parameter */
+  dePopulation: number;
+  /** generations of differential evolution on the projected SSE (0: none) */
+  deGenerations: number;
+  /** candidates screened per redrawn subset in a hop */
+  hopSamples: number;
+  /** candidates raced with a few local iterations each, and that number of iterations */
+  raceStarts: number;
+  raceIterations: number;
   /** rounds of coordinate-resampling basin hopping, and local runs per round */
   hopRounds: number;
   hopRuns: number;
   /** optional progress trace (benchmarks) */
   trace?: (msg: string) => void;
-} = { locationShare: 0.4, localRuns: 8, localIterations: 100, hopRounds: 4, hopRuns: 3 };
+} = { locationShare: 0.4, localRuns: 8, localIterations: 100, hopRounds: 4, hopRuns: 24, raceStarts: 0, raceIterations: 12, hopSamples: 400, deGenerations: 150, cancellation: 1e3, maxCandidates: 4096, dePopulation: 10 };
 
 const LOG_LO = -6;
 const LOG_HI = 6;
@@ -171,6 +184,7 @@ function project(c: Ctx, theta: Float64Array, L: number[], work: { cols: Float64
   const m = L.length;
   const Q = work.cols;
   const R = new Float64Array(m * m);
+  const norms = new Float64Array(m);
   for (let a = 0; a < m; a++) {
     const q = Q[a];
     const off = L[a] * n;
@@ -180,6 +194,7 @@ function project(c: Ctx, theta: Float64Array, L: number[], work: { cols: Float64
       norm0 += q[i] * q[i];
     }
     norm0 = Math.sqrt(norm0);
+    norms[a] = norm0;
     for (let pass = 0; pass < 2; pass++) {
       for (let b = 0; b < a; b++) {
         const qb = Q[b];
@@ -211,7 +226,16 @@ function project(c: Ctx, theta: Float64Array, L: number[], work: { cols: Float64
     if (!Number.isFinite(theta[L[a]])) return Infinity;
   }
   let s = 0;
-  for (let i = 0; i < n; i++) s += r[i] * r[i];
+  let fit = 0;
+  for (let i = 0; i < n; i++) {
+    s += r[i] * r[i];
+    fit += (sw[i] * problem.y[i] - r[i]) ** 2;
+  }
+  // cancellation guard: linear terms much larger than the fit they add up to mark a degenerate combination (two
+  // nearly equal terms with huge opposite coefficients); the search avoids them, the final unguarded fit does not
+  let terms = 0;
+  for (let a = 0; a < m; a++) terms += Math.abs(theta[L[a]]) * norms[a];
+  if (terms > TUNING.cancellation * Math.sqrt(fit)) return Infinity;
   return Number.isFinite(s) ? s : Infinity;
 }
 
@@ -298,7 +322,7 @@ function sampler(lo: number, hi: number, scale: number, locations: [number, numb
     if (k < TUNING.locationShare && locations.length > 0) {
       const [a, b] = locations[Math.floor(rand() * locations.length)];
       const s = b - a > 0 ? b - a : Math.abs(a) || 1;
-      return a - 0.5 * s + 2 * s * u;
+      return a - 0.25 * s + 1.5 * s * u;
     }
     const sign = rand() < 0.5 ? -1 : 1;
     return sign * magnitude(u, rand);
@@ -329,6 +353,10 @@ export function multiStart(problem: LsqProblem, opts: MultiStartOptions): MultiS
   const unknown: number[] = [];
   for (let j = 0; j < p; j++) if (!fixed[j] && opts.start[j] === undefined) unknown.push(j);
   const base = Float64Array.from({ length: p }, (_, j) => opts.start[j] ?? 0);
+  // two values of a parameter are "apart" when their signed log magnitudes differ by more than `dex`, or (location-like
+  // parameters) they differ by more than a share of the x span
+  const xSpan = Math.max(1e-300, ...opts.xRanges.map(([a, b]) => b - a));
+  const apart = (a: number, b: number, dex: number): boolean => Math.abs(coord(a) - coord(b)) > dex || Math.abs(a - b) > dex * 0.25 * xSpan;
   const yScale = Math.max(Math.abs(opts.yRange[1] - opts.yRange[0]), Math.abs(opts.yRange[0]), Math.abs(opts.yRange[1])) || 1;
 
   // broad samplers first (scale 1), used for reference points and sensitivity scales
@@ -369,22 +397,18 @@ export function multiStart(problem: LsqProblem, opts: MultiStartOptions): MultiS
       }
     }
   }
-  const scale = (j: number): number => {
-    const list = scaleOf.get(j);
-    if (!list || list.length === 0) return 1;
+  const scales = new Map<number, number>();
+  for (const [j, list] of scaleOf) {
     list.sort((a, b) => a - b);
-    return 10 ** Math.min(LOG_HI, Math.max(LOG_LO, list[Math.floor(list.length / 2)]));
-  };
+    scales.set(j, 10 ** Math.min(LOG_HI, Math.max(LOG_LO, list[Math.floor(list.length / 2)])));
+  }
+  const scale = (j: number): number => scales.get(j) ?? 1;
   const samplers = unknown.map((j) => (Lset.has(j) ? () => 0 : sampler(lower[j], upper[j], scale(j), opts.xRanges)));
 
-  // 3. screen candidates (Latin hypercube in the unit cube of the sampled parameters) by projected SSE
-  const tEval = Date.now();
-  const probe = draw(samplers, null);
-  project(c, probe, L, work);
-  const each = Math.max(0.005, Date.now() - tEval + 0.01);
+  // 3. screen candidates (Latin hypercube in the unit cube of the sampled parameters) by projected SSE; the count
+  // depends on the dimension only, so the search is deterministic given the seed (time limits aside)
   const d = N.length;
-  const nCand =
-    opts.candidates ?? (d === 0 ? 1 : Math.max(256, Math.min(16384, Math.floor(Math.min(0.25 * budget, 1500) / each), 512 * 2 ** Math.min(d, 5))));
+  const nCand = opts.candidates ?? (d === 0 ? 1 : Math.min(TUNING.maxCandidates, 256 * 2 ** Math.min(d, 4)));
   const pool: { theta: Float64Array; sse: number }[] = [];
   const special: Float64Array[] = [];
   if (d > 0) {
@@ -427,12 +451,50 @@ export function multiStart(problem: LsqProblem, opts: MultiStartOptions): MultiS
   pool.sort((a, b) => a.sse - b.sse);
   TUNING.trace?.(`screened ${screened} of ${nCand} in ${Date.now() - t0} ms; projected ${L.join(',')}; best ${pool.slice(0, 3).map((q) => q.sse.toPrecision(6)).join(' ')}`);
 
+  // 3b. differential evolution (Storn & Price 1997, DE/rand/1/bin) on the projected SSE over the sampled
+  // parameters, seeded with the best distinct screened candidates: cheap evaluations, good at multimodal landscapes
+  const sampledIdx = N;
+  if (sampledIdx.length > 0 && pool.length >= 4 && TUNING.deGenerations > 0) {
+    const P = Math.min(pool.length, Math.max(20, TUNING.dePopulation * sampledIdx.length));
+    const pop: { theta: Float64Array; sse: number }[] = [];
+    for (const cand of pool) {
+      if (pop.length >= P) break;
+      if (pop.every((q) => sampledIdx.some((j) => apart(q.theta[j], cand.theta[j], 0.05)))) pop.push(cand);
+    }
+    const m = pop.length;
+    for (let g = 0; g < TUNING.deGenerations && m >= 4 && !stop(); g++) {
+      for (let i = 0; i < m; i++) {
+        let r1: number, r2: number, r3: number;
+        do r1 = Math.floor(rand() * m); while (r1 === i);
+        do r2 = Math.floor(rand() * m); while (r2 === i || r2 === r1);
+        do r3 = Math.floor(rand() * m); while (r3 === i || r3 === r1 || r3 === r2);
+        const F = 0.5 + 0.5 * rand();
+        const t = Float64Array.from(pop[i].theta);
+        const jr = Math.floor(rand() * sampledIdx.length);
+        sampledIdx.forEach((j, a) => {
+          if (a === jr || rand() < 0.9) {
+            // trial values stay within the sampled magnitudes (else the population can drift to degenerate infinities)
+            const lim = Math.max(10 ** LOG_HI, 10 ** 2.5 * scale(j));
+            const v = pop[r1].theta[j] + F * (pop[r2].theta[j] - pop[r3].theta[j]);
+            t[j] = Math.min(upper[j], lim, Math.max(lower[j], -lim, v));
+          }
+        });
+        const sse = project(c, t, L, work);
+        screened++;
+        if (Number.isFinite(sse) && sse <= pop[i].sse) pop[i] = { theta: t, sse };
+      }
+    }
+    pool.unshift(...pop);
+    pool.sort((a, b) => a.sse - b.sse);
+    TUNING.trace?.(`evolved ${m} for ${TUNING.deGenerations} generations at ${Date.now() - t0} ms; best ${pool.slice(0, 3).map((q) => q.sse.toPrecision(6)).join(' ')}`);
+  }
+
   // 4. short local runs from the best distinct candidates
   const localRuns = Math.max(1, opts.localRuns ?? TUNING.localRuns);
   const chosen: Float64Array[] = [];
   for (const cand of pool) {
-    if (chosen.length >= localRuns) break;
-    const far = chosen.every((q) => N.some((j) => Math.abs(coord(q[j]) - coord(cand.theta[j])) > 0.3));
+    if (chosen.length >= Math.max(localRuns, TUNING.raceStarts)) break;
+    const far = chosen.every((q) => N.some((j) => apart(q[j], cand.theta[j], 0.3)));
     if (chosen.length === 0 || far) chosen.push(cand.theta);
   }
   if (chosen.length === 0) chosen.push(Float64Array.from(base, (v, j) => Math.min(upper[j], Math.max(lower[j], v))));
@@ -444,20 +506,20 @@ export function multiStart(problem: LsqProblem, opts: MultiStartOptions): MultiS
   const NL: number[] = [];
   for (let j = 0; j < p; j++) if (!fixed[j] && !Lset.has(j)) NL.push(j);
   const reduced = L.length > 0 && NL.length > 0 ? reducedProblem(c, base, L, NL, scale) : null;
-  const localRun = (theta0: Float64Array, seconds: number): { theta: Float64Array; sse: number } | null => {
+  const localRun = (theta0: Float64Array, seconds: number, iterations = TUNING.localIterations): { theta: Float64Array; sse: number } | null => {
     try {
       if (reduced) {
         const r = solveNonlinear(reduced.problem, {
           theta0: NL.map((j) => theta0[j]),
           lower: NL.map((j) => lower[j]),
           upper: NL.map((j) => upper[j]),
-          maxIterations: TUNING.localIterations,
+          maxIterations: iterations,
           seconds,
           shouldStop: opts.shouldStop,
         });
         return Number.isFinite(r.sse) ? { theta: reduced.expand(r.theta), sse: r.sse } : null;
       }
-      const r = solveNonlinear(problem, solveOpts(theta0, TUNING.localIterations, seconds));
+      const r = solveNonlinear(problem, solveOpts(theta0, iterations, seconds));
       return Number.isFinite(r.sse) ? { theta: r.theta, sse: r.sse } : null;
     } catch {
       return null;
@@ -465,13 +527,41 @@ export function multiStart(problem: LsqProblem, opts: MultiStartOptions): MultiS
   };
   let best: { start: Float64Array; theta: Float64Array; sse: number } | null = null;
   let localRunsDone = 0;
-  for (const theta0 of chosen) {
+  const same = (a: number, b: number): boolean => Math.abs(a - b) <= 1e-6 * Math.max(Math.abs(a), Math.abs(b), 1e-300);
+  // racing: a few iterations from every chosen candidate, then full local runs from the best of those (the SSE after
+  // a few projected LM steps predicts the basin far better than the SSE at the candidate itself)
+  let starts = chosen;
+  if (chosen.length > localRuns) {
+    const raced: { start: Float64Array; theta: Float64Array; sse: number }[] = [];
+    for (const theta0 of chosen) {
+      if (stop()) break;
+      const r = localRun(theta0, remaining() / 8, TUNING.raceIterations);
+      localRunsDone++;
+      if (r) raced.push({ start: theta0, ...r });
+    }
+    raced.sort((a, b) => a.sse - b.sse);
+    TUNING.trace?.(`raced ${raced.length} at ${Date.now() - t0} ms; best ${raced.slice(0, 4).map((q) => q.sse.toPrecision(6)).join(' ')}`);
+    const picked: typeof raced = [];
+    for (const r of raced) {
+      if (picked.length >= localRuns) break;
+      if (picked.every((q) => !same(q.sse, r.sse) || NL.some((j) => apart(q.theta[j], r.theta[j], 0.05)))) picked.push(r);
+    }
+    if (picked.length > 0) starts = picked.map((q) => q.theta);
+  }
+  let confirmations = 0;
+  for (const theta0 of starts) {
     if (best && stop()) break;
-    const share = remaining() / Math.max(2, chosen.length - localRunsDone + 1);
+    // the same least SSE reached from three distinct starts: enough local runs
+    if (confirmations >= 3) break;
+    const share = remaining() / Math.max(2, starts.length + 1);
     const r = localRun(theta0, share);
     localRunsDone++;
     TUNING.trace?.(`local run ${localRunsDone}: SSE ${r ? r.sse.toPrecision(8) : 'none'} at ${Date.now() - t0} ms`);
-    if (r && (!best || r.sse < best.sse)) best = { start: theta0, ...r };
+    if (!r) continue;
+    if (!best || r.sse < best.sse) {
+      confirmations = best && same(r.sse, best.sse) ? confirmations + 1 : 1;
+      best = { start: theta0, ...r };
+    } else if (same(r.sse, best.sse)) confirmations++;
   }
 
   // 4b. basin hopping by coordinate resampling: from the incumbent, redraw one or two sampled parameters (the others
@@ -490,10 +580,12 @@ export function multiStart(problem: LsqProblem, opts: MultiStartOptions): MultiS
     for (const S of pick) {
       if (stop()) break;
       let top: { theta: Float64Array; sse: number } | null = null;
-      const m = 96 * S.length;
+      const m = TUNING.hopSamples;
       for (let k = 0; k < m; k++) {
         const t = Float64Array.from(inc.theta);
         for (const j of S) t[j] = (samplerOf.get(j) as Sampler)((k + rand()) / m, rand);
+        // only moves that change the redrawn parameters materially (else the local run returns to the incumbent)
+        if (!S.every((j) => apart(t[j], inc.theta[j], 0.2))) continue;
         const sse = project(c, t, L, work);
         screened++;
         if (Number.isFinite(sse) && (!top || sse < top.sse)) top = { theta: t, sse };
@@ -507,7 +599,7 @@ export function multiStart(problem: LsqProblem, opts: MultiStartOptions): MultiS
       const r = localRun(cand.theta, remaining() / 4);
       localRunsDone++;
       TUNING.trace?.(`hop ${round}: SSE ${r ? r.sse.toPrecision(8) : 'none'} (incumbent ${inc.sse.toPrecision(8)}) at ${Date.now() - t0} ms`);
-      if (r && r.sse < (best as { sse: number }).sse * (1 - 1e-9)) {
+      if (r && r.sse < (best as { sse: number }).sse * (1 - 1e-5)) {
         best = { start: cand.theta, ...r };
         improved = true;
       }

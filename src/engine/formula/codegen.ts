@@ -119,7 +119,6 @@ function plan(g: Graph, roots: readonly number[]): Plan {
  */
 export function generateKernels(g: Graph, f: number, d: readonly number[]): Kernels {
   const e = new Emitter(g);
-  const p = d.length;
   const loadParams = (pl: Plan) => pl.params.map((j) => `  const t${j} = +theta[${j}];`);
 
   // evaluate(theta, X, out)
@@ -182,7 +181,6 @@ export function generateKernels(g: Graph, f: number, d: readonly number[]): Kern
     `  return ${e.ref(f)};`,
     '};',
   ].join('\n');
-  void p;
 
   const make = <T>(src: string): T => new Function(src)() as T;
   return {

@@ -3,7 +3,7 @@
 
 import { strict as assert } from 'assert';
 import * as fc from 'fast-check';
-import { compileFormula } from '../../src/engine/formula';
+import { compileFormula, formatFormula, parseFormula } from '../../src/engine/formula';
 import { compileForwardJacobian } from '../../src/engine/formula/forward';
 import { centralDifference, formulaArbitrary, KINK_TEMPLATES, smallReal, SMOOTH_TEMPLATES } from './formulaHelpers';
 
@@ -224,4 +224,43 @@ describe('formula linearity and constant term (decided symbolically)', () => {
       { numRuns: 200 },
     );
   });
+});
+
+describe('formula: the built-in catalogue formulas (DESIGN.md catalogue table)', () => {
+  const catalogue: [string, boolean][] = [
+    // formula as written in the catalogue, linear in its parameters (hand-derived)
+    ['intercept + slope*x', true],
+    ['A*exp(k*x)', false],
+    ['A*exp(k*x) + C', false],
+    ['a + b*c^x', false],
+    ['A1*exp(-k1*x) + A2*exp(-k2*x)', false],
+    ['a + b*log(x)', true],
+    ['a*x^b', false],
+    ['Vmax*x/(Km + x)', false],
+    ['Vmax*x^n/(K^n + x^n)', false],
+    ['K/(1 + exp(-r*(x - x0)))', false],
+    ['lower + (upper - lower)/(1 + (ec50/x)^slope)', false],
+    ['lower + (upper - lower)/(1 + (xc/x)^slope)^asym', false],
+    ['K*exp(-exp(-r*(x - x0)))', false],
+    ['K/(1 + nu*exp(-r*(x - x0)))^(1/nu)', false],
+    ['upper - (upper - y0)*exp(-(x/scale)^shape)', false],
+    ['upper - (upper - y0)*exp(-k*x)', false],
+    ['height*exp(-(x - center)^2/(2*width^2))', false],
+    ['height/(1 + ((x - center)/hwhm)^2)', false],
+    ['A*exp(-Ea/(8.314462618*x))', false],
+    ['1/(a + b*log(x) + c*log(x)^3)', false],
+  ];
+  for (const [text, linear] of catalogue) {
+    it(`${text}: canonical text is the catalogue text; linear ${linear}; finite derivatives wherever f is finite, also at x = 0`, () => {
+      const c = compileFormula(text, { variables: ['x'] });
+      assert.equal(formatFormula(parseFormula(text)), text);
+      assert.equal(c.linear, linear);
+      const theta = c.params.map((_, j) => [1.3, 0.7, 2.1, 0.9, 1.6, 0.4][j % 6]);
+      for (const x of [0, 1e-300, 0.5, 3, 40]) {
+        const g = new Float64Array(c.params.length);
+        const f = c.gradientAt(theta, [x], g);
+        if (Number.isFinite(f)) assert.ok(g.every(Number.isFinite), `${text} at x = ${x}: f = ${f}, gradient ${[...g]}`);
+      }
+    });
+  }
 });

@@ -67,6 +67,8 @@ export function derivative(g: Graph, root: number, j: number, plan?: DerivativeP
         if (isZero(da)) r = zero;
         else if (n.fn === 'log' || n.fn === 'sqrt' || n.fn === 'log10') r = unaryQuotient(g, n.fn, a, id, da);
         else if (n.fn === 'asin' || n.fn === 'acos') r = g.mulz(unaryDerivative(g, n.fn, a, id), da);
+        // exp(u) that underflowed to 0 wins over an infinite u' (exp(-c/x) at x = 0: the limit is 0)
+        else if (n.fn === 'exp') r = g.mulz(da, id);
         else r = g.mul(unaryDerivative(g, n.fn, a, id), da);
         break;
       case 'min':

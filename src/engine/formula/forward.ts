@@ -88,7 +88,7 @@ export function generateForwardJacobian(g: Graph, f: number, p: number): { kerne
         };
         const pu = n.fn === 'exp' ? v : local('pu', partial[n.fn]);
         const absorb = ['log', 'log10', 'sqrt', 'asin', 'acos'].includes(n.fn);
-        rule = (j) => lin([[pu, tangent(a, j)]], absorb ? 'tangent' : undefined);
+        rule = (j) => lin([[pu, tangent(a, j), n.fn === 'exp' ? 'partial' : absorb ? 'tangent' : undefined]]);
         break;
       }
       case 'min':

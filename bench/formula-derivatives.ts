@@ -5,10 +5,10 @@
 //
 // Measured 2026-12-01 on the shared 2-core build machine (CPU time, best of 15, n = 10^6; ns per point):
 //   model               p   f    f+J symbolic   f+J forward AD   AD/symbolic   f+J finite differences (closure)   FD/symbolic
-//   logistic3           3  18       27-31          26-29          0.93-0.95            97-114                      3.6-3.7
-//   hill                3  61-72   107-113        107-115         0.94-1.08           763-829                      6.8-7.7
-//   exp-sum (6 params)  6  36-44    45-46          48-49          1.05-1.08           634-650                       14
-//   rational (7 params) 7   3        11             11              1.03              225-228                       20
+//   logistic3           3  17-18    27-31          26-29          0.93-0.97            97-114                      3.6-3.9
+//   hill                3  61-72   103-113        102-115         0.94-1.08           663-829                      6.4-7.7
+//   exp-sum (6 params)  6  36-44    45-46          48-49          1.05-1.08           525-650                    11.4-14.1
+//   rational (7 params) 7   3       10-11          10-11          1.02-1.03           205-228                       20
 // Decision: symbolic differentiation. After V8's optimisation both exact methods run the same arithmetic (the
 // symbolic graph shares quotients/reciprocals and hoists θ-only parts exactly as the dual-number code does), so
 // speed is a tie within ±8 %; the symbolic graph also decides `linear` and `hasConstantTerm` exactly and needs

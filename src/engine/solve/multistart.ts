@@ -126,8 +126,11 @@ function affineParameters(c: Ctx, refs: Float64Array[], candidates: number[]): n
   };
   const usable = refs.filter((r) => at(r, f0));
   if (usable.length === 0) return [];
-  const pure = (j: number): boolean =>
-    usable.every((r) => {
+  // a reference point is informative for θ_j when moving θ_j changes f there; at least two informative points are
+  // required (else θ_j is treated as nonlinear, the safe side), and every informative one must show no curvature
+  const pure = (j: number): boolean => {
+    let informative = 0;
+    for (const r of usable) {
       const h = Math.max(1, Math.abs(r[j]));
       const t = Float64Array.from(r);
       if (!at(t, f0)) return false;
@@ -135,11 +138,18 @@ function affineParameters(c: Ctx, refs: Float64Array[], candidates: number[]): n
       if (!at(t, fa)) return false;
       t[j] = r[j] + 2 * h;
       if (!at(t, fb)) return false;
-      return small(
+      let moved = false;
+      for (let i = 0; i < n && !moved; i++) if (Math.abs(fa[i] - f0[i]) > 1e-6 * (Math.abs(fa[i]) + Math.abs(f0[i]))) moved = true;
+      if (!moved) continue;
+      informative++;
+      const flat = small(
         (i) => fb[i] - 2 * fa[i] + f0[i],
         (i) => Math.abs(fb[i]) + 2 * Math.abs(fa[i]) + Math.abs(f0[i]),
       );
-    });
+      if (!flat) return false;
+    }
+    return informative >= 2;
+  };
   const mixed = (j: number, k: number): boolean =>
     usable.every((r) => {
       const hj = Math.max(1, Math.abs(r[j]));
@@ -368,9 +378,14 @@ export function multiStart(problem: LsqProblem, opts: MultiStartOptions): MultiS
   };
 
   // 1. parameters the model is affine in (free, unbounded): solved by linear least squares for every candidate
+  // reference points of moderate magnitude (±10^[-1, 1], or inside the bounds), where parameters tend to matter
+  const moderate = unknown.map((j) => {
+    if (Number.isFinite(lower[j]) || Number.isFinite(upper[j])) return sampler(lower[j], upper[j], 1, opts.xRanges);
+    return ((u: number, rnd: () => number) => (rnd() < 0.5 ? -1 : 1) * 10 ** (-1 + 2 * u)) as Sampler;
+  });
   const refs: Float64Array[] = [];
-  for (let k = 0; k < 40 && refs.length < 3; k++) {
-    const t = draw(broad, null);
+  for (let k = 0; k < 60 && refs.length < 4; k++) {
+    const t = draw(k < 30 ? moderate : broad, null);
     if (evalF(c, t, false)) refs.push(t);
   }
   const affineCandidates: number[] = [];
@@ -497,6 +512,10 @@ export function multiStart(problem: LsqProblem, opts: MultiStartOptions): MultiS
     const far = chosen.every((q) => N.some((j) => apart(q[j], cand.theta[j], 0.3)));
     if (chosen.length === 0 || far) chosen.push(cand.theta);
   }
+  // the neutral point (every sampled parameter 0, e.g. a rational's denominator 1) is always tried: cheap, and the
+  // natural homotopy start for models that reduce to a linear one there
+  const neutral = special[0];
+  if (d > 0 && neutral && !chosen.includes(neutral) && Number.isFinite(project(c, Float64Array.from(neutral), L, work))) chosen.push(neutral);
   if (chosen.length === 0) chosen.push(Float64Array.from(base, (v, j) => Math.min(upper[j], Math.max(lower[j], v))));
   const solveOpts = (theta0: Float64Array, iters: number | undefined, seconds: number): SolveOptions => ({
     theta0, lower, upper, fixed, maxIterations: iters, seconds, shouldStop: opts.shouldStop,

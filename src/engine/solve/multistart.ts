@@ -67,15 +67,12 @@ export const TUNING: {
   deGenerations: number;
   /** candidates screened per redrawn subset in a hop */
   hopSamples: number;
-  /** candidates raced with a few local iterations each, and that number of iterations */
-  raceStarts: number;
-  raceIterations: number;
   /** rounds of coordinate-resampling basin hopping, and local runs per round */
   hopRounds: number;
   hopRuns: number;
   /** optional progress trace (benchmarks) */
   trace?: (msg: string) => void;
-} = { locationShare: 0.4, localRuns: 8, localIterations: 100, hopRounds: 4, hopRuns: 24, raceStarts: 0, raceIterations: 12, hopSamples: 400, deGenerations: 150, cancellation: 1e3, maxCandidates: 4096, dePopulation: 10 };
+} = { locationShare: 0.4, localRuns: 8, localIterations: 100, hopRounds: 4, hopRuns: 24, hopSamples: 400, deGenerations: 150, cancellation: 1e3, maxCandidates: 4096, dePopulation: 10 };
 
 const LOG_LO = -6;
 const LOG_HI = 6;
@@ -508,7 +505,7 @@ export function multiStart(problem: LsqProblem, opts: MultiStartOptions): MultiS
   const localRuns = Math.max(1, opts.localRuns ?? TUNING.localRuns);
   const chosen: Float64Array[] = [];
   for (const cand of pool) {
-    if (chosen.length >= Math.max(localRuns, TUNING.raceStarts)) break;
+    if (chosen.length >= localRuns) break;
     const far = chosen.every((q) => N.some((j) => apart(q[j], cand.theta[j], 0.3)));
     if (chosen.length === 0 || far) chosen.push(cand.theta);
   }
@@ -547,26 +544,7 @@ export function multiStart(problem: LsqProblem, opts: MultiStartOptions): MultiS
   let best: { start: Float64Array; theta: Float64Array; sse: number } | null = null;
   let localRunsDone = 0;
   const same = (a: number, b: number): boolean => Math.abs(a - b) <= 1e-6 * Math.max(Math.abs(a), Math.abs(b), 1e-300);
-  // racing: a few iterations from every chosen candidate, then full local runs from the best of those (the SSE after
-  // a few projected LM steps predicts the basin far better than the SSE at the candidate itself)
-  let starts = chosen;
-  if (chosen.length > localRuns) {
-    const raced: { start: Float64Array; theta: Float64Array; sse: number }[] = [];
-    for (const theta0 of chosen) {
-      if (stop()) break;
-      const r = localRun(theta0, remaining() / 8, TUNING.raceIterations);
-      localRunsDone++;
-      if (r) raced.push({ start: theta0, ...r });
-    }
-    raced.sort((a, b) => a.sse - b.sse);
-    TUNING.trace?.(`raced ${raced.length} at ${Date.now() - t0} ms; best ${raced.slice(0, 4).map((q) => q.sse.toPrecision(6)).join(' ')}`);
-    const picked: typeof raced = [];
-    for (const r of raced) {
-      if (picked.length >= localRuns) break;
-      if (picked.every((q) => !same(q.sse, r.sse) || NL.some((j) => apart(q.theta[j], r.theta[j], 0.05)))) picked.push(r);
-    }
-    if (picked.length > 0) starts = picked.map((q) => q.theta);
-  }
+  const starts = chosen;
   let confirmations = 0;
   for (const theta0 of starts) {
     if (best && stop()) break;
@@ -619,7 +597,7 @@ export function multiStart(problem: LsqProblem, opts: MultiStartOptions): MultiS
       localRunsDone++;
       TUNING.trace?.(`hop ${round}: SSE ${r ? r.sse.toPrecision(8) : 'none'} (incumbent ${inc.sse.toPrecision(8)}) at ${Date.now() - t0} ms`);
       if (r && r.sse < (best as { sse: number }).sse * (1 - 1e-5)) {
-        best = { start: cand.theta, ...r };
+        best = { start: inc.start, ...r }; // startValues name where the winning chain began
         improved = true;
       }
     }

@@ -404,7 +404,12 @@ export function fitreportSchema(): Schema {
       x: { description: 'Range of x, or per variable.', oneOf: [range2, { type: 'object', additionalProperties: range2 }] },
       y: range2,
     }, ['x', 'y']),
+    droppedTotal: int('All rows dropped for bad values, when the dropped list is capped.'),
     correlation: { type: 'object', description: 'Pearson r of y with each x variable.', additionalProperties: { type: ['number', 'null'] } },
+    labels: obj('What each plotted quantity is, as the spec wrote it: for axis titles.', {
+      x: { type: 'object', description: 'Variable name -> its column or expression.', additionalProperties: { type: 'string' } },
+      y: str('The column or expression of y.'),
+    }, ['x', 'y']),
   }, ['file', 'rows', 'used', 'dropped', 'excluded', 'range', 'correlation']);
   const fitReport = obj('Results of a fit spec.', {
     version: { const: 1, description: 'Report format version.' },

@@ -643,8 +643,11 @@ export class ReportView {
     }
     setChildren(el.legend, legend);
 
-    const xLabel = multi ? `fitted (${sel?.name ?? ''})` : xVar;
-    const yLabel = 'y';
+    // axis titles: the column or expression the spec bound (older reports without labels fall back to the names)
+    const labels = r.data.labels;
+    const yName = labels?.y ?? 'y';
+    const xLabel = multi ? `fitted ${yName} (${sel?.name ?? ''})` : labels?.x[xVar] && labels.x[xVar] !== xVar ? `${labels.x[xVar]}` : xVar;
+    const yLabel = yName;
     const main = this.chartConfig(datasets, kinds, 'main', { logX, logY, xLabel, yLabel });
     this.mainKinds = kinds;
     this.mainChart = this.applyChart(this.mainChart, el.mainCanvas, main);

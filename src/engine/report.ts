@@ -257,6 +257,8 @@ export interface DataReport {
   range: { x: Record<string, [number, number]> | [number, number]; y: [number, number] };
   /** Pearson r of y with each x variable */
   correlation: Record<string, number | null>;
+  /** what each plotted quantity is, as the spec wrote it (column or expression), for axis titles */
+  labels?: { x: Record<string, string>; y: string };
 }
 
 export interface ExpectResult {

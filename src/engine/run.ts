@@ -27,7 +27,7 @@ import type { NormalizedSpec } from './spec/types';
 import { DataError, prepareData, readHeader, readTable } from './data';
 import type { Table } from './data/types';
 import { buildModel, fitModel } from './models';
-import { analyzeModel, compareModels, resolveThresholds } from './stats';
+import { analyzeModel, compareModels, dataCorrelation, resolveThresholds } from './stats';
 import type { AnalysisOptions, ModelAnalysisInput } from './stats/api';
 
 export interface RunOptions {
@@ -229,6 +229,11 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
   if (dataProblems.some(p => p.severity === 'error')) return fromProblems(name, [...specProblems, ...dataProblems]);
   const data = { X: prepared.X, y: prepared.y, w: prepared.w };
   const thresholds: Thresholds = resolveThresholds(spec.thresholds);
+  // Pearson r of y with each x, and the hint to try a straight line when |r| is high (common practice)
+  const correlated = dataCorrelation(prepared.variables, prepared.X, prepared.y, thresholds);
+  const correlation = correlated.correlation;
+  const hasLine = spec.models.some(m => m.builtin === 'linear' || m.polynomial === 1);
+  const correlationProblems = hasLine ? [] : correlated.problems;   // the hint is moot when a line is already fitted
 
   // 4. models
   const models: ModelReport[] = [];
@@ -318,11 +323,11 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
     spec: name,
     ...(spec.title !== undefined ? { title: spec.title } : {}),
     meta: { engine: ENGINE_VERSION, specHash, dataHash: table.hash, seed: RUN_SEED },
-    data: dataReport(spec, table, prepared),
+    data: dataReport(spec, table, prepared, correlation),
     models,
     comparison,
     best: comparison ? comparison.best : null,
-    problems: dedupe([...specProblems, ...dataProblems, ...runProblems]),
+    problems: dedupe([...specProblems, ...dataProblems, ...correlationProblems, ...runProblems]),
     expect,
     confidence: spec.confidence,
   };
@@ -429,34 +434,19 @@ function checkExpectations(spec: NormalizedSpec, models: ModelReport[]): ExpectR
   return out;
 }
 
-function pearson(a: ArrayLike<number>, b: ArrayLike<number>): number | null {
-  const n = a.length;
-  if (n < 2) return null;
-  let ma = 0, mb = 0;
-  for (let i = 0; i < n; i++) { ma += a[i]; mb += b[i]; }
-  ma /= n; mb /= n;
-  let sab = 0, saa = 0, sbb = 0;
-  for (let i = 0; i < n; i++) {
-    const da = a[i] - ma, db = b[i] - mb;
-    sab += da * db; saa += da * da; sbb += db * db;
-  }
-  if (saa === 0 || sbb === 0) return null;
-  return sab / Math.sqrt(saa * sbb);
-}
-
 function range(v: ArrayLike<number>): [number, number] {
   let lo = Infinity, hi = -Infinity;
   for (let i = 0; i < v.length; i++) { if (v[i] < lo) lo = v[i]; if (v[i] > hi) hi = v[i]; }
   return v.length ? [lo, hi] : [NaN, NaN];
 }
 
-function dataReport(spec: NormalizedSpec, table: Table, prepared: ReturnType<typeof prepareData>): DataReport {
+function dataReport(spec: NormalizedSpec, table: Table, prepared: ReturnType<typeof prepareData>, correlation: Record<string, number | null>): DataReport {
   const vars = prepared.variables;
   const xRanges: Record<string, [number, number]> = {};
-  const correlation: Record<string, number | null> = {};
+  const labels: { x: Record<string, string>; y: string } = { x: {}, y: unquote(spec.data.y) };
   vars.forEach((v, k) => {
     xRanges[v] = range(prepared.X[k]);
-    correlation[v] = pearson(prepared.X[k], prepared.y);
+    labels.x[v] = unquote(spec.data.x[v] ?? v);
   });
   return {
     file: spec.data.fileGiven,
@@ -468,7 +458,13 @@ function dataReport(spec: NormalizedSpec, table: Table, prepared: ReturnType<typ
     filtered: prepared.filtered,
     range: { x: vars.length === 1 ? xRanges[vars[0]] : xRanges, y: range(prepared.y) },
     correlation,
+    labels,
   };
+}
+
+/** An expression as a label: backticks only quote column names, they are not part of them. */
+function unquote(expr: string): string {
+  return expr.replace(/`([^`]*)`/g, '$1');
 }
 
 // ------------------------------------------------------------------ deterministic JSON

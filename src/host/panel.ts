@@ -11,7 +11,8 @@ import { locateInText } from './jsonText';
 import { log } from './log';
 import { dataFileOf } from './diagnostics';
 import type { ExportRequest, HostToWebview, SnapshotMessage, ThemeKind, WebviewState, WebviewToHost } from '../protocol';
-import { PROTOCOL_VERSION, WEBVIEW_ROOT_ID } from '../protocol';
+import { PROTOCOL_VERSION } from '../protocol';
+import { panelHtml } from '../../webview/html';
 import type { FitReport, RunResult } from '../engine/report';
 import { isErrorReport } from '../engine/report';
 
@@ -117,37 +118,15 @@ export class PanelController extends Disposable implements vscode.WebviewPanelSe
     if (!this.fits.last(specUri)) this.fits.schedule(specUri, 0);
   }
 
+  /** One template with the standalone report (webview/html.ts): nonce CSP, no inline style or script without it. */
   private html(webview: vscode.Webview): string {
-    const nonce = crypto.randomBytes(16).toString('base64');
-    const csp = [
-      `default-src 'none'`,
-      `img-src ${webview.cspSource} data: blob:`,
-      `style-src ${webview.cspSource} 'unsafe-inline'`,
-      `font-src ${webview.cspSource}`,
-      `script-src 'nonce-${nonce}'`,
-    ].join('; ');
-    const asset = (...p: string[]) => {
-      const file = vscode.Uri.joinPath(this.extensionUri, ...p);
-      return fs.existsSync(file.fsPath) ? webview.asWebviewUri(file).toString() : null;
-    };
-    const styles = [asset('media', 'panel.css'), asset('dist', 'webview.css')].filter((s): s is string => !!s)
-      .map(s => `<link rel="stylesheet" href="${s}">`).join('\n  ');
-    const script = asset('dist', 'webview.js');
-    const missing = script ? '' : `<p>The panel's script (dist/webview.js) is missing: build the extension with <code>node esbuild.js</code>.</p>`;
-    return `<!DOCTYPE html>
-<html lang="en">
-<head>
-  <meta charset="UTF-8">
-  <meta http-equiv="Content-Security-Policy" content="${csp}">
-  <meta name="viewport" content="width=device-width, initial-scale=1.0">
-  ${styles}
-  <title>Curvewright</title>
-</head>
-<body>
-  <div id="${WEBVIEW_ROOT_ID}">${missing}</div>
-  ${script ? `<script nonce="${nonce}" src="${script}"></script>` : ''}
-</body>
-</html>`;
+    const uri = (...p: string[]) => webview.asWebviewUri(vscode.Uri.joinPath(this.extensionUri, ...p)).toString();
+    return panelHtml({
+      scriptUri: uri('dist', 'webview.js'),
+      cssUri: uri('media', 'panel.css'),
+      nonce: crypto.randomBytes(16).toString('base64'),
+      cspSource: webview.cspSource,
+    });
   }
 
   private post(p: PanelEntry, m: HostToWebview): void {

@@ -451,10 +451,15 @@ export class ReportView {
     const sel = this.selectedModel(r)?.name;
     const weight = (x: { p: Problem; model?: string }) => SEVERITY_RANK[x.p.severity] * 3 + (x.model === undefined ? 0 : x.model === sel ? 1 : 2);
     all.sort((a, b) => weight(a) - weight(b));
+    // Errors and warnings show first (at most LIMIT); information notes fold behind the button unless they are all
+    // there is, so hints do not push the plot out of sight.
     const LIMIT = 6;
-    const folded = !this.allProblems && all.length > LIMIT + 1;
-    const shown = folded ? all.slice(0, LIMIT) : all;
-    const toggle = all.length > LIMIT + 1
+    const primary = all.filter(x => x.p.severity !== 'info').length;
+    const cap = primary > 0 ? Math.min(LIMIT, primary) : Math.min(2, all.length);
+    const foldable = all.length > cap + (primary > LIMIT || primary === 0 ? 1 : 0);
+    const folded = !this.allProblems && foldable;
+    const shown = folded ? all.slice(0, cap) : all;
+    const toggle = foldable
       ? h('button', { class: 'cw-link cw-more', type: 'button', 'aria-expanded': folded ? 'false' : 'true', onclick: () => { this.allProblems = !this.allProblems; this.drawProblems(r); } },
         folded ? `Show all ${all.length} problems` : 'Show fewer')
       : null;

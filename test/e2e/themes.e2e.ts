@@ -1,13 +1,13 @@
-// The panel on the demo-like growth fixture in a light and a dark theme. The theme changes live (the workspace
+// The panel on the demo workspace (a copy of examples/: bioreactor 1's growth curve) in a light and a dark theme. The theme changes live (the workspace
 // setting is rewritten), so the panel re-reads its colours from the 'theme' message without being reopened.
 import * as fs from 'fs';
 import * as path from 'path';
 import { open, openFile, panelText, QUIET, type Ctx } from './ui';
 
 export async function run(ctx: Ctx): Promise<void> {
-  await open(ctx, { 'workbench.colorTheme': 'Default Light Modern' });
+  await open(ctx, { 'workbench.colorTheme': 'Default Light Modern' }, 'examples');
   await ctx.page.locator('.monaco-workbench.vs').waitFor({ timeout: 20000 });
-  await openFile(ctx.page, 'growth.fitspec.json');
+  await openFile(ctx.page, 'growth-reactor1.fitspec.json');
   await ctx.runCommand('Curvewright: Show Fit Panel');
   await panelText(ctx, /logistic/);
   await ctx.webview().locator('canvas').first().scrollIntoViewIfNeeded();

@@ -7,15 +7,16 @@ export interface Ctx {
   shot(name: string): Promise<void>;
   runCommand(label: string): Promise<void | number>;
   webview(): FrameLocator;
-  openWorkspace?(settings?: Record<string, unknown>): Promise<string>;
+  /** opens a fresh copy of the fixture workspace, or of a repository folder such as 'examples' */
+  openWorkspace?(settings?: Record<string, unknown>, from?: string): Promise<string>;
   log?(m: string): void;
 }
 
 /** Workspace settings every scenario uses: no git prompt over the panel. */
 export const QUIET = { 'git.openRepositoryInParentFolders': 'never', 'git.enabled': false };
 
-export async function open(ctx: Ctx, settings?: Record<string, unknown>): Promise<void> {
-  if (ctx.openWorkspace) ctx.workspace = await ctx.openWorkspace({ ...QUIET, ...settings });
+export async function open(ctx: Ctx, settings?: Record<string, unknown>, from?: string): Promise<void> {
+  if (ctx.openWorkspace) ctx.workspace = await ctx.openWorkspace({ ...QUIET, ...settings }, from);
   await ctx.page.locator('.monaco-workbench').waitFor({ timeout: 60000 });
 }
 

@@ -68,9 +68,11 @@ const webview = page => page.frameLocator('iframe.webview.ready').frameLocator('
       const ctx = {
         page, name, shotsDir,
         workspace: null,
-        /** copies the fixture workspace (optionally with .vscode/settings.json) and opens it in the workbench */
-        async openWorkspace(settings) {
-          const ws = h.copyWorkspace(fixture, path.join(tmp, `ws-${k + 1}-${Date.now()}`));
+        /** copies the fixture workspace, or another folder of the repository such as 'examples' (optionally with
+         *  .vscode/settings.json), and opens the copy in the workbench: scenarios never modify the repository */
+        async openWorkspace(settings, from) {
+          const src = from ? path.join(h.REPO, from) : fixture;
+          const ws = h.copyWorkspace(src, path.join(tmp, `ws-${k + 1}-${Date.now()}`));
           if (settings) { fs.mkdirSync(path.join(ws, '.vscode'), { recursive: true }); fs.writeFileSync(path.join(ws, '.vscode', 'settings.json'), JSON.stringify(settings, null, 2)); }
           ctx.workspace = ws;
           await page.goto(`${cs.url}/?folder=${encodeURIComponent(ws)}`);

@@ -257,11 +257,14 @@ function reducedProblem(
   L: number[],
   NL: number[],
   typical: (j: number) => number,
+  limit: (j: number) => number,
 ): { problem: LsqProblem; expand: (phi: ArrayLike<number>) => Float64Array } {
   const { n } = c;
   const work = { cols: L.map(() => new Float64Array(n)), r: new Float64Array(n) };
   const theta = new Float64Array(base.length);
   const fitted = (phi: ArrayLike<number>, out: Float64Array): boolean => {
+    // the search stays within the sampled magnitudes: no drifting towards solutions at infinity
+    for (let k = 0; k < NL.length; k++) if (!(Math.abs(phi[k]) <= limit(NL[k]))) return false;
     theta.set(base);
     NL.forEach((j, k) => (theta[j] = phi[k]));
     if (!Number.isFinite(project(c, theta, L, work))) return false;
@@ -415,6 +418,8 @@ export function multiStart(problem: LsqProblem, opts: MultiStartOptions): MultiS
     scales.set(j, 10 ** Math.min(LOG_HI, Math.max(LOG_LO, list[Math.floor(list.length / 2)])));
   }
   const scale = (j: number): number => scales.get(j) ?? 1;
+  /** largest magnitude the search visits for parameter j (the sampled range; bounds, when finite, beyond it) */
+  const limit = (j: number): number => Math.max(10 ** LOG_HI, 10 ** 2.5 * scale(j), Math.abs(base[j]) * 10, ...[lower[j], upper[j]].filter(Number.isFinite).map(Math.abs));
   const samplers = unknown.map((j) => (Lset.has(j) ? () => 0 : sampler(lower[j], upper[j], scale(j), opts.xRanges)));
 
   // 3. screen candidates (Latin hypercube in the unit cube of the sampled parameters) by projected SSE; the count
@@ -486,7 +491,7 @@ export function multiStart(problem: LsqProblem, opts: MultiStartOptions): MultiS
         sampledIdx.forEach((j, a) => {
           if (a === jr || rand() < 0.9) {
             // trial values stay within the sampled magnitudes (else the population can drift to degenerate infinities)
-            const lim = Math.max(10 ** LOG_HI, 10 ** 2.5 * scale(j));
+            const lim = limit(j);
             const v = pop[r1].theta[j] + F * (pop[r2].theta[j] - pop[r3].theta[j]);
             t[j] = Math.min(upper[j], lim, Math.max(lower[j], -lim, v));
           }
@@ -512,7 +517,7 @@ export function multiStart(problem: LsqProblem, opts: MultiStartOptions): MultiS
   // the neutral point (every sampled parameter 0, e.g. a rational's denominator 1) is always tried: cheap, and the
   // natural homotopy start for models that reduce to a linear one there
   const neutral = special[0];
-  if (d > 0 && neutral && !chosen.includes(neutral) && Number.isFinite(project(c, Float64Array.from(neutral), L, work))) chosen.push(neutral);
+  if (d > 0 && neutral && !chosen.includes(neutral) && Number.isFinite(project(c, Float64Array.from(neutral), L, work))) chosen.unshift(neutral);
   if (chosen.length === 0) chosen.push(Float64Array.from(base, (v, j) => Math.min(upper[j], Math.max(lower[j], v))));
   const solveOpts = (theta0: Float64Array, iters: number | undefined, seconds: number): SolveOptions => ({
     theta0, lower, upper, fixed, maxIterations: iters, seconds, shouldStop: opts.shouldStop,
@@ -521,7 +526,7 @@ export function multiStart(problem: LsqProblem, opts: MultiStartOptions): MultiS
   // local runs on the projected problem when some parameters are affine (far more robust from afar), else on the full one
   const NL: number[] = [];
   for (let j = 0; j < p; j++) if (!fixed[j] && !Lset.has(j)) NL.push(j);
-  const reduced = L.length > 0 && NL.length > 0 ? reducedProblem(c, base, L, NL, scale) : null;
+  const reduced = L.length > 0 && NL.length > 0 ? reducedProblem(c, base, L, NL, scale, limit) : null;
   const localRun = (theta0: Float64Array, seconds: number, iterations = TUNING.localIterations): { theta: Float64Array; sse: number } | null => {
     try {
       if (reduced) {

@@ -51,7 +51,7 @@ export function fitspecSchema(): Schema {
   );
   const solver = obj('Solver settings of this model.', {
     maxIterations: int('Maximum Levenberg–Marquardt iterations of one start.', { minimum: 1, default: DEFAULTS.solver.maxIterations }),
-    multiStart: int('Number of starting points of the multi-start search, used when a formula has parameters without "start".', {
+    multiStart: int('Number of short local Levenberg–Marquardt runs the multi-start search makes from its best candidate points (used when a parameter has no "start" and no self-start applies); more runs search wider and take longer.', {
       minimum: 1,
       default: DEFAULTS.solver.multiStart,
     }),

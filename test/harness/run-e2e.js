@@ -80,7 +80,13 @@ const webview = page => page.frameLocator('iframe.webview.ready').frameLocator('
           await page.locator('.explorer-folders-view .monaco-list-row').first().waitFor({ timeout: 60000 });
           return ws;
         },
-        shot: async shotName => { const f = path.join(shotsDir, `${name}-${shotName}.png`); await page.screenshot({ path: f }); console.log('  screenshot ' + path.relative(h.REPO, f)); },
+        shot: async shotName => {
+          // park the mouse on the empty editor area first: a hover tooltip in the explorer would show this machine's paths
+          await page.mouse.move(560, 900);
+          const f = path.join(shotsDir, `${name}-${shotName}.png`);
+          await page.screenshot({ path: f });
+          console.log('  screenshot ' + path.relative(h.REPO, f));
+        },
         runCommand: label => runCommand(page, label),
         webview: () => webview(page),
         log: m => console.log('  ' + m),

@@ -81,8 +81,9 @@ const webview = page => page.frameLocator('iframe.webview.ready').frameLocator('
           return ws;
         },
         shot: async shotName => {
-          // park the mouse on the empty editor area first: a hover tooltip in the explorer would show this machine's paths
-          await page.mouse.move(560, 900);
+          // park the mouse on the empty part of the activity bar first: a hover tooltip in the explorer would show
+          // this machine's paths, one in the editor a hover card
+          await page.mouse.move(22, 640);
           const f = path.join(shotsDir, `${name}-${shotName}.png`);
           await page.screenshot({ path: f });
           console.log('  screenshot ' + path.relative(h.REPO, f));

@@ -143,6 +143,29 @@ describe('models: built-in catalogue', () => {
     }
   });
 
+  it('decreasing curves self-start as well as increasing ones (inhibition 4PL with slope ≥ 0, decay to a plateau, falling Hill)', () => {
+    const cases: [string, Record<string, number>, number[], Record<string, { min?: number }>?][] = [
+      ['logistic4', { lower: 2.4, upper: 0.1, ec50: 3, slope: 1.2 }, logspace(0.05, 200, 24), { slope: { min: 0 } }],
+      ['asymptotic', { upper: 0.5, y0: 4, k: 0.15 }, linspace(0, 40, 30)],
+      ['exponential_offset', { A: -3, k: -0.2, C: 5 }, linspace(0, 30, 30)],
+      ['hill', { Vmax: 6, K: 2, n: -1.8 }, logspace(0.1, 40, 22)],
+    ];
+    for (const [id, truth, xs, params] of cases) {
+      const { x, y } = synth(id, truth, xs, 0.003, 21);
+      const m = buildModel({ name: id, builtin: id, params }, ['x'], { X: [x], y });
+      const r = fitModel(m, { X: [x], y, w: null });
+      assert.equal(r.startSource, 'self-start', id);
+      assert.ok(r.converged, `${id}: ${r.message}`);
+      BUILTINS[id].params.forEach((p, j) => assert.ok(Math.abs(r.theta[j] - truth[p]) <= 0.05 * Math.abs(truth[p]), `${id}.${p}: ${r.theta[j]} vs ${truth[p]}`));
+    }
+  });
+
+  it('a self-start on 100 000 rows works on an even subsample and still finds the curve', () => {
+    const { x, y } = synth('logistic3', { K: 2, r: 0.5, x0: 12 }, linspace(0, 30, 100000), 0.01, 5);
+    const s = BUILTINS.logistic3.selfStart(x, y)!;
+    assert.ok(Math.abs(s.K - 2) < 0.1 && Math.abs(s.x0 - 12) < 1.5, JSON.stringify(s));
+  });
+
   it('self-starts are finite or null on awkward data: few points, negative and zero y, constant x', () => {
     const awkward: [number[], number[]][] = [
       [[1, 2], [0, 0]],

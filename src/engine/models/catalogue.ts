@@ -323,7 +323,8 @@ const logistic4: BuiltinModel = {
     slope: 'steepness on a log-x scale (dimensionless)',
   },
   lower: { ec50: 0 },
-  selfStartNote: 'Profile over (ec50, slope) with lower and upper by least squares (common practice). Bound ec50 ≥ 0 because (ec50/x)^slope is undefined for ec50/x < 0.',
+  selfStartNote:
+    'Profile over (ec50, slope) with lower and upper by least squares (common practice), reported with slope > 0 (the same curve with lower and upper swapped). Bound ec50 ≥ 0 because (ec50/x)^slope is undefined for ec50/x < 0.',
   selfStart(x, y) {
     const d = summarize(x, y, 4);
     if (!d) return null;
@@ -336,7 +337,11 @@ const logistic4: BuiltinModel = {
       },
       d.y,
     );
-    return best ? finiteRecord({ lower: best.coef[0], upper: best.coef[1], ec50: best.q[0], slope: best.q[1] }) : null;
+    if (!best) return null;
+    // (lower, upper, ec50, slope) and (upper, lower, ec50, −slope) are the same curve: report slope > 0 (the usual
+    // convention, and the side users bound)
+    const [lo, up] = best.q[1] > 0 ? best.coef : [best.coef[1], best.coef[0]];
+    return finiteRecord({ lower: lo, upper: up, ec50: best.q[0], slope: Math.abs(best.q[1]) });
   },
 };
 

@@ -148,7 +148,10 @@ export interface XYSummary {
   xposMin: number;
 }
 
-/** Keeps only rows with finite x and y; null when fewer than `minPoints` remain. */
+/** Self-starts look at no more rows than this (an even subsample in x order above it). */
+export const MAX_SELF_START_POINTS = 2000;
+
+/** Keeps only rows with finite x and y (at most MAX_SELF_START_POINTS of them); null when fewer than `minPoints` remain. */
 export function summarize(x: ArrayLike<number>, y: ArrayLike<number>, minPoints: number): XYSummary | null {
   const xs: number[] = [];
   const ys: number[] = [];
@@ -160,6 +163,18 @@ export function summarize(x: ArrayLike<number>, y: ArrayLike<number>, minPoints:
     }
   }
   if (xs.length < minPoints) return null;
+  if (xs.length > MAX_SELF_START_POINTS) {
+    // an estimate needs no more than a few thousand points: every k-th row in x order, covering the whole range
+    const idx = Array.from(xs.keys()).sort((a, b) => xs[a] - xs[b]);
+    const m = MAX_SELF_START_POINTS;
+    const pick = Array.from({ length: m }, (_, k) => idx[Math.round((k * (idx.length - 1)) / (m - 1))]);
+    const sx = pick.map((i) => xs[i]);
+    const sy = pick.map((i) => ys[i]);
+    xs.length = 0;
+    ys.length = 0;
+    xs.push(...sx);
+    ys.push(...sy);
+  }
   let xmin = Infinity;
   let xmax = -Infinity;
   let ymin = Infinity;

@@ -1,7 +1,23 @@
-// Generic multi-start for least squares without starting values: Latin-hypercube candidates over bounds / signed
-// log-magnitudes / data locations, the parameters the model is affine in solved by linear least squares for every
-// candidate (variable projection, Golub & Pereyra 1973), then short Levenberg–Marquardt runs from the best distinct
-// candidates and a full run from the best. Knows nothing about any particular formula; deterministic given the seed.
+// Generic multi-start for least squares without starting values (knows nothing about any particular formula;
+// deterministic given the seed): variable projection (Golub & Pereyra 1973) over the parameters the model is affine
+// in, detected numerically; Latin-hypercube screening over bounds, signed log-magnitudes and data locations;
+// differential evolution (Storn & Price 1997) on the projected SSE; short Levenberg–Marquardt runs on the projected
+// problem from the best distinct candidates; basin hopping by redrawing one or two parameters; a full LM run last.
+//
+// Stages, in order (constants in TUNING):
+// 1. affine parameters: free, unbounded θ_j with zero pure and mixed second differences at informative reference
+//    points are solved by linear least squares (QR) for every candidate of the others.
+// 2. sensitivity scale of each remaining parameter: the change that moves f by the span of y (median over points).
+// 3. screening: 256·2^min(d,4) candidates (d = parameters to sample), each coordinate drawn from a mixture of
+//    uniform-in-bounds, ±10^[-6, 6], ±scale·10^[-2.5, 2.5] and the x range (location-like parameters); plus the
+//    neutral point 0 and ±1. Points whose linear terms cancel (sum of |terms| > 1000 × the fit) are rejected.
+// 4. differential evolution (DE/rand/1/bin) seeded with the best distinct candidates, trial values kept within the
+//    sampled magnitudes.
+// 5. local LM runs on the projected problem (forward-difference Jacobian) from the neutral point and the best distinct
+//    candidates; stops after the same least SSE is reached three times.
+// 6. hops: from the incumbent, every single parameter and pair is redrawn (others kept), the best redraw of each is
+//    run locally; repeated while the SSE drops by more than 1e-5 relative.
+// 7. the full LM (analytic derivatives, bounds, no guard) from the best point polishes the answer.
 import type { LsqProblem, SolveOptions, SolveResult } from './types';
 import { solveNonlinear } from './index';
 

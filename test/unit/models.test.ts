@@ -223,6 +223,21 @@ describe('models: polynomials', () => {
   });
 });
 
+describe('models: bounded polynomial', () => {
+  it('a bound on a coefficient is honoured (the active bound holds; the rest is least squares given it)', () => {
+    const xs = linspace(-5, 5, 11);
+    const x = Float64Array.from(xs);
+    const y = Float64Array.from(xs, (v) => 1 + v + 0.5 * v * v);
+    const m = buildModel({ name: 'p', polynomial: 2, params: { c2: { max: 0.2 } } }, ['x'], { X: [x], y });
+    const r = fitModel(m, { X: [x], y, w: null });
+    assert.equal(r.theta[2], 0.2);
+    assert.equal(r.atBound[2], 'max');
+    // given c2 = 0.2: y − 0.2x² = 1 + x + 0.3x², whose least-squares line on the symmetric grid is 1 + 0.3·mean(x²) + x
+    const mx2 = xs.reduce((a, v) => a + v * v, 0) / xs.length;
+    assert.ok(Math.abs(r.theta[0] - (1 + 0.3 * mx2)) < 1e-8 && Math.abs(r.theta[1] - 1) < 1e-8, String(r.theta));
+  });
+});
+
 describe('models: nested pairs', () => {
   it('contains the pairs of DESIGN.md', () => {
     const has = (s: string, r: string, fix: Record<string, number>) =>

@@ -29,6 +29,25 @@ describe('models: generic multi-start for formulas without starts', () => {
     assert.ok(Math.abs(r.theta[0] - 1.93) < 0.02 && Math.abs(r.theta[1] - 0.3) < 0.02 && Math.abs(r.theta[2] - 12) < 0.3, String(r.theta));
   });
 
+  it('reaches the least SSE of a fit started at the truth on common lab formulas (invented data)', () => {
+    const cases: [string, Record<string, number>, number, number][] = [
+      ['a*sin(w*x + phi) + c', { a: 2, w: 0.8, phi: 0.5, c: 1 }, 0, 20],
+      ['V*x/(K + x) + m*x', { V: 5, K: 2, m: 0.1 }, 0, 30],
+      ['A*exp(-((x - mu)/s)^2) + c', { A: 3, mu: 42, s: 5, c: 0.7 }, 0, 100],
+      ['A*exp(-k1*x) - A*exp(-k2*x)', { A: 10, k1: 0.2, k2: 1.5 }, 0, 24],
+      ['Emax*x^h/(EC^h + x^h) + E0', { Emax: 80, EC: 5, h: 1.5, E0: 10 }, 0.1, 100],
+      ['a/(1 + b*exp(-c*x))', { a: 100, b: 50, c: 0.5 }, 0, 25],
+    ];
+    cases.forEach(([formula, truth, lo, hi], k) => {
+      const m0 = buildModel({ name: 'm', formula }, ['x'], { X: [new Float64Array(1)], y: new Float64Array(1) });
+      const at = (v: number) => m0.compiled.at(m0.params.map((p) => truth[p]), [v]);
+      const d = noisy(grid(lo, hi, 40), at, 0.02, 100 + k);
+      const { m, r } = fitFormula(formula, d.x, d.y);
+      const ref = fitModel({ ...m, start: m.params.map((p) => truth[p]) }, { X: [d.x], y: d.y, w: null });
+      assert.ok(r.sse <= ref.sse * (1 + 1e-8), `${formula}: SSE ${r.sse} vs ${ref.sse} from the truth`);
+    });
+  });
+
   it('is deterministic given the seed', () => {
     const a = fitFormula('K / (1 + exp(-r*(x - t0)))', logistic.x, logistic.y, undefined, { seed: 3 }).r;
     const b = fitFormula('K / (1 + exp(-r*(x - t0)))', logistic.x, logistic.y, undefined, { seed: 3 }).r;

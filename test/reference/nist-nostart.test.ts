@@ -8,6 +8,7 @@ import * as path from 'path';
 import { buildModel, fitModel } from '../../src/engine/models';
 import { lre, readStrd, strdFolderOrNotice, type StrdProblem } from './strd';
 import { NIST_MODELS } from './nist-models';
+import { DEFAULTS } from '../../src/engine/spec/defaults';
 
 /**
  * Relabellings under which a NIST model gives the same fitted values at every x; the certified values are one of the
@@ -102,7 +103,8 @@ describe('reference: NIST StRD nonlinear problems without starting values (gener
       const t0 = Date.now();
       const model = buildModel({ name: prob.name, formula: nm.formula, params }, nm.variables, { X, y });
       assert.deepEqual(model.params, prob.params, `${prob.name}: parameter order`);
-      const r = fitModel(model, { X, y, w: null }, { seconds: 20, seed: 1 });
+      // the solver settings a spec gets by default (seconds, multiStart) and the run seed 1
+      const r = fitModel(model, { X, y, w: null }, { seconds: DEFAULTS.solver.seconds, multiStart: DEFAULTS.solver.multiStart, seed: 1 });
       const seconds = (Date.now() - t0) / 1000;
       const m = minLre(prob, Array.from(r.theta));
       rows.push({ name: prob.name, seconds, lre: m, pass: m >= 6 && seconds <= 20, sseRatio: r.sse / prob.certified.rss, source: r.startSource });

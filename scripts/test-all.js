@@ -4,7 +4,7 @@
 // real VS Code extension host, UI tests in a real browser. Each stage prints "N passed, N failed" and its time;
 // the whole exits non-zero on any failure.
 //   usage: node scripts/test-all.js [--only stage,stage] [--skip stage,stage]
-//   stages: typecheck unit reference build package integration e2e
+//   stages: typecheck unit reference build package setup integration e2e
 const { spawn } = require('child_process');
 const fs = require('fs');
 const path = require('path');
@@ -12,7 +12,7 @@ const path = require('path');
 const REPO = path.resolve(__dirname, '..');
 const argv = process.argv.slice(2);
 if (argv.includes('--help') || argv.includes('-h')) {
-  console.log('usage: node scripts/test-all.js [--only stage,stage] [--skip stage,stage]\nstages: typecheck unit reference build package integration e2e');
+  console.log('usage: node scripts/test-all.js [--only stage,stage] [--skip stage,stage]\nstages: typecheck unit reference build package setup integration e2e');
   process.exit(0);
 }
 const listArg = flag => (argv.includes(flag) ? argv[argv.indexOf(flag) + 1].split(',') : null);
@@ -31,6 +31,8 @@ const stages = [
     const kb = fs.statSync(vsix).size / 1024;
     console.log(`VSIX ${path.relative(REPO, vsix)}: ${kb.toFixed(0)} KiB`);
   } },
+  // first-time set-up, idempotent: installs the pinned code-server into .harness/ (exits at once when it is there)
+  { name: 'setup', cmd: ['bash', 'scripts/setup-code-server.sh'], counts: 'exit' },
   { name: 'integration', cmd: [process.execPath, 'test/harness/run-integration.js', '--timeout', '300'] },
   { name: 'e2e', cmd: [process.execPath, 'test/harness/run-e2e.js', vsix, '--timeout', '180'] },
 ];

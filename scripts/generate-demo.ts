@@ -9,17 +9,9 @@ import * as path from 'path';
 
 export const DEFAULT_SEED = 20261201;
 
-/** mulberry32: 32-bit state, period 2^32; plenty for a few hundred draws. */
-export function mulberry32(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
+/** mulberry32 (32-bit state, period 2^32; plenty for a few hundred draws): the engine's own seeded generator. */
+import { mulberry32 } from '../src/engine/solve/multistart';
+export { mulberry32 };
 
 /** Standard normal draws by Box–Muller: z = sqrt(-2 ln u1) cos(2π u2) (the sine twin is kept for the next call). */
 export function normalSource(uniform: () => number): () => number {

@@ -4,7 +4,7 @@ import * as assert from 'assert';
 import * as fs from 'fs';
 import * as path from 'path';
 import { compileFormula } from '../../src/engine/formula';
-import { lre, readStrd, strdFolderOrNotice } from './strd';
+import { lre, readStrd, strdFolderOrNotice, itRequiresStrdFolder } from './strd';
 import { scoreCase } from './nist-run';
 
 /** minimum LRE per problem (project brief; Filip and Wampler4/5 are near the limit of double precision) */
@@ -26,12 +26,7 @@ const dir = strdFolderOrNotice('linear');
 
 describe('NIST StRD linear regression (certified values: NIST ITL StRD .dat files)', function () {
   if (!dir) {
-    it('reference data folder is present (STRD_DIR)', function () {
-      if (process.env.CI === 'true') {
-        assert.fail('NIST StRD files not found: set STRD_DIR to the folder holding nonlinear/ and linear/ (CI requires them)');
-      }
-      this.skip();
-    });
+    itRequiresStrdFolder();
     return;
   }
   const files = fs.readdirSync(dir).filter((f) => f.endsWith('.dat')).sort();

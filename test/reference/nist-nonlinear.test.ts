@@ -4,7 +4,7 @@ import * as assert from 'assert';
 import * as fs from 'fs';
 import * as path from 'path';
 import { compileFormula } from '../../src/engine/formula';
-import { readStrd, strdFolderOrNotice, StrdProblem } from './strd';
+import { readStrd, strdFolderOrNotice, itRequiresStrdFolder, StrdProblem } from './strd';
 import { NIST_MODELS } from './nist-models';
 import { CaseScore, lsqFromFormula, scoreCase } from './nist-run';
 import { solveNonlinear } from '../../src/engine/solve';
@@ -19,12 +19,7 @@ const dir = strdFolderOrNotice('nonlinear');
 
 describe('NIST StRD nonlinear regression (certified values: NIST ITL StRD .dat files)', function () {
   if (!dir) {
-    it('reference data folder is present (STRD_DIR)', function () {
-      if (process.env.CI === 'true') {
-        assert.fail('NIST StRD files not found: set STRD_DIR to the folder holding nonlinear/ and linear/ (CI requires them)');
-      }
-      this.skip();
-    });
+    itRequiresStrdFolder();
     return;
   }
   const files = fs.readdirSync(dir).filter((f) => f.endsWith('.dat')).sort();

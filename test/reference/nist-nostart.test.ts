@@ -6,7 +6,7 @@ import { strict as assert } from 'assert';
 import * as fs from 'fs';
 import * as path from 'path';
 import { buildModel, fitModel } from '../../src/engine/models';
-import { lre, readStrd, strdFolderOrNotice, type StrdProblem } from './strd';
+import { itRequiresStrdFolder, lre, readStrd, strdFolderOrNotice, type StrdProblem } from './strd';
 import { NIST_MODELS } from './nist-models';
 import { DEFAULTS } from '../../src/engine/spec/defaults';
 
@@ -81,10 +81,7 @@ describe('reference: NIST StRD nonlinear problems without starting values (gener
   this.timeout(30 * 60 * 1000);
   const dir = strdFolderOrNotice('nonlinear');
   if (!dir) {
-    it('NIST StRD files are present (required under CI=true)', function () {
-      if (process.env.CI === 'true') assert.fail('NIST StRD files not found under CI=true: set STRD_DIR');
-      this.skip();
-    });
+    itRequiresStrdFolder();
     return;
   }
   const files = fs.readdirSync(dir).filter((f) => f.endsWith('.dat')).sort();

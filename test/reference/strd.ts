@@ -1,4 +1,5 @@
 // Reader of the NIST StRD .dat files (nonlinear and linear least squares; LF or CRLF), the data folder, and the LRE measure (NIST's definition, as in DESIGN.md "Correctness references").
+import * as assert from 'assert';
 import * as fs from 'fs';
 import * as path from 'path';
 
@@ -164,4 +165,17 @@ export function strdFolderOrNotice(sub: 'nonlinear' | 'linear'): string | null {
     `!!!!!!!!!!!!!!!!!!!!!!!!!!!!!!!!!!!!!!!!!!!!!!!!!!!!!!!!!!!!!!!!!!!!!!!!!!!!!!!!\n`;
   console.warn(msg);
   return null;
+}
+
+/**
+ * The one test a suite registers when the reference folder is missing: a skip with the loud notice above, except
+ * under CI=true, where a missing folder fails, so CI can never pass without running the reference tests.
+ */
+export function itRequiresStrdFolder(): void {
+  it('reference data folder is present (STRD_DIR)', function () {
+    if (process.env.CI === 'true') {
+      assert.fail('NIST StRD files not found: set STRD_DIR to the folder holding nonlinear/ and linear/ (CI requires them)');
+    }
+    this.skip();
+  });
 }

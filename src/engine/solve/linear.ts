@@ -49,15 +49,26 @@ export function solveLinear(problem: LsqProblem, opts: SolveOptions): SolveResul
     const resid = new Float64Array(m);
     const b = new Float64Array(m);
     for (let i = 0; i < n; i++) b[i] = sw[i] * rhs0[i];
+    const steps = opts.refine === false ? 0 : REFINEMENT_STEPS;
     if (ra.rank === q) {
-      // full rank: QR solution, then refinement on the augmented system with double-double residuals
+      // full rank: QR solution, then refinement on the augmented system with double-double residuals, stopped
+      // early once a step no longer moves x (in column-scaled units)
       x.set(lsSolve(ra, b, m, q));
-      residualDD(A, m, q, x, b, null, resid);
-      refineAugmented(A, m, q, ra, b, null, x, resid, REFINEMENT_STEPS);
-      refinedResidual = resid;
+      if (steps > 0) {
+        residualDD(A, m, q, x, b, null, resid);
+        const xPrev = new Float64Array(q);
+        const kappa = ra.svd.s[0] / ra.svd.s[q - 1];
+        const rho = Number.isFinite(kappa) ? Math.min(1, kappa * Number.EPSILON * Math.sqrt(m) * q) : 1;
+        for (let step = 0; step < steps; step++) {
+          xPrev.set(x);
+          refineAugmented(A, m, q, ra, b, null, x, resid, 1);
+          if (negligibleChange(x, xPrev, ra.d, rho)) break;
+        }
+        refinedResidual = resid;
+      }
     } else {
       // rank deficient: minimal-norm solution, refined as x ← x + LS(A, b − A x) with a double-double residual
-      for (let step = 0; step <= REFINEMENT_STEPS; step++) {
+      for (let step = 0; step <= steps; step++) {
         residualDD(A, m, q, x, b, null, resid);
         const dx = lsSolve(ra, resid, m, q);
         for (let k = 0; k < q; k++) x[k] += dx[k];
@@ -129,6 +140,22 @@ function lsSolve(ra: RankAnalysis, b: Float64Array, m: number, q: number): Float
   const x = new Float64Array(q);
   for (let t = 0; t < q; t++) x[ra.qr.perm[t]] = z[t] / ra.d[ra.qr.perm[t]];
   return x;
+}
+
+/**
+ * true when refinement can stop: the last step changed the scaled solution by rounding only (max_k |δx_k| d_k ≤
+ * 2ε max_k |x_k| d_k), or the next step's change, predicted from the contraction factor ρ ≈ κ(R)·ε·√m·q of the
+ * refinement (Björck 1967: each step reduces the error by about κ·ε; √m·q is a generous growth factor, common
+ * practice), would be below ε max_k |x_k| d_k.
+ */
+function negligibleChange(x: Float64Array, xPrev: Float64Array, d: Float64Array, rho: number): boolean {
+  let dmax = 0;
+  let xmax = 0;
+  for (let k = 0; k < x.length; k++) {
+    dmax = Math.max(dmax, Math.abs(x[k] - xPrev[k]) * d[k]);
+    xmax = Math.max(xmax, Math.abs(x[k]) * d[k]);
+  }
+  return dmax <= 2 * Number.EPSILON * xmax || dmax * rho <= Number.EPSILON * xmax;
 }
 
 function allFiniteArr(a: Float64Array): boolean {

@@ -24,6 +24,11 @@ export interface SolveOptions {
   /** fixed[j] holds θ_j at theta0[j] */
   fixed?: ArrayLike<boolean>;
   maxIterations?: number;
+  /**
+   * linear solves: iterative refinement of the QR solution on the augmented system (default true). false skips it
+   * (accuracy about cond·ε instead of the last digit), for refits whose estimates are not reported, e.g. cross-validation.
+   */
+  refine?: boolean;
   /** wall-clock budget in seconds */
   seconds?: number;
   /** polled every iteration; return true to cancel */

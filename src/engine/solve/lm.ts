@@ -82,7 +82,7 @@ export function solvePrepared(P: Prepared, only?: Scaling): SolveResult {
         best = second;
       }
     }
-    if (CONVERGED.includes(best.termination)) polish(P, best);
+    if (CONVERGED.includes(best.termination) && P.refine) polish(P, best);
   }
   return finish(P, best);
 }

@@ -20,6 +20,8 @@ export interface Prepared {
   /** starting point, full length p, projected into the box; fixed entries exact */
   theta0: Float64Array;
   maxIterations: number;
+  /** false: no last-digit polishing (Gauss–Newton after LM, refinement of a linear solve); SolveOptions.refine */
+  refine: boolean;
   deadline: number;
   shouldStop?: () => boolean;
   onIteration?: SolveOptions['onIteration'];
@@ -67,7 +69,7 @@ export function prepare(problem: LsqProblem, opts: SolveOptions, defaultMaxItera
   const maxIterations = opts.maxIterations !== undefined && opts.maxIterations > 0 ? Math.floor(opts.maxIterations) : defaultMaxIterations;
   const deadline = opts.seconds !== undefined && opts.seconds > 0 ? Date.now() + opts.seconds * 1000 : Infinity;
   return {
-    problem, n, p, free, q: free.length, sw, lower, upper, theta0, maxIterations, deadline,
+    problem, n, p, free, q: free.length, sw, lower, upper, theta0, maxIterations, refine: opts.refine !== false, deadline,
     shouldStop: opts.shouldStop, onIteration: opts.onIteration,
     f: new Float64Array(n), J: new Float64Array(n * p), evaluations: 0,
   };

@@ -25,8 +25,9 @@ export interface SolveOptions {
   fixed?: ArrayLike<boolean>;
   maxIterations?: number;
   /**
-   * linear solves: iterative refinement of the QR solution on the augmented system (default true). false skips it
-   * (accuracy about cond·ε instead of the last digit), for refits whose estimates are not reported, e.g. cross-validation.
+   * last-digit accuracy (default true): iterative refinement of a linear solve on the augmented system, Gauss–Newton
+   * polishing after Levenberg–Marquardt. false skips both (linear: accuracy about cond·ε instead of the last digit;
+   * nonlinear: the LM convergence tolerances), for refits whose estimates are not reported, e.g. cross-validation.
    */
   refine?: boolean;
   /** wall-clock budget in seconds */

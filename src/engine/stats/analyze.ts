@@ -9,7 +9,7 @@ import { chi2Sf, normalQuantile, tQuantile, tTwoSidedP, normalSf } from './distr
 import { informationCriteria } from './information';
 import { durbinWatson, normalityTest, runsTest } from './residualTests';
 import { profileIntervals } from './profile';
-import { crossValidate } from './crossval';
+import { crossValidate, sortedOrder } from './crossval';
 import { computeBand, computeInverse, computePrediction, predictionPoint, variableRange, type PredictionContext } from './predict';
 import { fmt } from './format';
 
@@ -79,10 +79,11 @@ function emptyStats(n: number, dof: number, sse: number): FitStats {
 }
 
 /** Sort order of the rows by the first x variable (ties by row order). */
-export function orderByX(X: Float64Array[], n: number): number[] {
+export function orderByX(X: Float64Array[], n: number): Int32Array {
   const x = X[0];
-  const idx = Array.from({ length: n }, (_, i) => i);
-  if (x) idx.sort((a, b) => x[a] - x[b] || a - b);
+  if (x) return sortedOrder(x.length === n ? x : x.subarray(0, n));
+  const idx = new Int32Array(n);
+  for (let i = 0; i < n; i++) idx[i] = i;
   return idx;
 }
 
@@ -291,7 +292,8 @@ export function analyzeModel(input: ModelAnalysisInput): ModelReport {
 
   // ------------------------------------------------------------ residual tests (weighted residuals, ordered by x)
   const order = orderByX(X, n);
-  const rOrdered = Float64Array.from(order, (i) => r[i]);
+  const rOrdered = new Float64Array(n);
+  for (let t = 0; t < n; t++) rOrdered[t] = r[order[t]];
   const allZero = rOrdered.every((v) => Math.abs(v) <= 1e-14 * (Math.abs(y[0]) + 1));
   const runs = allZero ? null : runsTest(rOrdered);
   const normality = allZero ? null : normalityTest(rOrdered);

@@ -84,11 +84,12 @@ export function solveLinear(problem: LsqProblem, opts: SolveOptions): SolveResul
       return { ...res, message: `the unconstrained solution violates a bound; ${res.message}` };
     }
   }
+  // f at the solution; J is constant for a model linear in θ, so the one taken at θ = 0 (checked finite) is reused,
+  // and so is its rank analysis
   const rw = new Float64Array(m);
-  const Aw = new Float64Array(m * q);
-  const ok = evaluate(P, theta, rw, Aw, m);
+  const ok = evaluate(P, theta, rw, null, m);
   const fOut = Float64Array.from(P.f);
-  const JOut = Float64Array.from(P.J);
+  const JOut = J;
   let sse = 0;
   for (let i = 0; i < n; i++) sse += rw[i] * rw[i];
   // the refined residual of the linear system is more accurate than f(θ) − y evaluated term by term
@@ -97,7 +98,8 @@ export function solveLinear(problem: LsqProblem, opts: SolveOptions): SolveResul
     for (let i = 0; i < n; i++) s2 += refinedResidual[i] * refinedResidual[i];
     if (Number.isFinite(s2)) sse = s2;
   }
-  const info = solutionInfo(P, theta, ok ? Aw : null, m);
+  const info = solutionInfo(P, theta, null, m);
+  info.unidentifiable = ok && ra ? ra.nullColumns.map((k) => free[k]) : [];
   const singular = ra !== null && ra.rank < q;
   const termination = !ok ? 'non-finite' : singular ? 'singular' : 'exact';
   const message = !ok

@@ -71,7 +71,8 @@ export function profileIntervals(ctx: ProfileContext): ProfileResult {
         refits++;
         const remaining = Math.max(0.05, (ctx.deadline - Date.now()) / 1000);
         const r = solve(ctx.problem, {
-          theta0: start, lower: ctx.lower, upper: ctx.upper, fixed: mask,
+          // no Gauss–Newton polish: LM's own tolerances (relative SSE reduction 1e-15) already fix S far below the 1e-6·q tolerance on τ
+          theta0: start, lower: ctx.lower, upper: ctx.upper, fixed: mask, refine: false,
           maxIterations: ctx.maxIterations ?? 200, seconds: remaining, shouldStop: ctx.shouldStop,
         });
         if (r.termination === 'cancelled' || r.termination === 'time-limit') throw TIMEOUT;

@@ -307,7 +307,7 @@ export function analyzeModel(input: ModelAnalysisInput): ModelReport {
   // ------------------------------------------------------------ cross-validation
   if (opts.crossValidate !== false) {
     const cv = crossValidate({
-      compiled, X, y, w, theta, lower: input.lower, upper: input.upper, fixed: input.fixed, linear: input.linear,
+      compiled, X, y, w, theta, lower: input.lower, upper: input.upper, fixed: input.fixed, linear: input.linear, order,
       maxIterations: input.solverOptions?.maxIterations,
       deadline: Date.now() + 1000 * (opts.cvSeconds ?? CV_SECONDS), shouldStop: input.shouldStop,
     });
@@ -585,7 +585,14 @@ function detectProblems(input: ModelAnalysisInput, report: ModelReport, k: Facts
     });
   }
   if (input.kind === 'polynomial' && input.degree !== undefined && !paramsFired) {
-    const distinct = new Set(Array.from(input.X[0] ?? [])).size;
+    // distinct x values, counted only as far as the decision needs (the flag fires when distinct < need)
+    const need = (input.degree + 1) / th.paramsPerPoint;
+    const seen = new Set<number>();
+    for (const v of input.X[0] ?? []) {
+      seen.add(v);
+      if (seen.size >= need) break;
+    }
+    const distinct = seen.size;
     if (input.degree + 1 > distinct * th.paramsPerPoint) {
       problems.push({
         code: 'overfit-degree',

@@ -70,10 +70,9 @@ export function sortedOrder(x: ArrayLike<number>): Int32Array {
 }
 
 /** Fold of each row (0..k−1) and k. */
-export function cvFolds(x: ArrayLike<number>, maxK = 10): { fold: Int32Array; k: number } {
+export function cvFolds(x: ArrayLike<number>, maxK = 10, order: Int32Array = sortedOrder(x)): { fold: Int32Array; k: number } {
   const n = x.length;
   const k = Math.min(maxK, n);
-  const order = sortedOrder(x);
   const fold = new Int32Array(n);
   for (let rank = 0; rank < n; rank++) fold[order[rank]] = rank % k;
   return { fold, k };
@@ -111,6 +110,8 @@ export interface CvContext {
   upper: ArrayLike<number>;
   fixed: boolean[];
   linear: boolean;
+  /** sortedOrder(X[0]) when the caller has it already */
+  order?: Int32Array;
   maxIterations?: number;
   deadline: number;
   shouldStop?: () => boolean;
@@ -123,7 +124,8 @@ export function crossValidate(ctx: CvContext): CvResult {
   const n = ctx.y.length;
   const pFree = ctx.fixed.filter((f) => !f).length;
   if (n < 2) return { rmse: null, folds: null, reason: 'too-few-rows' };
-  const { fold, k } = cvFolds(ctx.X[0] ?? new Float64Array(n));
+  const x = ctx.X[0] ?? new Float64Array(n);
+  const { fold, k } = cvFolds(x, 10, ctx.order && ctx.order.length === n ? ctx.order : sortedOrder(x));
   // the smallest training set must leave at least one residual degree of freedom
   if (n - Math.ceil(n / k) <= pFree) return { rmse: null, folds: k, reason: 'too-few-rows' };
   const { test: testRows, start } = foldRows(fold, k);

@@ -30,11 +30,16 @@ export function solveLinear(problem: LsqProblem, opts: SolveOptions): SolveResul
   for (let j = 0; j < p; j++) if (!free.includes(j)) fixedIdx.push(j);
   const acc = new CompensatedSum();
   const rhs0 = new Float64Array(n); // unweighted y − f0 − J_fixed θ_fixed
-  for (let i = 0; i < n; i++) {
-    acc.reset(y[i]);
-    acc.add(-f0[i]);
-    for (const j of fixedIdx) acc.addProduct(-J[j * n + i], P.theta0[j]);
-    rhs0[i] = acc.value();
+  // (with no fixed parameters that is y − f0, one correctly rounded subtraction, which the accumulator would also give)
+  if (fixedIdx.length === 0) {
+    for (let i = 0; i < n; i++) rhs0[i] = y[i] - f0[i];
+  } else {
+    for (let i = 0; i < n; i++) {
+      acc.reset(y[i]);
+      acc.add(-f0[i]);
+      for (const j of fixedIdx) acc.addProduct(-J[j * n + i], P.theta0[j]);
+      rhs0[i] = acc.value();
+    }
   }
   const m = Math.max(n, q);
   const A = new Float64Array(m * q);

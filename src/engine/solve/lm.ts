@@ -66,6 +66,7 @@ export function solvePrepared(P: Prepared, only?: Scaling): SolveResult {
   for (let k = 0; k < q; k++) x0[k] = P.theta0[free[k]];
 
   let best: RunResult;
+  let at: AtSolution | null = null;
   if (q === 0) {
     const r = new Float64Array(m);
     const ok = evaluate(P, P.theta0, r, null, m);
@@ -73,7 +74,7 @@ export function solvePrepared(P: Prepared, only?: Scaling): SolveResult {
       message: ok ? 'every parameter is fixed: nothing to fit' : 'the model gives NaN or ±Infinity at the given parameter values' };
   } else {
     best = lmRun(P, x0, only ?? 'jacobian');
-    if (!only && shouldRetry(P, best)) {
+    if (!only && shouldRetry(P, best, (a) => (at = a))) {
       const second = lmRun(P, x0, 'unit');
       if (second.termination === 'cancelled' || second.termination === 'time-limit') {
         if (!(best.fnorm <= second.fnorm)) best = second;
@@ -84,10 +85,19 @@ export function solvePrepared(P: Prepared, only?: Scaling): SolveResult {
     }
     if (CONVERGED.includes(best.termination) && P.refine) polish(P, best);
   }
-  return finish(P, best);
+  return finish(P, best, at);
 }
 
-function shouldRetry(P: Prepared, run: RunResult): boolean {
+/** the evaluation and rank analysis at x, kept by shouldRetry so that finish need not repeat them at the same x */
+interface AtSolution {
+  x: Float64Array;
+  r: Float64Array;
+  f: Float64Array;
+  J: Float64Array;
+  info: Pick<SolveResult, 'rank' | 'unidentifiable' | 'atBound'>;
+}
+
+function shouldRetry(P: Prepared, run: RunResult, keep?: (at: AtSolution) => void): boolean {
   if (run.termination === 'cancelled' || run.termination === 'time-limit' || run.termination === 'exact') return false;
   if (!CONVERGED.includes(run.termination)) return true;
   // a step-size stop away from a stationary point (scaled gradient not small) may be a stall of this scaling
@@ -98,7 +108,9 @@ function shouldRetry(P: Prepared, run: RunResult): boolean {
   const r = new Float64Array(m);
   const A = new Float64Array(m * P.q);
   if (!evaluate(P, theta, r, A, m)) return true;
-  return solutionInfo(P, theta, A, m).rank < P.q;
+  const info = solutionInfo(P, theta, A, m);
+  keep?.({ x: Float64Array.from(run.x), r, f: Float64Array.from(P.f), J: Float64Array.from(P.J), info });
+  return info.rank < P.q;
 }
 
 function fullTheta(P: Prepared, x: Float64Array): Float64Array {
@@ -107,15 +119,25 @@ function fullTheta(P: Prepared, x: Float64Array): Float64Array {
   return theta;
 }
 
-function finish(P: Prepared, run: RunResult): SolveResult {
+function finish(P: Prepared, run: RunResult, at: AtSolution | null = null): SolveResult {
   const theta = fullTheta(P, run.x);
   const m = Math.max(P.n, P.q);
-  const r = new Float64Array(m);
-  const A = new Float64Array(m * P.q);
-  const ok = evaluate(P, theta, r, A, m);
-  const f = Float64Array.from(P.f);
-  const J = Float64Array.from(P.J);
-  const info = ok ? solutionInfo(P, theta, A, m) : { rank: 0, unidentifiable: [], atBound: Array.from({ length: P.p }, (): 'min' | 'max' | null => null) };
+  let r: Float64Array;
+  let f: Float64Array;
+  let J: Float64Array;
+  let ok = true;
+  let info: Pick<SolveResult, 'rank' | 'unidentifiable' | 'atBound'>;
+  if (at && at.x.length === run.x.length && at.x.every((v, k) => v === run.x[k])) {
+    // shouldRetry evaluated this very point (no second run, no polishing step taken)
+    ({ r, f, J, info } = at);
+  } else {
+    r = new Float64Array(m);
+    const A = new Float64Array(m * P.q);
+    ok = evaluate(P, theta, r, A, m);
+    f = Float64Array.from(P.f);
+    J = Float64Array.from(P.J);
+    info = ok ? solutionInfo(P, theta, A, m) : { rank: 0, unidentifiable: [], atBound: Array.from({ length: P.p }, (): 'min' | 'max' | null => null) };
+  }
   let termination = run.termination;
   let message = run.message;
   if (ok && CONVERGED.includes(termination) && info.rank < P.q) {

@@ -1,6 +1,7 @@
 // Small dense least squares for self-starting estimates: modified Gram–Schmidt QR with one re-orthogonalisation
 // pass (Björck, "Numerical Methods for Least Squares Problems", 1996, §2.4), plus profile grids over the nonlinear
 // parameters of conditionally linear models (the linear ones solved exactly for every grid point — common practice).
+import { sortedOrder } from '../stats/crossval';
 
 /** Result of a small least-squares solve: coefficients and residual sum of squares. */
 export interface SmallLsq {
@@ -165,7 +166,7 @@ export function summarize(x: ArrayLike<number>, y: ArrayLike<number>, minPoints:
   if (xs.length < minPoints) return null;
   if (xs.length > MAX_SELF_START_POINTS) {
     // an estimate needs no more than a few thousand points: every k-th row in x order, covering the whole range
-    const idx = Array.from(xs.keys()).sort((a, b) => xs[a] - xs[b]);
+    const idx = sortedOrder(xs); // stable: ties in row order
     const m = MAX_SELF_START_POINTS;
     const pick = Array.from({ length: m }, (_, k) => idx[Math.round((k * (idx.length - 1)) / (m - 1))]);
     const sx = pick.map((i) => xs[i]);

@@ -179,6 +179,25 @@ describe('stats problems', () => {
     assert.ok(p.rows!.includes(20), `rows ${p.rows}`);
   });
 
+  it('influential-points on big data names at most the 100 most influential rows, and says how many there are', () => {
+    const n = 4000;
+    const x = Array.from({ length: n }, (_, i) => i / 100);
+    const e = noise(n, 9);
+    // heavy-tailed errors (a cube of Gaussian draws): many rows pass 4/n
+    const y = x.map((v, i) => 1 + 0.5 * v + 0.1 * e[i] ** 3);
+    const r = run({ formula: 'a + b*x', x, y, options: { crossValidate: false, profile: false } });
+    const p = only(r, 'influential-points');
+    const total = Number(/(\d+) points have/.exec(p.message)?.[1]);
+    assert.ok(total > 100, `expected more than 100 flagged rows, got ${total}`);
+    assert.equal(p.rows!.length, 100);
+    assert.match(p.message, /the 100 most influential/);
+    // the listed rows are those with the largest Cook's distances
+    const cooks = r.points!.cooks;
+    const listedMin = Math.min(...p.rows!.map((row) => cooks[r.points!.row.indexOf(row)]));
+    const unlisted = r.points!.row.filter((row) => !p.rows!.includes(row)).map((row) => cooks[r.points!.row.indexOf(row)]);
+    assert.ok(unlisted.every((d) => !(d > listedMin)), 'no unlisted row is more influential than a listed one');
+  });
+
   it('extrapolation / inverse-extrapolation / inverse-no-root / prediction-invalid point at the spec entry', () => {
     const r = run({ ...expClean, predict: [10, 45, { z: 3 }], solveFor: [2, 0.02, 50], options: { crossValidate: false, profile: false } });
     const ex = only(r, 'extrapolation');

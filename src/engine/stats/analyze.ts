@@ -462,6 +462,9 @@ function terminationAdvice(t: string): string {
   }
 }
 
+/** Most rows an influential-points problem names (the largest Cook's distances). */
+export const MAX_INFLUENTIAL_ROWS = 100;
+
 export function listRows(rows: number[], max = 10): string {
   const shown = rows.slice(0, max).join(', ');
   return rows.length > max ? `${shown} and ${rows.length - max} more` : shown;
@@ -643,18 +646,24 @@ function detectProblems(input: ModelAnalysisInput, report: ModelReport, k: Facts
   }
   const pts = report.points!;
   const cut = th.cooksFactor / k.n;
-  const influential: number[] = [];
+  const flagged: { row: number; d: number }[] = [];
   for (let i = 0; i < k.n; i++) {
     const d = pts.cooks[i];
-    if (d > cut || (Number.isNaN(d) && k.h[i] >= 1 - 1e-12 && k.dof > 0)) influential.push(pts.row[i]);
+    if (d > cut || (Number.isNaN(d) && k.h[i] >= 1 - 1e-12 && k.dof > 0)) flagged.push({ row: pts.row[i], d: Number.isNaN(d) ? Infinity : d });
   }
+  // on big data thousands of rows can pass 4/n: keep the most influential ones (a problem must stay readable)
+  const total = flagged.length;
+  const influential = (total > MAX_INFLUENTIAL_ROWS ? [...flagged].sort((a, b) => b.d - a.d || a.row - b.row).slice(0, MAX_INFLUENTIAL_ROWS) : flagged)
+    .map((f) => f.row)
+    .sort((a, b) => a - b);
   if (influential.length > 0 && k.dof > 0) {
+    const which = total > influential.length ? `the ${influential.length} most influential are data rows` : `data row${influential.length === 1 ? '' : 's'}`;
     problems.push({
       code: 'influential-points',
       severity: 'info',
       message:
-        `${name}: ${influential.length} point${influential.length === 1 ? ' has' : 's have'} a large influence on the fit (Cook's distance above ${fmt(th.cooksFactor, 3)}/n = ${fmt(cut, 3)}): data row${influential.length === 1 ? '' : 's'} ${listRows(influential)}. ` +
-        `Removing ${influential.length === 1 ? 'it' : 'one of them'} would move the estimates noticeably. Check these rows for errors; if one is a genuine mistake, exclude it with a reason in data.exclude.`,
+        `${name}: ${total} point${total === 1 ? ' has' : 's have'} a large influence on the fit (Cook's distance above ${fmt(th.cooksFactor, 3)}/n = ${fmt(cut, 3)}): ${which} ${listRows(influential)}. ` +
+        `Removing ${total === 1 ? 'it' : 'one of them'} would move the estimates noticeably. Check these rows for errors; if one is a genuine mistake, exclude it with a reason in data.exclude.`,
       path: base,
       rows: influential,
     });

@@ -10,6 +10,7 @@ const picks = {
   'panel-light.png': 'themes-light.png',
   'panel-dark.png': 'themes-dark.png',
   'fit-csv-from-explorer.png': 'fit-csv-from-explorer-4-panel.png',
+  'context-menu.png': 'fit-csv-from-explorer-1b-context-menu.png',
   'problems-no-convergence.png': 'problems-panel-2-problems.png',
   'live-refit.png': 'edit-and-refit-3-panel-after.png',
 };

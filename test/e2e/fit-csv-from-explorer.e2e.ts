@@ -5,7 +5,7 @@ import { open, contextMenu, acceptQuickPick, panelText, assertOk, explorerRow, t
 export async function run(ctx: Ctx): Promise<void> {
   await open(ctx);
   await ctx.shot('1-workspace');
-  await contextMenu(ctx.page, 'samples.csv', 'Fit a curve to this CSV…');
+  await contextMenu(ctx.page, 'samples.csv', 'Fit a curve to this CSV…', () => ctx.shot('1b-context-menu', { keepMouse: true }));
   await acceptQuickPick(ctx.page, 'column for x');
   await ctx.shot('2-pick-x');
   await acceptQuickPick(ctx.page, 'column for y');

@@ -4,7 +4,8 @@ import type { FrameLocator, Page } from 'playwright-core';
 export interface Ctx {
   page: Page;
   workspace: string;
-  shot(name: string): Promise<void>;
+  /** screenshot into test/e2e/shots/; the mouse is parked first unless keepMouse (e.g. over an open menu) */
+  shot(name: string, opts?: { keepMouse?: boolean }): Promise<void>;
   runCommand(label: string): Promise<void | number>;
   webview(): FrameLocator;
   /** opens a fresh copy of the fixture workspace, or of a repository folder such as 'examples' */
@@ -34,7 +35,7 @@ export async function openFile(page: Page, name: string): Promise<void> {
 }
 
 /** Right-click a file in the explorer and choose a context-menu item (hover + Enter: plain clicks get swallowed). */
-export async function contextMenu(page: Page, name: string, item: string): Promise<void> {
+export async function contextMenu(page: Page, name: string, item: string, whileOpen?: () => Promise<void>): Promise<void> {
   for (let attempt = 1; ; attempt++) {
     const row = explorerRow(page, name);
     await row.waitFor({ timeout: 30000 });
@@ -44,6 +45,7 @@ export async function contextMenu(page: Page, name: string, item: string): Promi
       await entry.waitFor({ timeout: 3000 });
       await entry.hover();
       await page.locator('.context-view .monaco-menu .action-item.focused', { hasText: item }).waitFor({ timeout: 3000 });
+      if (whileOpen) await whileOpen();
       await page.keyboard.press('Enter');
       return;
     } catch (e) {

@@ -80,10 +80,10 @@ const webview = page => page.frameLocator('iframe.webview.ready').frameLocator('
           await page.locator('.explorer-folders-view .monaco-list-row').first().waitFor({ timeout: 60000 });
           return ws;
         },
-        shot: async shotName => {
+        shot: async (shotName, opts) => {
           // park the mouse on the empty part of the activity bar first: a hover tooltip in the explorer would show
-          // this machine's paths, one in the editor a hover card
-          await page.mouse.move(22, 640);
+          // this machine's paths, one in the editor a hover card (not while a menu under the mouse is being shown)
+          if (!(opts && opts.keepMouse)) await page.mouse.move(22, 640);
           const f = path.join(shotsDir, `${name}-${shotName}.png`);
           await page.screenshot({ path: f });
           console.log('  screenshot ' + path.relative(h.REPO, f));

@@ -123,34 +123,26 @@ export function qrFactor(a: Float64Array, m: number, n: number, pivot: boolean):
   return { a, m, n, rdiag, acnorm, perm };
 }
 
-/** b ← Qᵀ b (b of length m) */
-export function applyQt(qr: QRFactors, b: Float64Array): void {
-  const { a, m, n } = qr;
-  const kmin = Math.min(m, n);
-  for (let j = 0; j < kmin; j++) {
-    const cj = j * m;
-    const vjj = a[cj + j];
-    if (vjj === 0) continue;
-    let sum = 0;
-    for (let i = j; i < m; i++) sum += a[cj + i] * b[i];
-    const temp = -sum / vjj;
-    for (let i = j; i < m; i++) b[i] += temp * a[cj + i];
-  }
+/** b ← H_j b for the j-th Householder reflector stored in column j of a (rows j..m−1); each H_j is symmetric. */
+function applyReflector(a: Float64Array, m: number, j: number, b: Float64Array): void {
+  const cj = j * m;
+  const vjj = a[cj + j];
+  if (vjj === 0) return;
+  let sum = 0;
+  for (let i = j; i < m; i++) sum += a[cj + i] * b[i];
+  const temp = -sum / vjj;
+  for (let i = j; i < m; i++) b[i] += temp * a[cj + i];
 }
 
-/** b ← Q b (b of length m) */
+/** b ← Qᵀ b (b of length m): Qᵀ = H_{k−1}⋯H_0, applied first to last */
+export function applyQt(qr: QRFactors, b: Float64Array): void {
+  const kmin = Math.min(qr.m, qr.n);
+  for (let j = 0; j < kmin; j++) applyReflector(qr.a, qr.m, j, b);
+}
+
+/** b ← Q b (b of length m): Q = H_0⋯H_{k−1}, applied last to first */
 export function applyQ(qr: QRFactors, b: Float64Array): void {
-  const { a, m, n } = qr;
-  const kmin = Math.min(m, n);
-  for (let j = kmin - 1; j >= 0; j--) {
-    const cj = j * m;
-    const vjj = a[cj + j];
-    if (vjj === 0) continue;
-    let sum = 0;
-    for (let i = j; i < m; i++) sum += a[cj + i] * b[i];
-    const temp = -sum / vjj;
-    for (let i = j; i < m; i++) b[i] += temp * a[cj + i];
-  }
+  for (let j = Math.min(qr.m, qr.n) - 1; j >= 0; j--) applyReflector(qr.a, qr.m, j, b);
 }
 
 /** The n×n upper-triangular R of a factorisation (column-major, zeros below the diagonal; rows ≥ m are zero). */

@@ -6,7 +6,7 @@ import { spawnSync } from 'child_process';
 import * as fs from 'fs';
 import * as os from 'os';
 import * as path from 'path';
-import { mulberry32, normalSource } from '../../scripts/generate-demo';
+import { saturatingCsv } from './seededData';
 
 const ROOT = path.resolve(__dirname, '..', '..');
 /** A private build of src/cli.ts, so parallel rebuilds of dist/ by others cannot change the bundle under test. */
@@ -40,17 +40,6 @@ function demoCopy(spec: string): string {
   const out = spec.replace('.fitspec.json', '.fitresult.json');
   fs.copyFileSync(path.join(ROOT, 'examples', 'results', out), path.join(dir, 'results', out));
   return dir;
-}
-
-/** y = Vmax x / (Km + x) + N(0, 0.05²), Vmax = 5, Km = 2 — seeded. */
-function saturatingCsv(seed = 11): string {
-  const z = normalSource(mulberry32(seed));
-  const rows = ['conc,rate'];
-  for (let i = 1; i <= 24; i++) {
-    const x = 0.25 * i * (1 + i / 8);
-    rows.push(`${x.toFixed(4)},${((5 * x) / (2 + x) + 0.05 * z()).toFixed(5)}`);
-  }
-  return rows.join('\n') + '\n';
 }
 
 const spec = (over = '', models = '[{ "name": "mm", "builtin": "michaelis_menten" }]') =>
@@ -109,7 +98,7 @@ describe('cli', function () {
     let dir: string;
     before(() => {
       dir = tmpDir();
-      write(dir, { 'rate.csv': saturatingCsv() });
+      write(dir, { 'rate.csv': saturatingCsv(11) });
     });
     const cases: { name: string; files: Record<string, string>; words: RegExp[] }[] = [
       { name: 'malformed spec JSON', files: { 's.fitspec.json': '{ "data": { "file": "rate.csv" "x": "conc" } }' }, words: [/s\.fitspec\.json:1:\d+: error/, /expected ','/, /put a comma/] },
@@ -143,7 +132,7 @@ describe('cli', function () {
     });
     it('NaN cells by default: dropped with a warning naming the line, exit 0', () => {
       const sub = path.join(dir, 'nan-drop');
-      write(sub, { 'rate.csv': saturatingCsv().replace(/\n([^,\n]+),[^\n]+\n/, '\n$1,NaN\n'), 's.fitspec.json': spec() });
+      write(sub, { 'rate.csv': saturatingCsv(11).replace(/\n([^,\n]+),[^\n]+\n/, '\n$1,NaN\n'), 's.fitspec.json': spec() });
       const r = cw(['fit', 's.fitspec.json'], sub);
       assert.equal(r.code, 0, r.err);
       assert.match(r.out, /23 of 24 rows used \(1 dropped\)/);
@@ -151,7 +140,7 @@ describe('cli', function () {
     });
     it('with several specs the highest exit code wins', () => {
       const sub = path.join(dir, 'several');
-      write(sub, { 'rate.csv': saturatingCsv(), 'good.fitspec.json': spec(), 'bad.fitspec.json': spec().replace('"y": "rate"', '"y": "rat"') });
+      write(sub, { 'rate.csv': saturatingCsv(11), 'good.fitspec.json': spec(), 'bad.fitspec.json': spec().replace('"y": "rate"', '"y": "rat"') });
       const r = cw(['fit', 'good.fitspec.json', 'bad.fitspec.json'], sub);
       assert.equal(r.code, 2);
       assert.match(r.out, /good\.fitspec\.json/);
@@ -165,7 +154,7 @@ describe('cli', function () {
       dir = tmpDir();
       const models = '[{ "name": "line", "builtin": "linear" }, { "name": "mm", "builtin": "michaelis_menten" }, { "name": "quad", "polynomial": 2 }]';
       write(dir, {
-        'rate.csv': saturatingCsv(),
+        'rate.csv': saturatingCsv(11),
         'b-three.fitspec.json': spec(', "output": "results/three.fitresult.json", "predict": [3], "solveFor": [2.5]', models),
         'a-one.fitspec.json': spec(', "output": "results/one.fitresult.json"'),
       });
@@ -216,7 +205,7 @@ describe('cli', function () {
     it('a model that does not converge: fit still exits 0 and says FAILED; check exits 1', () => {
       const sub = tmpDir();
       write(sub, {
-        'rate.csv': saturatingCsv(),
+        'rate.csv': saturatingCsv(11),
         's.fitspec.json': spec('', '[{ "name": "slow", "formula": "Vmax*x/(Km + x)", "params": { "Vmax": { "start": 1000 }, "Km": { "start": 900 } }, "solver": { "maxIterations": 1 } }]'),
       });
       const f = cw(['fit', 's.fitspec.json'], sub);
@@ -319,7 +308,7 @@ describe('cli', function () {
   describe('new and report', () => {
     it('new writes a starter spec that fits, guesses x and y, never overwrites, and checks --x', () => {
       const dir = tmpDir();
-      write(dir, { 'data/plate.csv': 'well,conc,rate\n' + saturatingCsv().split('\n').slice(1).filter(Boolean).map((l, i) => `W${i},${l}`).join('\n') + '\n' });
+      write(dir, { 'data/plate.csv': 'well,conc,rate\n' + saturatingCsv(11).split('\n').slice(1).filter(Boolean).map((l, i) => `W${i},${l}`).join('\n') + '\n' });
       const r = cw(['new', 'data/plate.csv'], dir);
       assert.equal(r.code, 0, r.err);
       assert.match(r.out, /wrote data\/plate\.fitspec\.json: x = conc, y = rate, models: linear, quadratic, michaelis_menten/);
@@ -339,7 +328,7 @@ describe('cli', function () {
     });
     it('report writes one self-contained HTML page; a bad spec still gets a page and exit 2', () => {
       const dir = tmpDir();
-      write(dir, { 'rate.csv': saturatingCsv(), 'a.fitspec.json': spec(', "title": "Seeded saturation"'), 'bad.fitspec.json': spec().replace('"y": "rate"', '"y": "nope"') });
+      write(dir, { 'rate.csv': saturatingCsv(11), 'a.fitspec.json': spec(', "title": "Seeded saturation"'), 'bad.fitspec.json': spec().replace('"y": "rate"', '"y": "nope"') });
       const r = cw(['report', 'a.fitspec.json', '-o', 'out/report.html'], dir);
       assert.equal(r.code, 0, r.err);
       assert.match(r.out, /wrote out\/report\.html \(1 of 1 spec fitted\)/);

@@ -10,6 +10,7 @@ import * as path from 'path';
 import { runSpecFile, serializeReport, writeResults, reportForFile, MAX_POINTS_IN_FILE, sha256 } from '../../src/engine/run';
 import { isErrorReport, type ErrorReport, type FitReport, type RunResult } from '../../src/engine/report';
 import { mulberry32, normalSource } from '../../scripts/generate-demo';
+import { saturatingCsv } from './seededData';
 
 function tmpDir(): string {
   return fs.mkdtempSync(path.join(os.tmpdir(), 'cw-run-'));
@@ -24,17 +25,6 @@ function asReport(r: RunResult): FitReport {
 function asError(r: RunResult): ErrorReport {
   assert.ok(isErrorReport(r), `expected an ErrorReport, got a FitReport`);
   return r as ErrorReport;
-}
-
-/** y = Vmax x / (Km + x) + N(0, 0.05²), Vmax = 5, Km = 2 — seeded. */
-function saturatingCsv(seed = 7): string {
-  const z = normalSource(mulberry32(seed));
-  const rows = ['conc,rate'];
-  for (let i = 1; i <= 24; i++) {
-    const x = 0.25 * i * (1 + i / 8);
-    rows.push(`${x.toFixed(4)},${((5 * x) / (2 + x) + 0.05 * z()).toFixed(5)}`);
-  }
-  return rows.join('\n') + '\n';
 }
 
 function workspace(files: Record<string, string>): string {
@@ -67,7 +57,7 @@ describe('run: runSpecFile', function () {
   let dir: string;
   let spec: string;
   before(() => {
-    dir = workspace({ 'rate.csv': saturatingCsv(), 'rate.fitspec.json': MM_SPEC });
+    dir = workspace({ 'rate.csv': saturatingCsv(7), 'rate.fitspec.json': MM_SPEC });
     spec = path.join(dir, 'rate.fitspec.json');
   });
 
@@ -199,7 +189,7 @@ describe('run: runSpecFile', function () {
 
 describe('run: bad input becomes an ErrorReport, never an exception', function () {
   this.timeout(60000);
-  const csv = saturatingCsv();
+  const csv = saturatingCsv(7);
   const base = (over: string) => `{ "data": { "file": "rate.csv", "x": "conc", "y": "rate" }, "models": [{ "name": "mm", "builtin": "michaelis_menten" }]${over} }`;
   async function errorOf(specText: string, files: Record<string, string> = { 'rate.csv': csv }): Promise<ErrorReport> {
     const dir = workspace({ ...files, 's.fitspec.json': specText });

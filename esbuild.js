@@ -1,4 +1,5 @@
-// Bundles the extension host, the engine worker, the command line and the webview (browser) code into dist/.
+// Bundles the extension host, the engine worker, the command line, the library (`require('curvewright')`) and the
+// webview (browser) code into dist/, and emits the library's type declarations into dist/types (tsconfig.lib.json).
 const esbuild = require('esbuild');
 const watch = process.argv.includes('--watch');
 const common = { bundle: true, sourcemap: true, logLevel: 'warning', minify: false, legalComments: 'none' };
@@ -8,6 +9,8 @@ const builds = [
   { ...node, entryPoints: ['src/host/extension.ts'], outfile: 'dist/extension.js', external: ['vscode'] },
   { ...node, entryPoints: ['src/worker.ts'], outfile: 'dist/worker.js' },
   { ...node, entryPoints: ['src/cli.ts'], outfile: 'dist/cli.js' },
+  // the library has no `vscode` on its path: marking it external would hide an import; bundling it would fail loudly
+  { ...node, entryPoints: ['src/lib.ts'], outfile: 'dist/lib.js' },
   { ...common, entryPoints: ['webview/main.ts'], outfile: 'dist/webview.js', platform: 'browser', format: 'iife', target: 'es2020' },
 ];
 const fs = require('fs');
@@ -15,4 +18,9 @@ const fs = require('fs');
   const present = builds.filter(b => fs.existsSync(b.entryPoints[0]));
   if (watch) { for (const b of present) (await esbuild.context(b)).watch(); return; }
   await Promise.all(present.map(b => esbuild.build(b)));
+  if (fs.existsSync('tsconfig.lib.json')) {
+    fs.rmSync('dist/types', { recursive: true, force: true }); // no declarations of deleted files
+    const tsc = require('child_process').spawnSync(process.execPath, [require.resolve('typescript/bin/tsc'), '-p', 'tsconfig.lib.json'], { encoding: 'utf8' });
+    if (tsc.status !== 0) throw new Error(`type declarations (tsc -p tsconfig.lib.json) failed:\n${tsc.stdout}${tsc.stderr}`);
+  }
 })().catch(e => { console.error(e.message || e); process.exit(1); });

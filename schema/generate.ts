@@ -411,6 +411,23 @@ export function fitreportSchema(): Schema {
       y: str('The column or expression of y.'),
     }, ['x', 'y']),
   }, ['file', 'rows', 'used', 'dropped', 'excluded', 'range', 'correlation']);
+  const reason = obj('One reason check fails a spec, or a warning it does not count.', {
+    code: str('Problem code, or not-converged, expect-not-met, stale-results, output-failed, spec-error.'),
+    severity: { enum: ['error', 'warning'], description: 'error: fails the check; warning: not counted without --strict.' },
+    message: str('For the user: what is wrong and the fix.'),
+    file: str('File it belongs to, relative to the current directory: the spec or a data file.'),
+    line: int('1-based line in that file.'),
+    column: int('1-based column in that line.'),
+    path: { $ref: '#/definitions/jsonPath', description: 'Where in the spec.' },
+  }, ['code', 'severity', 'message', 'file']);
+  const check = obj('The verdict of `curvewright check --json` (only in its output, never in results files).', {
+    ok: bool('The spec passed.'),
+    spec: str('Spec path relative to the current directory, forward slashes.'),
+    strict: bool('Run with --strict (warnings count).'),
+    reasons: arr('What fails the spec; empty when ok.', { $ref: '#/definitions/checkReason' }),
+    warnings: arr('Warnings not counted (without --strict).', { $ref: '#/definitions/checkReason' }),
+    shard: str('K/N when run with --shard.'),
+  }, ['ok', 'spec', 'strict', 'reasons', 'warnings']);
   const fitReport = obj('Results of a fit spec.', {
     version: { const: 1, description: 'Report format version.' },
     spec: str('Spec file name as given.'),
@@ -436,6 +453,7 @@ export function fitreportSchema(): Schema {
       ok: bool('Met.'),
     }, ['model', 'param', 'value', 'actual', 'ok'])),
     confidence: num('Confidence level of every interval.'),
+    check: { $ref: '#/definitions/checkVerdict', description: 'Only in check --json output: the verdict.' },
   }, ['version', 'spec', 'meta', 'data', 'models', 'comparison', 'best', 'problems', 'expect', 'confidence']);
   const errorReport = obj('A spec that could not be run.', {
     version: { const: 1, description: 'Report format version.' },
@@ -446,12 +464,13 @@ export function fitreportSchema(): Schema {
       location: { $ref: '#/definitions/location', description: 'Where in the spec text or data file.' },
       problems: arr('All problems found.', { $ref: '#/definitions/problem' }),
     }, ['message']),
+    check: { $ref: '#/definitions/checkVerdict', description: 'Only in check --json output: the verdict.' },
   }, ['version', 'spec', 'error']);
   return {
     $schema: 'http://json-schema.org/draft-07/schema#',
     title: 'Curvewright fit report',
     description: 'What `curvewright fit --json` prints and a spec\'s "output" file holds: a FitReport, or an ErrorReport when the spec could not be run.',
-    definitions: { jsonPath, location, problem, fitReport, errorReport },
+    definitions: { jsonPath, location, problem, checkReason: reason, checkVerdict: check, fitReport, errorReport },
     oneOf: [{ $ref: '#/definitions/fitReport' }, { $ref: '#/definitions/errorReport' }],
   };
 }

@@ -1,8 +1,9 @@
-// Dispatch of `curvewright <command>`: help, version, argument errors (exit 2) and the four commands.
+// Dispatch of `curvewright <command>`: help, version, argument errors (exit 2) and the commands.
 import { ENGINE_VERSION } from '../engine/report';
 import { closest, parseArgs, UsageError } from './args';
 import { checkCommand } from './check';
 import { fitCommand } from './fit';
+import { mergeCommand } from './merge';
 import { COMMANDS, commandHelp, programHelp } from './help';
 import type { Io } from './io';
 import { newCommand } from './new';
@@ -13,6 +14,7 @@ const RUN: Record<string, (p: ReturnType<typeof parseArgs>, io: Io) => Promise<n
   check: checkCommand,
   report: reportCommand,
   new: newCommand,
+  merge: mergeCommand,
 };
 
 /** Runs the command line; resolves with the exit code. Throws only for internal errors (bugs). */

@@ -278,6 +278,37 @@ export interface ReportMeta {
   seed: number;
 }
 
+/** One reason `check` fails a spec (or a warning it does not count), placed for CI annotations. */
+export interface CheckReason {
+  /** problem code, or one of check's own: not-converged, expect-not-met, stale-results, output-failed, spec-error */
+  code: string;
+  severity: 'error' | 'warning';
+  /** for the user: what is wrong and the fix */
+  message: string;
+  /** the file it belongs to, relative to the current directory (the spec, or a data file) */
+  file: string;
+  /** 1-based line and column in that file, when known */
+  line?: number;
+  column?: number;
+  /** where in the spec, when it belongs to a key */
+  path?: JsonPath;
+}
+
+/** The verdict `check --json` adds to each line (never written to results files). */
+export interface CheckVerdict {
+  ok: boolean;
+  /** the spec's path relative to the current directory, with forward slashes */
+  spec: string;
+  /** with --strict, warnings count as failures (they are then in reasons) */
+  strict: boolean;
+  /** what fails the spec; empty when ok */
+  reasons: CheckReason[];
+  /** warnings not counted (without --strict) */
+  warnings: CheckReason[];
+  /** "K/N" when run with --shard */
+  shard?: string;
+}
+
 export interface FitReport {
   version: 1;
   /** spec file name as given (relative path) */
@@ -292,12 +323,16 @@ export interface FitReport {
   expect: ExpectResult[];
   /** confidence level of every interval */
   confidence: number;
+  /** only in `check --json` output */
+  check?: CheckVerdict;
 }
 
 export interface ErrorReport {
   version: 1;
   spec: string;
   error: { message: string; path?: JsonPath; location?: FileLocation; problems?: Problem[] };
+  /** only in `check --json` output */
+  check?: CheckVerdict;
 }
 
 export type RunResult = FitReport | ErrorReport;

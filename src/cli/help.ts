@@ -56,6 +56,17 @@ export const COMMANDS: CommandDef[] = [
     ],
   },
   {
+    name: 'diff',
+    usage: 'curvewright diff <old.json> <new.json>',
+    summary: 'say in words what changed between two results files (parameters in SE, models, best, problems)',
+    details: [
+      'e.g. "K moved from 1.856 ± 0.012 to 1.861 ± 0.011 (0.4 SE)": the shift over the old standard error.',
+      'Exits 0 when nothing changed, 1 when something did, 2 when a file is not a results file.',
+      'Compare with the committed version: git show HEAD:results/x.fitresult.json > /tmp/old.json, then diff it.',
+    ],
+    options: [HELP],
+  },
+  {
     name: 'merge',
     usage: 'curvewright merge <file...> [--json] [--format github]',
     summary: 'combine the `check --json` output of several shards into one verdict (and one report stream)',
@@ -139,6 +150,7 @@ export function programHelp(version: string): string {
     '  curvewright check fits/ --shard 2/4 --json > check-2.jsonl   (then: curvewright merge check-*.jsonl)',
     '  curvewright report examples/*.fitspec.json -o report.html',
     '  curvewright new data/plate-7.csv --x conc --y absorbance',
+    '  curvewright diff old.fitresult.json results/plate-7.fitresult.json',
     '',
     'Exit codes:',
     ...EXIT_CODES.map(l => `  ${l}`),

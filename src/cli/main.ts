@@ -2,6 +2,7 @@
 import { ENGINE_VERSION } from '../engine/report';
 import { closest, parseArgs, UsageError } from './args';
 import { checkCommand } from './check';
+import { diffCommand } from './diff';
 import { fitCommand } from './fit';
 import { mergeCommand } from './merge';
 import { COMMANDS, commandHelp, programHelp } from './help';
@@ -15,6 +16,7 @@ const RUN: Record<string, (p: ReturnType<typeof parseArgs>, io: Io) => Promise<n
   report: reportCommand,
   new: newCommand,
   merge: mergeCommand,
+  diff: diffCommand,
 };
 
 /** Runs the command line; resolves with the exit code. Throws only for internal errors (bugs). */

@@ -180,3 +180,73 @@ describe('cli in CI: check verdicts, annotations, shards, merge', function () {
     assert.match(r.out, /check: shard 2\/2 has no spec \(1 spec in all, split over 2 shards\)/);
   });
 });
+
+describe('cli diff: what changed between two results files, in words', function () {
+  this.timeout(120000);
+  let dir: string;
+  before(() => {
+    dir = tmpDir();
+    fs.writeFileSync(path.join(dir, 'rate.csv'), saturatingCsv(16));
+    fs.writeFileSync(path.join(dir, 's.fitspec.json'), JSON.stringify({
+      data: { file: 'rate.csv', x: 'conc', y: 'rate' },
+      models: [{ name: 'mm', builtin: 'michaelis_menten' }, { name: 'line', builtin: 'linear' }],
+      output: 'out/s.fitresult.json',
+      expect: { mm: { Vmax: { value: 5, tol: 0.3 } } },
+    }));
+    assert.equal(cw(['fit', 's.fitspec.json'], dir).code, 0);
+    fs.copyFileSync(path.join(dir, 'out', 's.fitresult.json'), path.join(dir, 'old.json'));
+  });
+
+  it('the same file: exit 0 and says so', () => {
+    const r = cw(['diff', 'old.json', 'out/s.fitresult.json'], dir);
+    assert.equal(r.code, 0, r.err);
+    assert.match(r.out, /^no change between old\.json and out\/s\.fitresult\.json/);
+  });
+
+  it('one data point moved: each parameter shift in old standard errors, statistics, data changed (exit 1)', () => {
+    const csv = fs.readFileSync(path.join(dir, 'rate.csv'), 'utf8').split('\n');
+    const [x] = csv[10].split(',');
+    csv[10] = `${x},9`;
+    fs.writeFileSync(path.join(dir, 'rate.csv'), csv.join('\n'));
+    assert.equal(cw(['fit', 's.fitspec.json'], dir).code, 0);
+    const r = cw(['diff', 'old.json', 'out/s.fitresult.json'], dir);
+    assert.equal(r.code, 1, r.err);
+    const a = JSON.parse(fs.readFileSync(path.join(dir, 'old.json'), 'utf8')) as FitReport;
+    const b = JSON.parse(fs.readFileSync(path.join(dir, 'out', 's.fitresult.json'), 'utf8')) as FitReport;
+    const p = a.models[0].params.Vmax, q = b.models[0].params.Vmax;
+    const shift = Math.abs(q.value - p.value) / p.se!;
+    assert.ok(shift > 0.5, `the moved point shifts Vmax by ${shift} SE`);
+    assert.match(r.out, /^ {2}the data changed$/m);
+    const line = r.out.split('\n').find(l => l.includes('Vmax moved from'))!;
+    assert.ok(line, r.out);
+    const m = /Vmax moved from ([\d.]+) ± ([\d.]+) to ([\d.]+) ± ([\d.]+) \(([\d.]+) SE\)/.exec(line)!;
+    assert.ok(m, line);
+    assert.ok(Math.abs(Number(m[1]) - p.value) / p.value < 1e-3 && Math.abs(Number(m[3]) - q.value) / q.value < 1e-3, line);
+    assert.ok(Math.abs(Number(m[5]) - shift) / shift < 0.05, `${line} vs ${shift}`);
+    assert.match(r.out, /AICc -?[\d.]+ → -?[\d.]+; R² [\d.]+ → [\d.]+; σ [\d.]+ → [\d.]+/);
+  });
+
+  it('models added and removed, best model and expectations changed', () => {
+    const a = JSON.parse(fs.readFileSync(path.join(dir, 'old.json'), 'utf8')) as FitReport;
+    const b: FitReport = JSON.parse(JSON.stringify(a));
+    b.models[1].name = 'quadratic';
+    b.best = 'quadratic';
+    b.expect[0].ok = false;
+    b.models[0].status = 'failed';
+    b.models[0].termination = 'iteration-limit';
+    fs.writeFileSync(path.join(dir, 'b.json'), JSON.stringify(b));
+    const r = cw(['diff', 'old.json', 'b.json'], dir);
+    assert.equal(r.code, 1);
+    for (const w of [/best model: mm → quadratic/, /model quadratic added \(converged\)/, /model line removed/, /status converged \(\w[\w-]*\) → failed \(iteration-limit\)/, /expect mm\.Vmax no longer met/])
+      assert.match(r.out, w);
+  });
+
+  it('bad input: exit 2 naming the file', () => {
+    fs.writeFileSync(path.join(dir, 'x.json'), '{"a": 1}');
+    const r = cw(['diff', 'old.json', 'x.json'], dir);
+    assert.equal(r.code, 2);
+    assert.match(r.err, /x\.json is not a Curvewright results file/);
+    assert.equal(cw(['diff', 'old.json'], dir).code, 2);
+    assert.match(cw(['diff', 'old.json', 'missing.json'], dir).err, /cannot read missing\.json: no such file/);
+  });
+});

@@ -197,6 +197,11 @@ export function fitspecSchema(): Schema {
         'Results file (FitReport JSON), relative to this spec file. Must stay inside the workspace and may not be the data or spec file.',
         { minLength: 1 },
       ),
+      outputPoints: {
+        enum: ['inline', 'sidecar', 'omit'],
+        description: 'Where the results file keeps the per-point arrays and the band: "inline" in it; "sidecar" in <output minus .json>.points.json beside it (its name in the report\'s pointsFile), so that the main file stays short to review; "omit" leaves them out.',
+        default: DEFAULTS.outputPoints,
+      },
       expect: {
         type: 'object',
         description: 'Expected parameter values: model name -> parameter -> { "value", "tol" } or { "value", "rel" }.',
@@ -355,7 +360,8 @@ export function fitreportSchema(): Schema {
     stats,
     residualTests,
     points,
-    pointsOmitted: bool('Points left out of the results file (more than 10,000 rows).'),
+    pointsOmitted: bool('Points left out of the results file (more than 10,000 rows, or outputPoints "sidecar" / "omit").'),
+    bandOmitted: bool('Band left out of the results file (outputPoints "sidecar" / "omit").'),
     band,
     predictions: arr('Predictions at spec.predict.', prediction),
     inverse: arr('Inverse predictions at spec.solveFor.', inverse),
@@ -453,6 +459,7 @@ export function fitreportSchema(): Schema {
       ok: bool('Met.'),
     }, ['model', 'param', 'value', 'actual', 'ok'])),
     confidence: num('Confidence level of every interval.'),
+    pointsFile: str('The sidecar file with every model\'s points and band (outputPoints "sidecar"), relative to this file.'),
     check: { $ref: '#/definitions/checkVerdict', description: 'Only in check --json output: the verdict.' },
   }, ['version', 'spec', 'meta', 'data', 'models', 'comparison', 'best', 'problems', 'expect', 'confidence']);
   const errorReport = obj('A spec that could not be run.', {

@@ -10,6 +10,7 @@ import { isErrorReport, type FitReport, type ModelReport, type RunResult } from 
 import { runSpecFile, serializeReport, writeResults } from './engine/run';
 import { normalQuantile, tQuantile } from './engine/stats/distributions';
 import { makePredictor, type PredictionContext } from './engine/stats/predict';
+import { joinSidecar, sidecarMismatch, type PointsSidecar } from './engine/pointsFile';
 
 export type * from './engine/report';
 export { isErrorReport, ENGINE_VERSION } from './engine/report';
@@ -72,7 +73,11 @@ function reportValidator(): ValidateFunction {
   return validator;
 }
 
-/** Reads a results file (or a `--json` line saved to a file) and checks it against schema/fitreport.schema.json. */
+/**
+ * Reads a results file (or a `--json` line saved to a file) and checks it against schema/fitreport.schema.json. When
+ * the spec keeps points in a sidecar (outputPoints "sidecar") and that file is there, its points and bands are put
+ * back; a points file of another run is an error, a missing one (e.g. git-ignored) leaves them out.
+ */
 export function readReport(file: string): FitReport {
   let text: string;
   try {
@@ -95,7 +100,18 @@ export function readReport(file: string): FitReport {
   }
   const result = value as RunResult;
   if (isErrorReport(result)) throw new CurvewrightError(`the results file ${file} records a spec that could not be run: ${result.error.message}`);
-  return result;
+  if (typeof result.pointsFile !== 'string') return result;
+  const side = path.join(path.dirname(file), result.pointsFile);
+  let sidecar: unknown;
+  try {
+    sidecar = JSON.parse(readFileSync(side, 'utf8'));
+  } catch (e) {
+    if ((e as NodeJS.ErrnoException).code === 'ENOENT') return result;
+    throw new CurvewrightError(`the points file ${side} of ${file} cannot be read (${(e as Error).message}) — run \`curvewright fit\` on its spec to rewrite both`);
+  }
+  const why = sidecarMismatch(result, sidecar);
+  if (why) throw new CurvewrightError(`the points file ${side} does not belong to ${file}: ${why} — run \`curvewright fit\` on its spec to rewrite both`);
+  return joinSidecar(result, sidecar as PointsSidecar);
 }
 
 // ------------------------------------------------------------------ evaluating a fitted model

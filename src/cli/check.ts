@@ -3,6 +3,7 @@
 import { promises as fsp } from 'fs';
 import * as path from 'path';
 import { runSpecFile, serializeReport, specFiles, writeResults, OutputError } from '../engine/run';
+import { sidecarMismatch } from '../engine/pointsFile';
 import { isErrorReport, type CheckVerdict, type ErrorReport, type FitReport, type RunResult } from '../engine/report';
 import { findingSeverity, githubAnnotations, placeFindings, type Finding } from './annotate';
 import { UsageError, type Parsed } from './args';
@@ -36,8 +37,23 @@ export async function staleness(report: FitReport, outputAbs: string, outShown: 
   const what: string[] = [];
   if (!meta || meta.specHash !== report.meta.specHash) what.push('the spec');
   if (!meta || meta.dataHash !== report.meta.dataHash) what.push('the data');
-  if (!what.length) return null;
+  if (!what.length) return sidecarStaleness(text, outputAbs, outShown, specShown);
   return `results file ${outShown} is stale: ${what.join(' and ')} changed since it was written — run \`curvewright fit ${specShown}\` and commit the results (or \`curvewright check --update\`)`;
+}
+
+/** A points file (outputPoints "sidecar") of another run is stale too; a missing one (e.g. git-ignored) is not. */
+async function sidecarStaleness(text: string, outputAbs: string, outShown: string, specShown: string): Promise<string | null> {
+  const saved = JSON.parse(text) as FitReport;
+  if (typeof saved.pointsFile !== 'string') return null;
+  let side: unknown;
+  try {
+    side = JSON.parse(await fsp.readFile(path.join(path.dirname(outputAbs), saved.pointsFile), 'utf8'));
+  } catch (e) {
+    if ((e as NodeJS.ErrnoException).code === 'ENOENT') return null;
+    side = null;
+  }
+  const why = sidecarMismatch(saved, side);
+  return why ? `the points file ${saved.pointsFile} beside ${outShown} is stale: ${why} — run \`curvewright fit ${specShown}\` and commit both files` : null;
 }
 
 export function verdictOf(report: FitReport, specShown: string, strict: boolean): Verdict {

@@ -61,6 +61,9 @@ export interface FitSpec {
   predict?: (number | Record<string, number>)[];
   solveFor?: number[];
   output?: string;
+  /** where the results file keeps the per-point arrays and the band: "inline" (default), "sidecar" (a separate
+   *  <output>.points.json beside it, named by the report's pointsFile) or "omit" */
+  outputPoints?: 'inline' | 'sidecar' | 'omit';
   expect?: Record<string, Record<string, ExpectSpec>>;
   thresholds?: Partial<Thresholds>;
 }
@@ -231,6 +234,8 @@ export interface ModelReport {
   residualTests: ResidualTests | null;
   points?: PointsReport;
   pointsOmitted?: boolean;
+  /** the band was left out of the results file (outputPoints "sidecar" or "omit") */
+  bandOmitted?: boolean;
   band: BandReport | null;
   predictions: PredictionReport[];
   inverse: InverseReport[];
@@ -323,6 +328,8 @@ export interface FitReport {
   expect: ExpectResult[];
   /** confidence level of every interval */
   confidence: number;
+  /** the sidecar file holding every model's points and band (outputPoints "sidecar"), relative to this file */
+  pointsFile?: string;
   /** only in `check --json` output */
   check?: CheckVerdict;
 }

@@ -29,6 +29,7 @@ import type { Table } from './data/types';
 import { buildModel, fitModel } from './models';
 import { analyzeModel, compareModels, dataCorrelation, resolveThresholds } from './stats';
 import type { AnalysisOptions, ModelAnalysisInput } from './stats/api';
+import { sidecarPath, splitReport, type OutputPoints } from './pointsFile';
 
 export interface RunOptions {
   /** spec text to use instead of the file on disk (e.g. unsaved editor text) */
@@ -547,8 +548,8 @@ export class OutputError extends Error {
   }
 }
 
-/** The absolute results-file and data-file paths a spec names (read leniently from its text; null when absent). */
-export async function specFiles(specPath: string, specText?: string): Promise<{ output: string | null; data: string | null }> {
+/** The absolute results-file and data-file paths a spec names, and its outputPoints (read leniently from its text; null when absent). */
+export async function specFiles(specPath: string, specText?: string): Promise<{ output: string | null; data: string | null; outputPoints: OutputPoints }> {
   let text = specText;
   if (text === undefined) {
     try {
@@ -557,11 +558,12 @@ export async function specFiles(specPath: string, specText?: string): Promise<{ 
       throw new OutputError(`cannot read the spec ${specPath} to find its "output": ${(e as Error).message}`);
     }
   }
-  const raw = parseJsonc(text, [], { allowTrailingComma: true }) as { output?: unknown; data?: { file?: unknown } } | undefined;
+  const raw = parseJsonc(text, [], { allowTrailingComma: true }) as { output?: unknown; outputPoints?: unknown; data?: { file?: unknown } } | undefined;
   const dir = path.dirname(specPath);
   const output = raw && typeof raw.output === 'string' ? path.resolve(dir, raw.output) : null;
   const data = raw && raw.data && typeof raw.data.file === 'string' ? path.resolve(dir, raw.data.file) : null;
-  return { output, data };
+  const outputPoints: OutputPoints = raw && (raw.outputPoints === 'sidecar' || raw.outputPoints === 'omit') ? raw.outputPoints : 'inline';
+  return { output, data, outputPoints };
 }
 
 /**
@@ -575,24 +577,36 @@ export async function writeResults(
   specPath: string,
   opts: { workspaceRoot?: string; specText?: string } = {},
 ): Promise<string | null> {
-  const { output, data } = await specFiles(specPath, opts.specText);
+  const { output, data, outputPoints } = await specFiles(specPath, opts.specText);
   if (!output) return null;
-  const refusal = await outputRefusal(output, { spec: specPath, data: data ?? specPath }, opts.workspaceRoot ?? process.cwd());
-  if (refusal) throw new OutputError(refusal);
-  const text = serializeReport(reportForFile(report), { pretty: true });
-  try {
-    if ((await fsp.readFile(output, 'utf8')) === text) return output;
-  } catch {
-    /* not there yet */
+  const side = sidecarPath(output);
+  for (const file of outputPoints === 'sidecar' ? [output, side] : [output]) {
+    const refusal = await outputRefusal(file, { spec: specPath, data: data ?? specPath }, opts.workspaceRoot ?? process.cwd());
+    if (refusal) throw new OutputError(refusal);
   }
-  const dir = path.dirname(output);
-  const tmp = path.join(dir, `.${path.basename(output)}.${process.pid}.${randomBytes(4).toString('hex')}.tmp`);
+  const { main, sidecar } = splitReport(reportForFile(report), outputPoints, path.basename(side));
+  // the points file first, the results file last: a reader that finds the new results file finds its points too
+  const files = [...(sidecar ? [{ file: side, text: serializeReport(sidecar as unknown as RunResult, { pretty: true }) }] : []), { file: output, text: serializeReport(main, { pretty: true }) }];
+  const pending: { file: string; tmp: string }[] = [];
   try {
-    await fsp.mkdir(dir, { recursive: true });
-    await fsp.writeFile(tmp, text, 'utf8');
-    await fsp.rename(tmp, output);
+    for (const { file, text } of files) {
+      try {
+        if ((await fsp.readFile(file, 'utf8')) === text) continue;
+      } catch {
+        /* not there yet */
+      }
+      const dir = path.dirname(file);
+      const tmp = path.join(dir, `.${path.basename(file)}.${process.pid}.${randomBytes(4).toString('hex')}.tmp`);
+      await fsp.mkdir(dir, { recursive: true });
+      pending.push({ file, tmp });
+      await fsp.writeFile(tmp, text, 'utf8');
+    }
+    while (pending.length) {
+      await fsp.rename(pending[0].tmp, pending[0].file);
+      pending.shift();
+    }
   } catch (e) {
-    await fsp.unlink(tmp).catch(() => undefined);
+    await Promise.all(pending.map(p => fsp.unlink(p.tmp).catch(() => undefined)));
     throw new OutputError(`cannot write the results file ${output}: ${(e as Error).message} — check that its folder is writable`);
   }
   return output;

@@ -3,6 +3,7 @@
 
 export const DEFAULTS = {
   confidence: 0.95,
+  outputPoints: 'inline',
   data: {
     delimiter: 'auto',
     decimal: '.',

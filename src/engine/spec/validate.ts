@@ -32,7 +32,7 @@ export interface ValidateResult {
   data?: { file: string; fileGiven: string; delimiter: NormalizedData['delimiter']; decimal: NormalizedData['decimal'] };
 }
 
-const TOP_KEYS = ['$schema', 'title', 'data', 'models', 'confidence', 'predict', 'solveFor', 'output', 'expect', 'thresholds'];
+const TOP_KEYS = ['$schema', 'title', 'data', 'models', 'confidence', 'predict', 'solveFor', 'output', 'outputPoints', 'expect', 'thresholds'];
 const DATA_KEYS = ['file', 'x', 'y', 'sigma', 'weight', 'sigmaMode', 'where', 'exclude', 'delimiter', 'decimal', 'badRows'];
 const MODEL_KEYS = ['name', 'builtin', 'polynomial', 'formula', 'params', 'solver'];
 const PARAM_KEYS = ['start', 'min', 'max', 'fixed'];
@@ -345,6 +345,8 @@ export function validateSpec(raw: unknown, ctx: ValidateContext): ValidateResult
     }
   }
 
+  const outputPoints = c.oneOf(raw, 'outputPoints', [], ['inline', 'sidecar', 'omit'] as const);
+
   // ------------------------------------------------------------------ expect
   const expect: NormalizedSpec['expect'] = {};
   if (raw.expect !== undefined) {
@@ -424,6 +426,7 @@ export function validateSpec(raw: unknown, ctx: ValidateContext): ValidateResult
     spec.output = output;
     spec.outputGiven = outputGiven;
   }
+  if (outputPoints !== undefined) spec.outputPoints = outputPoints;
   return { spec, problems: c.problems, ...(dataFile ? { data: dataFile } : {}) };
 }
 

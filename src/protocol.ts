@@ -226,6 +226,8 @@ export interface SpecSuggestion {
   x: string;
   y: string;
   candidates: { id: string; label: string; recommended: boolean; model: ModelSpec }[];
+  /** "," for a semicolon file with decimal commas */
+  decimal?: ',';
 }
 
 /** Data shared with each worker at start (workerData): cancel[0] holds the id of a run to stop. The host sets it with

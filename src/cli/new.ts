@@ -7,7 +7,7 @@ import { shown, writeAtomic, type Io } from './io';
 
 export async function newCommand(parsed: Parsed, io: Io): Promise<number> {
   if (parsed.positionals.length !== 1)
-    throw new UsageError(`'new' needs exactly one CSV file, e.g. \`curvewright new data/plate.csv\` (got ${parsed.positionals.length})`);
+    throw new UsageError(`'new' needs exactly one data file (.csv, .tsv or .txt), e.g. \`curvewright new data/plate.csv\` (got ${parsed.positionals.length})`);
   const csvGiven = parsed.positionals[0];
   const csv = path.resolve(io.cwd, csvGiven);
   const want = {
@@ -39,7 +39,7 @@ export async function newCommand(parsed: Parsed, io: Io): Promise<number> {
   if (!specAbs.endsWith('.json')) throw new UsageError(`-o ${specGiven}: a spec file name ends in .fitspec.json`);
   if (fs.existsSync(specAbs)) throw new UsageError(`${shown(specAbs, io.cwd)} already exists — choose another name with -o, or delete it first`);
   const models = suggestion.candidates.filter(c => c.recommended).map(c => c.model);
-  const text = starterSpecText({ csvPath: csv, specPath: specAbs, x: suggestion.x, y: suggestion.y, models });
+  const text = starterSpecText({ csvPath: csv, specPath: specAbs, x: suggestion.x, y: suggestion.y, models, ...(suggestion.decimal ? { decimal: suggestion.decimal } : {}) });
   await writeAtomic(specAbs, text);
   io.out(
     `wrote ${shown(specAbs, io.cwd)}: x = ${suggestion.x}, y = ${suggestion.y}, models: ${models.map(m => m.name).join(', ')}\n` +

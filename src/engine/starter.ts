@@ -14,6 +14,7 @@ import * as path from 'path';
 import Papa from 'papaparse';
 import type { ModelSpec } from './report';
 import { readHeader } from './data';
+import { detectDelimiter } from './data/csv';
 import { columnRef } from './spec';
 
 export interface Candidate {
@@ -28,6 +29,8 @@ export interface Suggestion {
   x: string;
   y: string;
   candidates: Candidate[];
+  /** "," when the file is semicolon-separated with decimal commas (the spec must then say data.decimal) */
+  decimal?: ',';
 }
 
 /** Rows read to guess columns and shape. */
@@ -165,8 +168,9 @@ export async function suggestSpec(csvPath: string, opts: { x?: string; y?: strin
     await handle.close();
   }
   if (text.charCodeAt(0) === 0xfeff) text = text.slice(1);
-  const parsed = Papa.parse<string[]>(text, { preview: SAMPLE_ROWS + 1, skipEmptyLines: 'greedy' });
-  const delimiter = parsed.meta.delimiter;
+  // the delimiter the reader itself will use (it decides from the header line), not papaparse's own guess
+  const delimiter = detectDelimiter(text.split(/\r?\n/, 1)[0], '.');
+  const parsed = Papa.parse<string[]>(text, { preview: SAMPLE_ROWS + 1, skipEmptyLines: 'greedy', delimiter });
   const rows = parsed.data.slice(1).filter(r => Array.isArray(r));
   if (cut && rows.length > SAMPLE_ROWS - 1) rows.pop(); // the last row may be cut in the middle
   const decimalComma = delimiter === ';';
@@ -192,7 +196,9 @@ export async function suggestSpec(csvPath: string, opts: { x?: string; y?: strin
   const xs = values[xCol.j], ys = values[yCol.j];
   const finiteX = xs.filter((v, i) => Number.isFinite(v) && Number.isFinite(ys[i]));
   const xMin = finiteX.length ? Math.min(...finiteX) : 0;
-  return { columns, x: xCol.name, y: yCol.name, candidates: candidatesFor(classifyShape(xs, ys), xMin) };
+  // a decimal comma is written into the spec: the reader's default is "." (and ';' files are where commas are decimals)
+  const commaNumbers = decimalComma && rows.some(r => [xCol.j, yCol.j].some(j => /^\s*[-+]?\d*,\d+(?:[eE][-+]?\d+)?\s*$/.test(r[j] ?? '')));
+  return { columns, x: xCol.name, y: yCol.name, candidates: candidatesFor(classifyShape(xs, ys), xMin), ...(commaNumbers ? { decimal: ',' as const } : {}) };
 }
 
 function toPosix(p: string): string {
@@ -203,7 +209,7 @@ function toPosix(p: string): string {
  * Text of a starter spec (JSON with comments): data.file relative to the spec's folder, the chosen models,
  * output under results/ next to the spec.
  */
-export function starterSpecText(opts: { csvPath: string; specPath: string; x: string; y: string; models: ModelSpec[] }): string {
+export function starterSpecText(opts: { csvPath: string; specPath: string; x: string; y: string; models: ModelSpec[]; decimal?: ',' }): string {
   const specDir = path.dirname(path.resolve(opts.specPath));
   const dataRel = toPosix(path.relative(specDir, path.resolve(opts.csvPath))) || path.basename(opts.csvPath);
   const stem = path.basename(opts.specPath).replace(/\.fitspec\.json$/i, '').replace(/\.json$/i, '');
@@ -220,7 +226,8 @@ export function starterSpecText(opts: { csvPath: string; specPath: string; x: st
     `  "data": {`,
     `    "file": ${JSON.stringify(dataRel)}, // relative to this spec file`,
     `    "x": ${JSON.stringify(columnRef(opts.x))},`,
-    `    "y": ${JSON.stringify(columnRef(opts.y))}`,
+    `    "y": ${JSON.stringify(columnRef(opts.y))}${opts.decimal ? ',' : ''}`,
+    ...(opts.decimal ? [`    "decimal": ${JSON.stringify(opts.decimal)} // numbers like 0,25`] : []),
     `  },`,
     `  "models": [`,
     modelLines.join(',\n'),

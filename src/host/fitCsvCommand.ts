@@ -12,6 +12,9 @@ import type { PanelController } from './panel';
 import type { FitService } from './fitService';
 import { log } from './log';
 
+/** The delimited-text files the command fits (the explorer menu's `when` clause in package.json lists the same). */
+const DATA_FILE = /\.(csv|tsv|txt)$/i;
+
 export interface FitCsvOptions {
   /** the CSV (or several); defaults to the explorer selection or the active editor */
   csv?: vscode.Uri | string;
@@ -44,13 +47,13 @@ export class FitCsvCommand {
     else if (a instanceof vscode.Uri) csvs = [a];
     else {
       const active = vscode.window.activeTextEditor?.document.uri;
-      if (active && /\.csv$/i.test(active.path)) csvs = [active];
+      if (active && DATA_FILE.test(active.path)) csvs = [active];
       else {
-        const picked = await vscode.window.showOpenDialog({ canSelectMany: true, filters: { CSV: ['csv'] }, title: 'Choose CSV files to fit' });
+        const picked = await vscode.window.showOpenDialog({ canSelectMany: true, filters: { 'Data files': ['csv', 'tsv', 'txt'] }, title: 'Choose CSV files to fit' });
         csvs = picked ?? [];
       }
     }
-    csvs = csvs.filter(u => /\.csv$/i.test(u.path));
+    csvs = csvs.filter(u => DATA_FILE.test(u.path));
     const results: FitCsvResult[] = [];
     for (const [i, csv] of csvs.entries()) {
       const r = await this.one(csv, options, interactive, csvs.length > 1 ? ` (${i + 1}/${csvs.length})` : '');
@@ -92,7 +95,7 @@ export class FitCsvCommand {
       models = picked.map(p => p.model);
     } else models = s.candidates.filter(c => c.recommended).map(c => c.model);
     if (!models.length) return { csv: csv.fsPath, spec: null, created: false, reason: 'choose at least one model' };
-    const base = name.replace(/\.csv$/i, '');
+    const base = name.replace(DATA_FILE, '');
     const dir = path.dirname(csv.fsPath);
     let specPath = path.join(dir, `${base}.fitspec.json`);
     if (await exists(specPath)) {
@@ -107,7 +110,7 @@ export class FitCsvCommand {
         if (pick !== 'Overwrite') specPath = fresh;
       } else if (mode !== true) specPath = await freeName(dir, base);
     }
-    const text = starterSpecText({ csvPath: csv.fsPath, specPath, x, y, models });
+    const text = starterSpecText({ csvPath: csv.fsPath, specPath, x, y, models, ...(s.decimal ? { decimal: s.decimal } : {}) });
     this.ownWrites.mark(specPath);
     await vscode.workspace.fs.writeFile(vscode.Uri.file(specPath), Buffer.from(text, 'utf8'));
     log.info(`wrote ${specPath} (x = ${x}, y = ${y}, models: ${models.map(m => m.name).join(', ')})`);

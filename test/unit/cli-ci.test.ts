@@ -250,3 +250,25 @@ describe('cli diff: what changed between two results files, in words', function 
     assert.match(cw(['diff', 'old.json', 'missing.json'], dir).err, /cannot read missing\.json: no such file/);
   });
 });
+
+describe('cli new: data formats by extension', function () {
+  this.timeout(120000);
+  it('.tsv (tabs) and .txt (semicolons, decimal commas): the starter spec fits every row', () => {
+    const dir = tmpDir();
+    const rows = saturatingCsv(16).trim().split('\n');
+    fs.writeFileSync(path.join(dir, 'rate.tsv'), rows.map(r => r.replace(',', '\t')).join('\n') + '\n');
+    fs.writeFileSync(path.join(dir, 'rate.txt'), rows.map(r => r.replace(',', ';').replace(/(\d)\.(\d)/g, '$1,$2')).join('\n') + '\n');
+    for (const [file, decimal] of [['rate.tsv', false], ['rate.txt', true]] as const) {
+      const spec = file.replace(/\.\w+$/, `-${file.slice(-3)}.fitspec.json`);
+      const made = cw(['new', file, '-o', spec], dir);
+      assert.equal(made.code, 0, made.err);
+      const text = fs.readFileSync(path.join(dir, spec), 'utf8');
+      assert.equal(/"decimal": ","/.test(text), decimal, text);
+      const fit = cw(['fit', spec, '--json'], dir);
+      assert.equal(fit.code, 0, fit.err);
+      const r = JSON.parse(fit.out) as FitReport;
+      assert.equal(r.data.used, 24, `${file}: ${JSON.stringify(r.problems.slice(0, 2))}`);
+      assert.equal(r.models.find(m => m.name === 'michaelis_menten')?.status, 'converged', file);
+    }
+  });
+});

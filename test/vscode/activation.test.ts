@@ -37,12 +37,16 @@ describe('activation', () => {
     assert.strictEqual(fit.category, 'Curvewright');
   });
 
-  it('offers "Fit a curve" on CSV files in the explorer and editor menus only', () => {
+  it('offers "Fit a curve" on data files (.csv, .tsv, .txt) in the explorer and editor menus only', () => {
     const pkg = vscode.extensions.getExtension(EXTENSION_ID)!.packageJSON as { contributes: Contributes };
     for (const menu of ['explorer/context', 'editor/title/context']) {
       const item = pkg.contributes.menus[menu]?.find(m => m.command === 'curvewright.fitCsv');
       assert.ok(item, `fitCsv is in ${menu}`);
-      assert.strictEqual(item!.when, 'resourceExtname == .csv');
+      assert.strictEqual(item!.when, 'resourceExtname =~ /^\\.(csv|tsv|txt)$/i');
+      const [, body, flags] = /=~ \/(.*)\/(\w*)$/.exec(item!.when)!;   // the clause's own regular expression
+      const re = new RegExp(body, flags);
+      for (const ext of ['.csv', '.TSV', '.txt']) assert.ok(re.test(ext), ext);
+      for (const ext of ['.json', '.csvx', '.xlsx']) assert.ok(!re.test(ext), ext);
     }
   });
 

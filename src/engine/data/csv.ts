@@ -64,7 +64,7 @@ function badCellReason(text: string, decimal: Decimal): string {
 }
 
 /** Counts delimiter candidates outside double quotes in one line. */
-function detectDelimiter(line: string, decimal: Decimal): ',' | ';' | '\t' {
+export function detectDelimiter(line: string, decimal: Decimal): ',' | ';' | '\t' {
   const counts = { ',': 0, ';': 0, '\t': 0 };
   let quoted = false;
   for (const ch of line) {

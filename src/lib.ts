@@ -53,7 +53,7 @@ export function fitSpecFile(specPath: string, options: FitOptions = {}): Promise
 }
 
 /** The same as fitSpecFile for spec text; `baseDir` is the folder data.file and output are relative to. */
-export function fitSpec(specText: string, options: FitOptions & { baseDir: string; name?: string }): Promise<RunResult> {
+export async function fitSpec(specText: string, options: FitOptions & { baseDir: string; name?: string }): Promise<RunResult> {
   if (!options || typeof options.baseDir !== 'string')
     throw new CurvewrightError('fitSpec needs { baseDir }: the folder the spec\'s data.file is relative to, e.g. fitSpec(text, { baseDir: "examples" })');
   const name = options.name ?? 'inline.fitspec.json';

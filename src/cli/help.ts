@@ -62,7 +62,7 @@ export const COMMANDS: CommandDef[] = [
     details: [
       'e.g. "K moved from 1.856 ± 0.012 to 1.861 ± 0.011 (0.4 SE)": the shift over the old standard error.',
       'Exits 0 when nothing changed, 1 when something did, 2 when a file is not a results file.',
-      'Compare with the committed version: git show HEAD:results/x.fitresult.json > /tmp/old.json, then diff it.',
+      'Against the committed version: git show HEAD:results/x.fitresult.json > old.json, then diff old.json results/x.fitresult.json.',
     ],
     options: [HELP],
   },

@@ -241,5 +241,6 @@ describe('library: evaluate from the report alone', function () {
     const a = await fitSpecFile(file, { workspaceRoot: ROOT });
     const b = await fitSpec(fs.readFileSync(file, 'utf8'), { baseDir: path.join(ROOT, 'examples'), name: 'thermistor.fitspec.json', workspaceRoot: ROOT });
     assert.deepEqual(b, a);
+    await assert.rejects(fitSpec('{}', undefined as unknown as { baseDir: string }), /fitSpec needs \{ baseDir \}/);
   });
 });

@@ -95,6 +95,22 @@ describe('outputPoints: where the per-point arrays and bands go', function () {
     assert.deepEqual(fs.readdirSync(path.join(dir, 'results')).filter(f => f.includes('points')), []);
   });
 
+  it('numbers are written in the shortest form that reads back to the same double', async () => {
+    const dir = demoCopy();
+    const report = await fitAndWrite(dir, 'capacity-fade.fitspec.json');
+    const text = fs.readFileSync(path.join(dir, 'results', 'capacity-fade.fitresult.json'), 'utf8');
+    const tokens = text.replace(/"(?:[^"\\]|\\.)*"/g, '""').match(/-?\d+(?:\.\d+)?(?:[eE][-+]?\d+)?(?=[,\]\s}])/g)!;
+    assert.ok(tokens.length > 1000, `${tokens.length} numbers`);
+    for (const t of tokens) assert.equal(String(Number(t)), t, `'${t}' is not the shortest round-trip form`);
+    // and every finite number of the report reads back exactly
+    const walk = (a: unknown, b: unknown, at: string): void => {
+      if (typeof a === 'number') { assert.ok(Number.isFinite(a) ? Object.is(a === 0 ? 0 : a, b) : b === null, at); return; }
+      if (ArrayBuffer.isView(a)) return walk(Array.from(a as unknown as ArrayLike<number>), b, at);
+      if (a && typeof a === 'object') for (const [k, v] of Object.entries(a)) if (v !== undefined) walk(v, (b as Record<string, unknown>)[k], `${at}.${k}`);
+    };
+    walk(report, JSON.parse(text), 'report');
+  });
+
   it('a misspelt value is a spec error with a did-you-mean', () => {
     const text = '{ "data": { "file": "d.csv", "x": "a", "y": "b" }, "models": [{ "name": "l", "builtin": "linear" }], "outputPoints": "sidecars" }';
     const raw = parseSpecText(text, 's.fitspec.json').raw;

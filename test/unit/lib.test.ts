@@ -214,6 +214,37 @@ describe('library: evaluate from the report alone', function () {
     });
   }
 
+  it('groups: per-group entries by { group }, a joint fit with shared parameters by its name[<group>] values', () => {
+    // a grouped report built by hand from a real one, in the shape of the groups contract (DESIGN.md)
+    const base = reports['growth-reactor1'];
+    const m0 = base.models[0];
+    const K = m0.params.K.value;
+    const perGroup = (g: string, k: number) => ({ ...m0, group: g, params: { ...m0.params, K: { ...m0.params.K, value: k } } });
+    const p = m0.paramOrder.length; // K, r, x0
+    const cov = m0.covariance!;
+    const sharedOrder = ['K[R1]', 'K[R2]', 'r', 'x0'];
+    const from = [0, 0, 1, 2]; // each shared-order entry's index in the single-group covariance (K[R2] ~ K)
+    const shared = {
+      ...m0, name: 'common-rate', group: null, shared: ['r', 'x0'], paramOrder: sharedOrder,
+      params: { 'K[R1]': m0.params.K, 'K[R2]': { ...m0.params.K, value: 2 * K }, r: m0.params.r, x0: m0.params.x0 },
+      covariance: sharedOrder.map((_, a) => sharedOrder.map((__, b) => (a !== b && (a < 2) && (b < 2) ? 0 : cov[from[a]][from[b]]))),
+    };
+    const grouped = { ...base, models: [perGroup('R1', K), perGroup('R2', 2 * K), shared] } as unknown as FitReport;
+    const x = [5, 15, 25];
+    const single = evaluate(base, 'logistic', x);
+    assert.deepEqual(evaluate(grouped, 'logistic', x, { group: 'R1' }), single);
+    assert.ok(maxRel(evaluate(grouped, 'logistic', x, { group: 'R2' }), single.map(v => 2 * v)) <= 1e-12, 'K doubles the curve');
+    assert.deepEqual(evaluate(grouped, 'common-rate', x, { group: 'R1' }), single);
+    assert.ok(maxRel(evaluate(grouped, 'common-rate', x, { group: 'R2' }), single.map(v => 2 * v)) <= 1e-12);
+    const b1 = evaluate(grouped, 'common-rate', x, { group: 'R1', band: true });
+    const b0 = evaluate(base, 'logistic', x, { band: true });
+    assert.ok(maxRel(b1.ciHigh, b0.ciHigh) <= 1e-12, 'the group\'s block of the joint covariance gives the same band');
+    assert.equal(p, 3);
+    assert.throws(() => evaluate(grouped, 'logistic', x), /fitted per group — pass \{ group \}, one of: R1, R2/);
+    assert.throws(() => evaluate(grouped, 'logistic', x, { group: 'R3' }), /no group 'R3' \(groups: R1, R2\)/);
+    assert.throws(() => evaluate(grouped, 'common-rate', x), /fitted per group — pass \{ group \}/);
+  });
+
   it('names the fix for an unknown model, a failed model and a report that is an error', () => {
     const r = reports['growth-reactor1'];
     assert.throws(() => evaluate(r, 'logistik', [1]), /no model 'logistik' — did you mean 'logistic'\? \(models: logistic, gompertz, richards\)/);

@@ -141,6 +141,13 @@ export const y: string = evaluate(r, 'beta', [1]);
 `);
     const good = run(process.execPath, [tsc, ...opts, 'good.ts'], proj);
     assert.equal(good.code, 0, good.out + good.err);
+    // the README's TypeScript example, as written
+    const readme = fs.readFileSync(path.join(ROOT, 'README.md'), 'utf8');
+    const example = /```ts\n([\s\S]*?)```/.exec(readme)![1];
+    assert.match(example, /from 'curvewright'/);
+    fs.writeFileSync(path.join(proj, 'readme.mts'), example + '\nexport { y, band, saved };\n');
+    const fromReadme = run(process.execPath, [tsc, ...opts, 'readme.mts'], proj);
+    assert.equal(fromReadme.code, 0, 'README example: ' + fromReadme.out + fromReadme.err);
     const bad = run(process.execPath, [tsc, ...opts, 'bad.ts'], proj);
     assert.notEqual(bad.code, 0);
     assert.match(bad.out, /Type 'number\[\]' is not assignable to type 'string'/);

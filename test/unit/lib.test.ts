@@ -154,6 +154,20 @@ export const y: string = evaluate(r, 'beta', [1]);
   });
 });
 
+describe('results files from other languages', () => {
+  it("the README's Python example reads a committed results file (skipped without python3)", function () {
+    const readme = fs.readFileSync(path.join(ROOT, 'README.md'), 'utf8');
+    const example = /```python\n([\s\S]*?)```/.exec(readme)![1];
+    const r = spawnSync('python3', ['-c', example], { cwd: ROOT, encoding: 'utf8' });
+    if (r.error) {
+      console.log('    (python3 not found: the README Python example was not run)');
+      this.skip();
+    }
+    assert.equal(r.status, 0, r.stderr);
+    assert.match(r.stdout, /^logistic 1\.85\d* ± 0\.00\d+ 95% CI \[1\.84\d*, 1\.86\d*\]/);
+  });
+});
+
 describe('library: evaluate from the report alone', function () {
   this.timeout(120000);
   const reports: Record<string, FitReport> = {};

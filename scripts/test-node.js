@@ -45,11 +45,12 @@ function installMajor(major) {
 const found = new Map();   // major -> binary
 if (!others) found.set(own, process.execPath);
 const absent = [];
+let installFailed = 0;   // with --install, a major that could not be fetched is a failure: it was meant to be tested
 for (const major of MAJORS) {
   if (major === own) continue;
   if (!fs.existsSync(binOf(major)) && install) {
     const why = installMajor(major);
-    if (why) { absent.push(`Node ${major}: ${why}`); continue; }
+    if (why) { absent.push(`Node ${major}: ${why}`); installFailed++; continue; }
   }
   const v = fs.existsSync(binOf(major)) ? versionOf(binOf(major)) : null;
   if (v && Number(v.slice(1).split('.')[0]) === major) found.set(major, binOf(major));
@@ -75,6 +76,7 @@ for (const [major, bin] of [...found].sort((a, b) => a[0] - b[0])) {
 console.log('\nnode       passed  failed   seconds');
 for (const r of rows) console.log(`${r.version.padEnd(10)} ${String(r.p).padStart(6)}  ${String(r.f).padStart(6)}  ${r.secs.toFixed(1).padStart(8)}`);
 for (const a of absent) console.log(a);
+failed += installFailed;
 if (!rows.length) { console.log('no Node to test on (with --others and nothing installed)'); failed = Math.max(failed, install ? 1 : 0); }
 console.log(`${passed} passed, ${failed} failed`);
 process.exit(failed ? 1 : 0);

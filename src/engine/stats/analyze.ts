@@ -7,7 +7,8 @@ import type { ModelAnalysisInput } from './api';
 import { covarianceFromJacobian, leverage } from './covariance';
 import { chi2Sf, normalQuantile, tQuantile, tTwoSidedP, normalSf } from './distributions';
 import { informationCriteria } from './information';
-import { durbinWatson, normalityTest, runsTest } from './residualTests';
+import { durbinWatson, normalityTest } from './residualTests';
+import { runsByPosition, type PositionRuns } from './runs';
 import { profileIntervals } from './profile';
 import { crossValidate, sortedOrder } from './crossval';
 import { computeBand, computeInverse, computePrediction, predictionPoint, variableRange, type PredictionContext } from './predict';
@@ -295,7 +296,8 @@ export function analyzeModel(input: ModelAnalysisInput): ModelReport {
   const rOrdered = new Float64Array(n);
   for (let t = 0; t < n; t++) rOrdered[t] = r[order[t]];
   const allZero = rOrdered.every((v) => Math.abs(v) <= 1e-14 * (Math.abs(y[0]) + 1));
-  const runs = allZero ? null : runsTest(rOrdered);
+  // replicates at the same x form one position (the sign of their mean residual); exact p for small counts
+  const runs = allZero ? null : runsByPosition(r, X, order);
   const normality = allZero ? null : normalityTest(rOrdered);
   const tests: ResidualTests = {
     runs: runs ? { runs: runs.runs, expected: runs.expected, z: runs.z, p: runs.p } : null,
@@ -325,6 +327,8 @@ export function analyzeModel(input: ModelAnalysisInput): ModelReport {
 
   // ------------------------------------------------------------ profile-likelihood intervals (nonlinear only)
   const openProfile = new Set<number>();
+  /** parameters whose profile interval was computed to the end (both sides found or shown not to exist) */
+  const profiled = new Set<number>();
   // (an exact fit, s = 0, has no profile to walk: its intervals are degenerate and profileCi stays null)
   if (!input.linear && opts.profile !== false && dof > 0 && Number.isFinite(qWald) && scale > 0) {
     const seconds = opts.profileSeconds ?? PROFILE_SECONDS;
@@ -338,7 +342,10 @@ export function analyzeModel(input: ModelAnalysisInput): ModelReport {
       if (!b) return;
       report.params[params[j]].profileCi = [b[0].value, b[1].value];
       if (b[0].status === 'timeout' || b[1].status === 'timeout') timedOut.push(params[j]);
-      else if (b[0].value === null || b[1].value === null) openProfile.add(j);
+      else {
+        profiled.add(j);
+        if (b[0].value === null || b[1].value === null) openProfile.add(j);
+      }
     });
     if (timedOut.length) {
       problems.push({
@@ -417,7 +424,7 @@ export function analyzeModel(input: ModelAnalysisInput): ModelReport {
   });
 
   // ------------------------------------------------------------ problems
-  detectProblems(input, report, { rank, dof, unidentifiable, se, openProfile, h, n, pFree });
+  detectProblems(input, report, { rank, dof, unidentifiable, se, openProfile, profiled, h, n, pFree, runs });
   return report;
 }
 
@@ -488,9 +495,28 @@ interface Facts {
   unidentifiable: number[];
   se: Float64Array;
   openProfile: Set<number>;
+  profiled: Set<number>;
   h: Float64Array;
   n: number;
   pFree: number;
+  runs: PositionRuns | null;
+}
+
+/**
+ * The ratio cvRmse / rmse expected under a correct model: for least squares the held-out residual of row i is
+ * e_i/(1 − h_i) (exact when each row is left out alone, and close for k-fold folds spread over x), so
+ * E[Σ e_cv²] = σ² Σ 1/(1 − h_i) while E[SSE] = σ²(n − p) (Allen 1974, PRESS). Nonlinear models use the leverages of the
+ * linearised model. Infinity when a leverage is 1 (a row that alone determines a parameter) or n ≤ p.
+ */
+export function expectedCvRatio(h: ArrayLike<number>, rank: number): number {
+  const n = h.length;
+  if (!(n > rank)) return Infinity;
+  let s = 0;
+  for (let i = 0; i < n; i++) {
+    if (!(h[i] < 1 - 1e-9)) return Infinity;
+    s += 1 / (1 - h[i]);
+  }
+  return Math.sqrt(s / (n - rank));
 }
 
 function detectProblems(input: ModelAnalysisInput, report: ModelReport, k: Facts): void {
@@ -516,21 +542,27 @@ function detectProblems(input: ModelAnalysisInput, report: ModelReport, k: Facts
         path: [...base, 'params', params[j]],
       });
     }
-    const rel = pr.se !== null && pr.value !== 0 ? pr.se / Math.abs(pr.value) : null;
+    // judged on the interval, not on SE/|estimate| (zero is an ordinary value for an intercept or a blank-corrected
+    // asymptote): the profile interval does not close on a side. Models without a finished profile (profiling off or
+    // out of time) fall back to the Wald interval reaching relativeSe × |estimate| on both sides of a nonlinear
+    // parameter; linear models have exact intervals that always close, so they never get this problem.
     const open = k.openProfile.has(j);
-    if ((rel !== null && rel > th.relativeSe) || open) {
-      const why: string[] = [];
-      if (rel !== null && rel > th.relativeSe) why.push(`its standard error is ${fmt(100 * rel, 3)}% of the estimate (above ${fmt(100 * th.relativeSe, 3)}%)`);
+    const rel = pr.se !== null && pr.value !== 0 ? pr.se / Math.abs(pr.value) : null;
+    const fallback = !input.linear && !k.profiled.has(j) && rel !== null && rel > th.relativeSe;
+    if (open || fallback) {
+      let why: string;
       if (open) {
         const ci = pr.profileCi!;
-        const side = ci[0] === null && ci[1] === null ? 'on either side' : ci[0] === null ? 'below' : 'above';
-        why.push(`its profile-likelihood interval does not close ${side} the estimate`);
+        const side = ci[0] === null && ci[1] === null ? 'on either side of' : ci[0] === null ? 'below' : 'above';
+        why = `its ${fmt(100 * input.confidence, 3)}% profile-likelihood interval does not close ${side} the estimate (no value there is ruled out by the data)`;
+      } else {
+        why = `its standard error is ${fmt(100 * rel!, 3)}% of the estimate (above ${fmt(100 * th.relativeSe, 3)}%; no profile interval was computed to check)`;
       }
       problems.push({
         code: 'poorly-determined',
         severity: 'warning',
         message:
-          `${name}: ${params[j]} = ${fmt(pr.value)} is poorly determined — ${why.join(' and ')}. The data say little about its value; ` +
+          `${name}: ${params[j]} = ${fmt(pr.value)} is poorly determined — ${why}. The data say little about its value; ` +
           `consider fixing it, bounding it, a simpler model, or data over a range where it matters (e.g. further along the curve).`,
         path: [...base, 'params', params[j]],
       });
@@ -554,7 +586,7 @@ function detectProblems(input: ModelAnalysisInput, report: ModelReport, k: Facts
       const more = pairs.length > 4 ? ` and ${pairs.length - 4} more pair${pairs.length - 4 === 1 ? '' : 's'}` : '';
       problems.push({
         code: 'param-correlation',
-        severity: 'warning',
+        severity: 'info',
         message:
           `${name}: the estimates of ${listed.join(', ')}${more} are correlated beyond ±${th.paramCorrelation}. ` +
           `The data mainly determine a combination of ${pairs.length === 1 ? 'the two' : 'each pair'}, so each alone is uncertain and sensitive to the start. ` +
@@ -608,12 +640,16 @@ function detectProblems(input: ModelAnalysisInput, report: ModelReport, k: Facts
     }
   }
   const st = report.stats;
-  if (st.cvRmse !== null && st.rmse > 0 && st.cvRmse > th.cvRatio * st.rmse) {
+  // the expected ratio comes from the leverages; not repeated when overfit-params already fires (at p > n/3 the
+  // refits of a correct nonlinear model on so few rows are unstable, so the ratio says nothing more)
+  const cvExpected = paramsFired ? Infinity : expectedCvRatio(k.h, k.rank);
+  if (st.cvRmse !== null && st.rmse > 0 && Number.isFinite(cvExpected) && st.cvRmse > th.cvRatio * cvExpected * st.rmse) {
     problems.push({
       code: 'overfit-cv',
       severity: 'warning',
       message:
-        `${name}: the cross-validated RMSE (${fmt(st.cvRmse)}, ${st.cvFolds}-fold) is ${fmt(st.cvRmse / st.rmse, 3)} times the in-sample RMSE (${fmt(st.rmse)}; above ${th.cvRatio}× is flagged). ` +
+        `${name}: the cross-validated RMSE (${fmt(st.cvRmse)}, ${st.cvFolds}-fold) is ${fmt(st.cvRmse / st.rmse, 3)} times the in-sample RMSE (${fmt(st.rmse)}), ` +
+        `where a correct model on these x values gives about ${fmt(cvExpected, 3)} times (from the leverages; flagged above ${fmt(th.cvRatio * cvExpected, 3)} = cvRatio ${th.cvRatio} × expected). ` +
         `The model predicts left-out rows much worse than the rows it was fitted to — a sign of overfitting or of a few rows driving the fit. Try a simpler model, and look at the influential points.`,
       path: base,
     });
@@ -621,13 +657,15 @@ function detectProblems(input: ModelAnalysisInput, report: ModelReport, k: Facts
 
   // residual structure
   const tests = report.residualTests;
-  if (tests?.runs && tests.runs.p < th.runsP) {
-    const few = tests.runs.runs < tests.runs.expected;
+  const runs = k.runs;
+  if (runs && runs.p < th.runsP) {
+    const few = runs.runs < runs.expected;
+    const where = runs.replicatedRows > 0 ? `the ${runs.positions} x positions (replicates at the same x counted once, by the sign of their mean residual)` : `the residuals ordered by x`;
     problems.push({
       code: 'systematic-residuals',
       severity: 'warning',
       message:
-        `${name}: the residuals ordered by x have ${tests.runs.runs} runs of the same sign where about ${fmt(tests.runs.expected, 3)} are expected by chance (runs test p = ${fmt(tests.runs.p, 2)}, below ${th.runsP}). ` +
+        `${name}: ${where} have ${runs.runs} runs of the same sign where about ${fmt(runs.expected, 3)} are expected by chance (${runs.exact ? 'exact' : 'normal-approximation'} runs test p = ${fmt(runs.p, 2)}, below ${th.runsP}). ` +
         (few
           ? `Long stretches above and below the curve mean the model misses a systematic pattern in the data. Look at the residual plot and try a model of a different shape.`
           : `The signs alternate more than chance allows, which suggests correlated measurements or a periodic effect. Look at the residual plot.`),

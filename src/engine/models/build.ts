@@ -1,5 +1,6 @@
 // Turning a model entry of a fit spec into a compiled, bounded least-squares model, and fitting it with the right
 // strategy: linear least squares, LM from given starts, LM from self-starting estimates, or the generic multi-start.
+import { canonicalResult } from './canonical';
 import type { JsonPath, ModelSpec } from '../report';
 import type { CompiledFormula } from '../formula/types';
 import type { LsqProblem, SolveResult } from '../solve/types';
@@ -231,7 +232,15 @@ function better(a: FitResult, b: FitResult): FitResult {
 }
 
 /** Fits a built model: linear least squares, LM from the spec's starts, self-start, or the generic multi-start. */
+/** Fit a built model, then report a built-in's solution in its canonical parameters (models/canonical.ts). */
 export function fitModel(model: BuiltModel, data: FitData, opts: FitOptions = {}): FitResult {
+  const r = fitModelRaw(model, data, opts);
+  if (model.kind !== 'builtin') return r;
+  const canon = canonicalResult(model.builtin, model.params, model.fixed, model.lower, model.upper, modelProblem(model, data), r);
+  return canon === r ? r : { ...r, ...canon };
+}
+
+function fitModelRaw(model: BuiltModel, data: FitData, opts: FitOptions): FitResult {
   const problem = modelProblem(model, data);
   const p = model.params.length;
   const seconds = opts.seconds ?? 20;

@@ -161,10 +161,10 @@ const doubleExponential: BuiltinModel = {
   params: ['A1', 'k1', 'A2', 'k2'],
   description: 'Sum of two exponentials (bi-exponential decay); the self-start labels the slower phase 1.',
   meanings: {
-    A1: 'amplitude of phase 1 at x = 0 (units of y)',
-    k1: 'rate constant of phase 1 (per unit x)',
-    A2: 'amplitude of phase 2 at x = 0 (units of y)',
-    k2: 'rate constant of phase 2 (per unit x)',
+    A1: 'amplitude of the slow phase (phase 1) at x = 0 (units of y)',
+    k1: 'rate constant of the slow phase, reported below k2 (per unit x)',
+    A2: 'amplitude of the fast phase (phase 2) at x = 0 (units of y)',
+    k2: 'rate constant of the fast phase (per unit x)',
   },
   selfStartNote:
     'Curve peeling (method of residuals: log-linear fit of the tail, then of the early residuals; common practice in pharmacokinetics) plus a profile over (k1 < k2) with the amplitudes by least squares.',
@@ -317,10 +317,10 @@ const logistic4: BuiltinModel = {
   params: ['lower', 'upper', 'ec50', 'slope'],
   description: 'Four-parameter logistic dose–response curve in x (x > 0).',
   meanings: {
-    lower: 'response as x → 0 when slope > 0 (units of y)',
-    upper: 'response as x → ∞ when slope > 0 (units of y)',
+    lower: 'the lower asymptote, reported below upper: the response as x → 0 when slope > 0, as x → ∞ when slope < 0 (units of y)',
+    upper: 'the upper asymptote: the response as x → ∞ when slope > 0, as x → 0 when slope < 0 (units of y)',
     ec50: 'x at the midpoint between lower and upper (units of x, > 0)',
-    slope: 'steepness on a log-x scale (dimensionless)',
+    slope: 'steepness on a log-x scale: > 0 for a rising curve, < 0 for a falling one (dimensionless)',
   },
   lower: { ec50: 0 },
   selfStartNote:
@@ -491,7 +491,7 @@ const gaussian: BuiltinModel = {
   formula: 'height*exp(-(x - center)^2/(2*width^2))',
   params: ['height', 'center', 'width'],
   description: 'Gaussian peak without baseline.',
-  meanings: { height: 'peak height (units of y)', center: 'peak position (units of x)', width: 'standard deviation of the peak; FWHM = 2.3548·width (units of x)' },
+  meanings: { height: 'peak height (units of y)', center: 'peak position (units of x)', width: 'standard deviation of the peak, reported > 0; FWHM = 2.3548·width (units of x)' },
   selfStartNote: 'Peak position from the largest |y|, then a profile over (center, width) with height by least squares (common practice).',
   selfStart(x, y) {
     const d = summarize(x, y, 3);
@@ -506,7 +506,7 @@ const lorentzian: BuiltinModel = {
   formula: 'height/(1 + ((x - center)/hwhm)^2)',
   params: ['height', 'center', 'hwhm'],
   description: 'Lorentzian (Cauchy) peak without baseline.',
-  meanings: { height: 'peak height (units of y)', center: 'peak position (units of x)', hwhm: 'half width at half maximum (units of x)' },
+  meanings: { height: 'peak height (units of y)', center: 'peak position (units of x)', hwhm: 'half width at half maximum, reported > 0 (units of x)' },
   selfStartNote: 'Peak position from the largest |y|, then a profile over (center, hwhm) with height by least squares (common practice).',
   selfStart(x, y) {
     const d = summarize(x, y, 3);

@@ -59,7 +59,8 @@ export const FACT_CODES = new Set([
   'cv-incomplete', 'profile-incomplete', // time budgets
   // the profile interval does not close: an exact property of the likelihood on these data (no threshold to tune);
   // its rate on correct models is published, and it is high only where the data truly do not pin a parameter
-  'poorly-determined',
+  // (rate-not-determined is the same rule for a rate of a built-in, in the trade's words)
+  'poorly-determined', 'rate-not-determined',
 ]);
 
 export interface Design {

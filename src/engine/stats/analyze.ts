@@ -13,6 +13,7 @@ import { profileIntervals } from './profile';
 import { crossValidate, sortedOrder } from './crossval';
 import { computeBand, computeInverse, computePrediction, predictionPoint, variableRange, type PredictionContext } from './predict';
 import { fmt } from './format';
+import { roleOf } from '../models/roles';
 
 /** LsqProblem over the given data for a compiled formula. */
 export function lsqProblem(input: Pick<ModelAnalysisInput, 'compiled' | 'X' | 'y' | 'w' | 'params'>): LsqProblem {
@@ -173,11 +174,15 @@ export function analyzeModel(input: ModelAnalysisInput): ModelReport {
       });
     }
     const singular = res.termination === 'singular' && res.unidentifiable.length > 0;
-    if (singular) {
+    // a plateau the data never reach: the solver chases the asymptote off to huge values (singular or no convergence)
+    const plateau = badRows.length === 0 ? runawayAsymptote(input, theta, res.unidentifiable) : null;
+    if (plateau) {
+      problems.push(noPlateau(input.name, plateau, base));
+    } else if (singular) {
       const names = res.unidentifiable.map((j) => params[j]);
       problems.push(rankDeficient(input.name, names, res.rank, pFree, base));
     }
-    if (!res.converged && !singular) {
+    if (!res.converged && !singular && !plateau) {
       problems.push({
         code: 'no-convergence',
         severity: 'error',
@@ -440,6 +445,86 @@ function rankDeficient(name: string, names: string[], rank: number, pFree: numbe
   };
 }
 
+/** How far beyond the data an asymptote has to run (in spans of y) to count as "not reached" in a failed fit. */
+const RUNAWAY_SPANS = 10;
+
+interface Runaway {
+  param: string;
+  value: number;
+  side: 'upper' | 'lower';
+}
+
+/**
+ * An asymptote of a built-in that the data do not determine: unidentifiable at the solution, or run off more than
+ * RUNAWAY_SPANS ranges of y beyond the data (common practice: a plateau far outside the data is not measured by them).
+ */
+function runawayAsymptote(input: ModelAnalysisInput, theta: Float64Array, unidentifiable: number[]): Runaway | null {
+  if (input.kind !== 'builtin') return null;
+  const y = input.y;
+  const ylo = minOf(y);
+  const yhi = maxOf(y);
+  const span = yhi - ylo;
+  for (let j = 0; j < input.params.length; j++) {
+    if (input.fixed[j] || roleOf(input.builtin, input.params[j]) !== 'asymptote') continue;
+    const a = theta[j];
+    const away = !Number.isFinite(a) || (span > 0 && (a > yhi + RUNAWAY_SPANS * span || a < ylo - RUNAWAY_SPANS * span));
+    if (away || unidentifiable.includes(j)) return { param: input.params[j], value: a, side: a >= (ylo + yhi) / 2 ? 'upper' : 'lower' };
+  }
+  return null;
+}
+
+function noPlateau(name: string, r: Runaway, base: (string | number)[]): Problem {
+  return {
+    code: 'no-plateau',
+    severity: 'error',
+    message:
+      `${name}: the data do not reach the ${r.side} plateau: ${r.param} is not determined (the fit ran it to ${fmt(r.value)}, far beyond the data, and could not settle). ` +
+      `Bound it (min/max in params), fix it ("fixed": true with a start), or fit data that reach the plateau; a model without that plateau (e.g. an exponential) may describe these data.`,
+    path: [...base, 'params', r.param],
+  };
+}
+
+function openSide(pr: ParamReport): string {
+  const ci = pr.profileCi!;
+  return ci[0] === null && ci[1] === null ? 'on either side' : ci[0] === null ? 'below' : 'above';
+}
+
+/** An asymptote more than one range of y beyond the data: the plateau is extrapolated, not measured (common practice). */
+function beyondData(y: ArrayLike<number>, a: number): boolean {
+  const lo = minOf(y);
+  const hi = maxOf(y);
+  const span = hi - lo;
+  return span > 0 && (a > hi + span || a < lo - span);
+}
+
+function asymptoteNotReached(input: ModelAnalysisInput, param: string, pr: ParamReport, open: boolean): Problem {
+  const lo = minOf(input.y);
+  const hi = maxOf(input.y);
+  const side = pr.value >= (lo + hi) / 2 ? 'upper' : 'lower';
+  const why = open
+    ? `is not determined — its profile-likelihood interval does not close ${openSide(pr)} the estimate`
+    : `lies beyond the data (y from ${fmt(lo)} to ${fmt(hi)}), so it is extrapolated from the curve's shape, not measured`;
+  return {
+    code: 'asymptote-not-reached',
+    severity: 'warning',
+    message:
+      `${input.name}: the data do not reach the ${side} plateau: ${param} = ${fmt(pr.value)} ${why}. ` +
+      `Bound it, fix it, or fit data that reach the plateau.`,
+    path: ['models', input.index, 'params', param],
+  };
+}
+
+function rateNotDetermined(input: ModelAnalysisInput, param: string, pr: ParamReport): Problem {
+  return {
+    code: 'rate-not-determined',
+    severity: 'warning',
+    message:
+      `${input.name}: the rate ${param} = ${fmt(pr.value)} is not determined — its profile-likelihood interval does not close ${openSide(pr)} the estimate, so the data do not show how fast the curve changes there ` +
+      `(too few points on the rising or falling part). Add data where the curve changes, bound or fix ${param}, or use a simpler model.`,
+    path: ['models', input.index, 'params', param],
+  };
+}
+
 function minOf(a: ArrayLike<number>): number {
   let m = Infinity;
   for (let i = 0; i < a.length; i++) if (a[i] < m) m = a[i];
@@ -526,7 +611,10 @@ function detectProblems(input: ModelAnalysisInput, report: ModelReport, k: Facts
   const name = input.name;
   const p = params.length;
 
-  if (k.unidentifiable.length > 0) problems.push(rankDeficient(name, k.unidentifiable.map((j) => params[j]), k.rank, k.pFree, base));
+  if (k.unidentifiable.length > 0) {
+    const plateau = runawayAsymptote(input, Float64Array.from(report.paramOrder, (q) => report.params[q].value), k.unidentifiable);
+    problems.push(plateau ? noPlateau(name, plateau, base) : rankDeficient(name, k.unidentifiable.map((j) => params[j]), k.rank, k.pFree, base));
+  }
 
   for (let j = 0; j < p; j++) {
     const pr = report.params[params[j]];
@@ -549,6 +637,15 @@ function detectProblems(input: ModelAnalysisInput, report: ModelReport, k: Facts
     const open = k.openProfile.has(j);
     const rel = pr.se !== null && pr.value !== 0 ? pr.se / Math.abs(pr.value) : null;
     const fallback = !input.linear && !k.profiled.has(j) && rel !== null && rel > th.relativeSe;
+    const role = roleOf(input.builtin, params[j]);
+    if (open && role) {
+      problems.push(role === 'asymptote' ? asymptoteNotReached(input, params[j], pr, true) : rateNotDetermined(input, params[j], pr));
+      continue;
+    }
+    if (role === 'asymptote' && beyondData(input.y, pr.value)) {
+      problems.push(asymptoteNotReached(input, params[j], pr, false));
+      continue;
+    }
     if (open || fallback) {
       let why: string;
       if (open) {

@@ -4,12 +4,14 @@ import { serializeReport, writeResults, OutputError } from '../engine/run';
 import { isErrorReport, type RunResult } from '../engine/report';
 import { positiveInt, UsageError, type Parsed } from './args';
 import { expandSpecs } from './expand';
-import { errorText, summaryText } from './format';
+import { errorText, naturalCompare, summaryText } from './format';
 import { shown, type Io } from './io';
 import { defaultJobs, runAll } from './pool';
 
 export function specsOf(parsed: Parsed, io: Io, command: string): { specs: string[]; jobs: number } {
-  const specs = expandSpecs(parsed.positionals, io.cwd);
+  // the human summary comes in natural order of the names (chick2 before chick10); --json keeps the order given
+  const given = expandSpecs(parsed.positionals, io.cwd);
+  const specs = parsed.options.json === true ? given : given.slice().sort(naturalCompare);
   if (!specs.length) throw new UsageError(`'${command}' needs at least one spec file, e.g. \`curvewright ${command} examples/*.fitspec.json\``);
   const jobs = parsed.options.jobs !== undefined ? positiveInt(String(parsed.options.jobs), 'jobs') : defaultJobs();
   return { specs, jobs };
@@ -59,7 +61,7 @@ export async function fitCommand(parsed: Parsed, io: Io): Promise<number> {
       io.err(`${name}: error: ${e instanceof OutputError ? e.message : (e as Error).message}`);
     }
     if (json) io.out(serializeReport(result));
-    else io.out(summaryText(result, name, written ? shown(written, io.cwd) : null) + '\n');
+    else io.out(summaryText(result, name, written ? shown(written, io.cwd) : null, parsed.options.verbose === true) + '\n');
   });
   return code;
 }

@@ -25,16 +25,44 @@ function table(rows: string[][], indent = '  '): string[] {
   return rows.map(r => indent + r.map((c, j) => (j === r.length - 1 ? c : c.padEnd(widths[j]))).join('  ').trimEnd());
 }
 
-function paramText(m: ModelReport, max = 4): string {
-  const names = m.paramOrder;
-  const parts = names.slice(0, max).map(n => {
+/** Natural order of names: digit runs compare as numbers (chick2 before chick10), the rest as text. */
+export function naturalCompare(a: string, b: string): number {
+  const ta = a.match(/\d+|\D+/g) ?? [];
+  const tb = b.match(/\d+|\D+/g) ?? [];
+  for (let i = 0; i < Math.min(ta.length, tb.length); i++) {
+    const x = ta[i];
+    const y = tb[i];
+    if (x === y) continue;
+    const dx = /^\d/.test(x);
+    const dy = /^\d/.test(y);
+    if (dx && dy) {
+      const nx = x.replace(/^0+(?=\d)/, '');
+      const ny = y.replace(/^0+(?=\d)/, '');
+      if (nx.length !== ny.length) return nx.length - ny.length;
+      if (nx !== ny) return nx < ny ? -1 : 1;
+      if (x.length !== y.length) return x.length - y.length;
+      continue;
+    }
+    return x < y ? -1 : 1;
+  }
+  return ta.length - tb.length;
+}
+
+/** Every parameter as "name=value±SE", wrapped into lines of at most `width` characters. */
+export function paramLines(m: ModelReport, width = 60): string[] {
+  const parts = m.paramOrder.map(n => {
     const p = m.params[n];
     if (!p) return `${n}=—`;
     const se = p.fixed ? ' (fixed)' : p.se !== null && Number.isFinite(p.se) ? `±${num(p.se, 2)}` : '';
     return `${n}=${num(p.value)}${se}`;
   });
-  if (names.length > max) parts.push(`… (+${names.length - max})`);
-  return parts.join(' ');
+  const lines: string[] = [];
+  for (const part of parts) {
+    const last = lines.length - 1;
+    if (last >= 0 && lines[last].length + 1 + part.length <= width) lines[last] += ` ${part}`;
+    else lines.push(part);
+  }
+  return lines.length ? lines : [''];
 }
 
 /** "file:line:column" (or "file row N", or "file") for a problem: the spec, or a data file named relative to the spec's folder. */
@@ -81,8 +109,8 @@ export function errorText(r: ErrorReport, specShown: string): string {
   return lines.join('\n');
 }
 
-/** The summary `fit` prints for one spec. */
-export function summaryText(r: FitReport, specShown: string, written: string | null): string {
+/** The summary `fit` prints for one spec; `verbose` lists the info notes too (otherwise only their count). */
+export function summaryText(r: FitReport, specShown: string, written: string | null, verbose = false): string {
   const out: string[] = [];
   out.push(`${specShown}${r.title ? ` — ${r.title}` : ''}`);
   const d = r.data;
@@ -95,9 +123,14 @@ export function summaryText(r: FitReport, specShown: string, written: string | n
   for (const m of r.models) {
     const status = m.status === 'converged' ? 'converged' : `FAILED (${m.termination})`;
     const counted = m.problems.filter(p => p.severity !== 'info').length;
-    rows.push([r.best === m.name ? '*' : '', m.name, status, paramText(m), num(m.stats.aicc, 5), num(m.stats.r2, 5), String(counted)]);
+    const [first, ...rest] = paramLines(m);
+    rows.push([r.best === m.name ? '*' : '', m.name, status, first, num(m.stats.aicc, 5), num(m.stats.r2, 5), String(counted)]);
+    for (const more of rest) rows.push(['', '', '', more, '', '', '']);
   }
   out.push(...table(rows));
+  for (const t of r.comparison?.fTests ?? []) {
+    out.push(`  F-test ${t.simpler} vs ${t.richer}: F = ${num(t.F)} on ${t.df1} and ${t.df2} df, p = ${num(t.p, 3)}`);
+  }
   if (r.comparison && r.best) out.push(`  best: ${r.best}${r.comparison.reason ? ` — ${r.comparison.reason}` : ''}`);
   const best = r.models.find(m => m.name === r.best) ?? r.models.find(m => m.status === 'converged');
   if (best) {
@@ -109,7 +142,7 @@ export function summaryText(r: FitReport, specShown: string, written: string | n
       const roots = inv.roots.length
         ? inv.roots.map(rt => `${num(rt.x)} [${num(rt.interval[0])}, ${num(rt.interval[1])}]`).join(' or ')
         : 'no x in range gives this y';
-      out.push(`  solveFor (${best.name}) y = ${num(inv.y, 6)}: x = ${roots}${inv.extrapolated ? ' (extrapolated)' : ''}`);
+      out.push(`  inverse prediction (${best.name}) at y = ${num(inv.y, 6)}: back-calculated x = ${roots}${inv.extrapolated ? ' (extrapolated)' : ''}`);
     }
   }
   if (r.expect.length) {
@@ -118,8 +151,10 @@ export function summaryText(r: FitReport, specShown: string, written: string | n
   }
   // one line per (model, code): the first message, and how many more of the same kind
   const groups = new Map<string, { problem: Problem; model?: string; count: number }>();
+  let infos = 0;
   for (const x of allProblems(r)) {
-    if (x.problem.severity === 'info') continue;
+    if (x.problem.severity === 'info') infos++;
+    if (x.problem.severity === 'info' && !verbose) continue;
     const key = `${x.model ?? ''}\u0000${x.problem.code}\u0000${x.problem.severity}`;
     const g = groups.get(key);
     if (g) g.count++;
@@ -133,6 +168,7 @@ export function summaryText(r: FitReport, specShown: string, written: string | n
     out.push(`  ${problem.severity}${named ? ` (${model})` : ''}: ${problem.message} [${problem.code}]${more}`);
   }
   if (list.length > shownGroups.length) out.push(`  … and ${list.length - shownGroups.length} more kinds of problem (see the results file or --json)`);
+  if (infos && !verbose) out.push(`  ${infos} info note${infos === 1 ? '' : 's'} (--verbose shows ${infos === 1 ? 'it' : 'them'})`);
   if (written) out.push(`  wrote ${written}`);
   return out.join('\n');
 }

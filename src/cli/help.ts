@@ -22,7 +22,7 @@ export const EXIT_CODES = [
 export const COMMANDS: CommandDef[] = [
   {
     name: 'fit',
-    usage: 'curvewright fit <spec...> [--json] [--jobs N]',
+    usage: 'curvewright fit <spec...> [--json] [--verbose] [--jobs N]',
     summary: 'fit every model of each spec, write its results file, print a summary',
     details: [
       'Each spec\'s "output" results file is written atomically (a temporary file, then rename).',
@@ -30,7 +30,8 @@ export const COMMANDS: CommandDef[] = [
       'Exits 0 when every spec ran, even if a model failed to converge (the summary says so); 2 for bad input.',
     ],
     options: [
-      { name: 'json', help: 'print one FitReport per line (JSON), in the order the specs were given, instead of the summary' },
+      { name: 'json', help: 'print one FitReport per line (JSON), in the order the specs were given, instead of the summary (which lists specs in natural order: chick2 before chick10)' },
+      { name: 'verbose', help: 'list the info notes in the summary too (by default only their count is shown)' },
       { name: 'jobs', short: 'j', value: true, meta: 'N', help: 'run up to N specs at once on worker threads (default: number of CPUs)' },
       HELP,
     ],

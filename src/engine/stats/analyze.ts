@@ -399,7 +399,7 @@ export function analyzeModel(input: ModelAnalysisInput): ModelReport {
       problems.push({
         code: 'inverse-no-root',
         severity: 'warning',
-        message: `${input.name} has several x variables (${input.variables.join(', ')}); solving for x at y = ${fmt(yv)} needs a single x variable.`,
+        message: `${input.name} has several x variables (${input.variables.join(', ')}); inverse prediction (the back-calculated x at y = ${fmt(yv)}) needs a single x variable.`,
         path: ['solveFor', k],
       });
       return;
@@ -412,7 +412,7 @@ export function analyzeModel(input: ModelAnalysisInput): ModelReport {
         code: 'inverse-no-root',
         severity: 'warning',
         message:
-          `${input.name} does not reach y = ${fmt(yv)} within or near the data range (${input.variables[0]} from ${fmt(lo)} to ${fmt(hi)}), so no x is reported for it. ` +
+          `${input.name} does not reach y = ${fmt(yv)} within or near the data range (${input.variables[0]} from ${fmt(lo)} to ${fmt(hi)}), so no x is back-calculated for it (inverse prediction). ` +
           `Check that the value is inside the range of the curve (fitted ${fmt(minOf(f))} to ${fmt(maxOf(f))}) and in the same units as y.`,
         path: ['solveFor', k],
       });
@@ -422,7 +422,7 @@ export function analyzeModel(input: ModelAnalysisInput): ModelReport {
         severity: 'warning',
         message:
           `${input.name} reaches y = ${fmt(yv)} only outside the data range (at ${input.variables[0]} = ${inv.roots.map((rt) => fmt(rt.x)).join(', ')}; data from ${fmt(lo)} to ${fmt(hi)}). ` +
-          `The value is extrapolated from the model's shape; extend the measured range (e.g. add standards) to read it reliably.`,
+          `The back-calculated x is extrapolated from the model's shape; extend the measured range (e.g. add standards) to read it reliably.`,
         path: ['solveFor', k],
       });
     }

@@ -59,9 +59,15 @@ export const FACT_CODES = new Set([
   'cv-incomplete', 'profile-incomplete', // time budgets
   // the profile interval does not close: an exact property of the likelihood on these data (no threshold to tune);
   // its rate on correct models is published, and it is high only where the data truly do not pin a parameter
-  // (rate-not-determined is the same rule for a rate of a built-in, in the trade's words)
-  'poorly-determined', 'rate-not-determined',
+  // (rate-not-determined and asymptote-not-reached with an open interval are the same rule for a rate or a plateau
+  // of a built-in, in the trade's words; the asymptote beyond the data is a threshold rule, counted on its own)
+  'poorly-determined', 'rate-not-determined', 'asymptote-not-reached',
 ]);
+
+/** The key a problem is counted under: its code, with the threshold variant of asymptote-not-reached apart. */
+export function alarmKey(code: string, message: string): string {
+  return code === 'asymptote-not-reached' && /extrapolated from the curve's shape/.test(message) ? 'asymptote-not-reached (beyond the data)' : code;
+}
 
 export interface Design {
   /** rows in the design (levels × replicates) */
@@ -168,7 +174,7 @@ export function tally(cell: Cell, report: FitReport): void {
   const all = [...report.problems, ...m.problems];
   const alarm = new Set<string>();
   const info = new Set<string>();
-  for (const pr of all) (pr.severity === 'info' ? info : alarm).add(pr.code);
+  for (const pr of all) (pr.severity === 'info' ? info : alarm).add(alarmKey(pr.code, pr.message));
   for (const c of alarm) cell.alarms[c] = (cell.alarms[c] ?? 0) + 1;
   for (const c of info) cell.infos[c] = (cell.infos[c] ?? 0) + 1;
   if (verdictOf(report, 'sim.fitspec.json', true).failures.length === 0) cell.strictPass++;

@@ -12,11 +12,11 @@ type Schema = Record<string, unknown>;
 
 const THRESHOLD_TEXT: Record<(typeof THRESHOLD_KEYS)[number], string> = {
   paramCorrelation: '|r| between two parameter estimates above which they are reported as correlated.',
-  relativeSe: 'Relative standard error (se/|value|) above which a parameter is reported as poorly determined.',
-  cvRatio: 'Cross-validated RMSE divided by in-sample RMSE above which a model is flagged as overfitting.',
+  relativeSe: 'Fallback only: for a nonlinear parameter whose profile interval was not computed, the relative standard error (se/|value|) above which it is reported as poorly determined.',
+  cvRatio: 'Multiple of the cvRMSE/RMSE ratio a correct model gives on these x values (from the leverages) above which a model is flagged as overfitting.',
   minDof: 'Fewer residual degrees of freedom than this is flagged as overfitting.',
   paramsPerPoint: 'More parameters than n times this is flagged as overfitting.',
-  runsP: 'Runs-test p-value below which the residuals are reported as systematic (a pattern the model misses).',
+  runsP: 'Runs-test p-value (exact up to 200 x positions; replicates at one x count once) below which the residuals are reported as systematic (a pattern the model misses).',
   normalityP: 'Normality-test p-value below which the residuals are reported as strongly non-normal.',
   cooksFactor: "Cook's distance above this multiple of 1/n marks an influential point (4 gives the usual 4/n).",
   linearHint: '|r| of y with x at or above which a straight line is suggested.',

@@ -72,9 +72,9 @@ export interface FitSpec {
 export interface Thresholds {
   /** |r| between two parameter estimates above which they are reported as correlated */
   paramCorrelation: number;
-  /** relative standard error above which a parameter is poorly determined */
+  /** fallback for a nonlinear parameter without a profile interval: relative standard error above which it is poorly determined */
   relativeSe: number;
-  /** cross-validated RMSE / in-sample RMSE above which the model is flagged as overfitting */
+  /** multiple of the cvRMSE / RMSE ratio a correct model gives (from the leverages) above which the model is flagged as overfitting */
   cvRatio: number;
   /** fewer residual degrees of freedom than this is overfitting */
   minDof: number;

@@ -24,7 +24,7 @@ import { FormulaError } from './formula/types';
 import { formulaIdentifiers } from './formula';
 import { parseSpecText, validateSpec, locatePath } from './spec';
 import type { NormalizedSpec } from './spec/types';
-import { DataError, prepareData, readHeader, readTable } from './data';
+import { DataError, prepareData, readHeader, readTable, whereTextColumns } from './data';
 import type { Table } from './data/types';
 import { buildModel, fitModel } from './models';
 import { analyzeModel, compareModels, dataCorrelation, resolveThresholds } from './stats';
@@ -109,13 +109,21 @@ export function columnsNeeded(spec: NormalizedSpec, header: string[]): string[] 
   if (spec.data.weight) texts.push({ text: spec.data.weight, logic: false });
   if (spec.data.where) texts.push({ text: spec.data.where, logic: true });
   const columns = new Set(header);
+  // columns a where filter compares with quoted text are read as text (textColumnsNeeded), not as numbers
+  const textInWhere = new Set(whereTextColumns(spec.data.where));
   for (const { text, logic } of texts) {
     if (columns.has(text)) {
       wanted.add(text);
       continue;
     }
-    for (const id of formulaIdentifiers(text, { logic })) if (columns.has(id.name)) wanted.add(id.name);
+    for (const id of formulaIdentifiers(text, { logic })) if (columns.has(id.name) && !(logic && textInWhere.has(id.name))) wanted.add(id.name);
   }
+  return header.filter(c => wanted.has(c));
+}
+
+/** Columns of the CSV read as text: those a where filter compares with quoted text. */
+export function textColumnsNeeded(spec: NormalizedSpec, header: string[]): string[] {
+  const wanted = new Set(whereTextColumns(spec.data.where));
   return header.filter(c => wanted.has(c));
 }
 
@@ -224,7 +232,7 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
 
   // 3. data
   progress(`reading ${spec.data.fileGiven}`);
-  const table = await readTable(spec.data.file, { columns: columnsNeeded(spec, header), ...readOpts, badRows: spec.data.badRows });
+  const table = await readTable(spec.data.file, { columns: columnsNeeded(spec, header), textColumns: textColumnsNeeded(spec, header), ...readOpts, badRows: spec.data.badRows });
   const prepared = prepareData(spec, table);
   const dataProblems = dedupe([...table.problems, ...prepared.problems]);
   if (dataProblems.some(p => p.severity === 'error')) return fromProblems(name, [...specProblems, ...dataProblems]);

@@ -15,6 +15,8 @@ export function interpret(node: Node, env: Record<string, number>): number {
   switch (node.type) {
     case 'num':
       return node.value;
+    case 'str':
+      throw new Error('test: a text literal has no numeric value');
     case 'ident':
       if (!node.quoted && node.name === 'pi') return Math.PI;
       if (!node.quoted && node.name === 'e') return Math.E;

@@ -24,6 +24,8 @@ export interface ReadOptions {
 export interface ReadTableOptions extends ReadOptions {
   /** columns to parse as numbers (other columns are skipped) */
   columns: string[];
+  /** columns kept as text, trimmed, never dropped for their content (group ids, text compared in data.where) */
+  textColumns?: string[];
   /** "drop" (default): drop a row with a bad cell and report it; "fail": throw a DataError */
   badRows?: 'drop' | 'fail';
   /** refuse files larger than this many bytes */
@@ -330,8 +332,11 @@ export async function readTable(file: string, opts: ReadTableOptions): Promise<T
   const badRows = opts.badRows ?? 'drop';
   const maxProblems = opts.maxProblems ?? 20;
   const wanted = [...new Set(opts.columns)];
+  const wantedText = [...new Set(opts.textColumns ?? [])];
   let header: string[] = [];
   let index: number[] = [];
+  let textIndex: number[] = [];
+  const textOut: string[][] = wantedText.map(() => []);
   const buffers = wanted.map(() => new Growing(new Float64Array(1024), (n) => new Float64Array(n)));
   const rowsOut = new Growing(new Int32Array(1024), (n) => new Int32Array(n));
   const linesOut = new Growing(new Int32Array(1024), (n) => new Int32Array(n));
@@ -369,7 +374,8 @@ export async function readTable(file: string, opts: ReadTableOptions): Promise<T
     header: (fields, line) => {
       header = checkHeader(fields, label, line);
       index = wanted.map((c) => header.indexOf(c));
-      const missing = wanted.filter((_, k) => index[k] === -1);
+      textIndex = wantedText.map((c) => header.indexOf(c));
+      const missing = [...wanted.filter((_, k) => index[k] === -1), ...wantedText.filter((c, k) => textIndex[k] === -1 && !wanted.includes(c))];
       if (missing.length > 0) {
         const parts = missing.map((m) => {
           const s = suggest(m, header);
@@ -393,7 +399,7 @@ export async function readTable(file: string, opts: ReadTableOptions): Promise<T
       }
       if (ragged.length > 0) return;
       if (fields.length < header.length) {
-        const firstMissing = index.find((ix) => ix >= fields.length);
+        const firstMissing = [...index, ...textIndex].find((ix) => ix >= fields.length);
         const column = firstMissing !== undefined ? header[firstMissing] : header[fields.length];
         drop(dataRow, line, column, `the row has ${fields.length} field${fields.length === 1 ? '' : 's'}, the header has ${header.length}`);
         return;
@@ -408,6 +414,7 @@ export async function readTable(file: string, opts: ReadTableOptions): Promise<T
         values[k] = v;
       }
       for (let k = 0; k < wanted.length; k++) buffers[k].push(values[k]);
+      for (let k = 0; k < wantedText.length; k++) textOut[k].push(fields[textIndex[k]].trim());
       rowsOut.push(dataRow);
       linesOut.push(line);
     },
@@ -431,10 +438,13 @@ export async function readTable(file: string, opts: ReadTableOptions): Promise<T
     });
   const out: Record<string, Float64Array> = {};
   wanted.forEach((c, k) => (out[c] = buffers[k].done()));
+  const text: Record<string, string[]> = {};
+  wantedText.forEach((c, k) => (text[c] = textOut[k]));
   return {
     file,
     columns: header,
     values: out,
+    ...(wantedText.length ? { text } : {}),
     row: rowsOut.done(),
     line: linesOut.done(),
     totalRows: dataRow,

@@ -1,6 +1,6 @@
 // Turns a read table into fit data: evaluates data.x variables, y, sigma or weight and the where filter, applies
 // exclusions, and drops (and reports) rows whose values are not finite.
-import { compileExpression, formulaIdentifiers } from '../formula';
+import { compileExpression, formatFormula, formulaIdentifiers, parseFormula, FormulaError, type Node } from '../formula';
 import type { JsonPath, Problem } from '../report';
 import type { NormalizedSpec } from '../spec/types';
 import type { Table } from './types';
@@ -25,6 +25,118 @@ export interface PreparedData {
   dropped: Table['dropped'];
   /** table problems plus those found here */
   problems: Problem[];
+}
+
+/** Prefix of the code columns that stand for text columns inside a compiled where filter (never a header name). */
+const TEXT_CODE = '\u0001text:';
+
+/** Columns a where filter compares with quoted text (state == "treated"): read as text. Empty when it does not parse. */
+export function whereTextColumns(where: string | undefined): string[] {
+  if (where === undefined) return [];
+  let ast: Node;
+  try {
+    ast = parseFormula(where, { logic: true });
+  } catch {
+    return [];
+  }
+  const out: string[] = [];
+  walkWhere(ast, null, (n, parent) => {
+    if (n.type === 'ident' && parent && parent.type === 'binary' && (parent.left.type === 'str' || parent.right.type === 'str') && !out.includes(n.name)) out.push(n.name);
+  });
+  return out;
+}
+
+function walkWhere(root: Node, parent0: Node | null, visit: (n: Node, parent: Node | null) => void): void {
+  const stack: [Node, Node | null][] = [[root, parent0]];
+  while (stack.length > 0) {
+    const [n, parent] = stack.pop() as [Node, Node | null];
+    visit(n, parent);
+    if (n.type === 'unary') stack.push([n.arg, n]);
+    else if (n.type === 'binary') stack.push([n.right, n], [n.left, n]);
+    else if (n.type === 'call') for (let k = n.args.length - 1; k >= 0; k--) stack.push([n.args[k], n]);
+  }
+}
+
+/**
+ * A where filter with its text comparisons replaced by comparisons of codes: each text column becomes a column of
+ * codes (index of the cell's value among the column's distinct values), each quoted text the code of that value
+ * (-1 when no row has it). A text column used any other way is a FormulaError naming the column and the operator.
+ */
+function encodeTextWhere(where: string, text: Record<string, string[]>, env: Map<string, Float64Array>, N: number): string {
+  const ast = parseFormula(where, { logic: true });
+  const textCols = new Set(whereTextColumns(where));
+  const codes = new Map<string, Map<string, number>>();
+  for (const c of textCols) {
+    const cells = text[c] ?? [];
+    const dict = new Map<string, number>();
+    const code = new Float64Array(N);
+    for (let i = 0; i < N; i++) {
+      let k = dict.get(cells[i]);
+      if (k === undefined) dict.set(cells[i], (k = dict.size));
+      code[i] = k;
+    }
+    codes.set(c, dict);
+    env.set(TEXT_CODE + c, code);
+  }
+  walkWhere(ast, null, (n, parent) => {
+    if (n.type !== 'ident' || !textCols.has(n.name)) return;
+    const isTextCmp = parent && parent.type === 'binary' && (parent.op === '==' || parent.op === '!=') && (parent.left.type === 'str' || parent.right.type === 'str');
+    if (isTextCmp) return;
+    const op = parent === null ? null : parent.type === 'call' ? `${parent.fn}()` : 'op' in parent ? parent.op : null;
+    const how = op === null ? 'as a condition on its own' : `with '${op}'`;
+    throw new FormulaError(
+      `column '${n.name}' holds text (it is compared with quoted text elsewhere in the filter) and is used ${how} at column ${n.span.start + 1} — ` +
+        `a text column can only be compared with == or != and a quoted string, e.g. ${n.name} == "treated"`,
+      n.span,
+    );
+  });
+  const rewrite = (n: Node): Node => {
+    switch (n.type) {
+      case 'binary': {
+        if ((n.op === '==' || n.op === '!=') && (n.left.type === 'str' || n.right.type === 'str')) {
+          const id = (n.left.type === 'ident' ? n.left : n.right) as Extract<Node, { type: 'ident' }>;
+          const lit = (n.left.type === 'str' ? n.left : n.right) as Extract<Node, { type: 'str' }>;
+          const code = codes.get(id.name)?.get(lit.value) ?? -1;
+          return { ...n, left: { type: 'ident', name: TEXT_CODE + id.name, quoted: true, span: id.span }, right: { type: 'num', value: code, span: lit.span } };
+        }
+        return { ...n, left: rewrite(n.left), right: rewrite(n.right) };
+      }
+      case 'unary':
+        return { ...n, arg: rewrite(n.arg) };
+      case 'call':
+        return { ...n, args: n.args.map(rewrite) };
+      default:
+        return n;
+    }
+  };
+  return formatFormula(rewrite(ast));
+}
+
+/**
+ * A where column used with a numeric operator whose cells are mostly text (most of its rows were dropped as 'not a
+ * number'): an error naming the column and the operator, with the fix (compare it with quoted text).
+ */
+function textMetNumber(where: string, table: Table, textCols: string[]): { column: string; op: string; sample: string } | null {
+  let ast: Node;
+  try {
+    ast = parseFormula(where, { logic: true });
+  } catch {
+    return null;
+  }
+  const uses = new Map<string, string>();
+  walkWhere(ast, null, (n, parent) => {
+    if (n.type !== 'ident' || textCols.includes(n.name) || uses.has(n.name)) return;
+    const op = parent === null ? 'as a condition' : parent.type === 'call' ? `${parent.fn}()` : 'op' in parent ? parent.op : 'as a condition';
+    uses.set(n.name, op);
+  });
+  for (const [column, op] of uses) {
+    const bad = table.dropped.filter((d) => d.column === column && d.reason.startsWith('not a number'));
+    if (bad.length > 0 && bad.length >= table.row.length) {
+      const m = /^not a number: '(.*?)'/.exec(bad[0].reason);
+      return { column, op, sample: m ? m[1] : '' };
+    }
+  }
+  return null;
 }
 
 /** Names of data columns an expression text uses (a text that does not parse is taken as one column name). */
@@ -143,7 +255,33 @@ export function prepareData(spec: NormalizedSpec, table: Table): PreparedData {
   });
   if (yAll && !env.has('y')) env.set('y', yAll);
   const weightAll = d.weight !== undefined ? evaluate(d.weight, false, ['data', 'weight'], 'data.weight') : null;
-  const whereAll = d.where !== undefined ? evaluate(d.where, true, ['data', 'where'], 'data.where') : null;
+  const whereTextCols = whereTextColumns(d.where);
+  let whereText = d.where;
+  if (d.where !== undefined && whereTextCols.length > 0) {
+    try {
+      whereText = encodeTextWhere(d.where, table.text ?? {}, env, N);
+    } catch (e) {
+      problems.push({
+        code: 'data-expression',
+        severity: 'error',
+        message: `data.where ${JSON.stringify(d.where)} cannot be evaluated: ${e instanceof Error ? e.message : String(e)}`,
+        path: ['data', 'where'],
+      });
+      whereText = undefined;
+    }
+  }
+  if (d.where !== undefined) {
+    const met = textMetNumber(d.where, table, whereTextCols);
+    if (met)
+      problems.push({
+        code: 'text-column-operator',
+        severity: 'error',
+        message: `data.where uses column '${met.column}' with ${met.op.endsWith(')') ? met.op : `'${met.op}'`}, but the column holds text (e.g. '${met.sample}') — ` +
+          `compare a text column with == or != and a quoted string, e.g. ${met.column} == "${met.sample || 'treated'}"`,
+        path: ['data', 'where'],
+      });
+  }
+  const whereAll = whereText !== undefined ? evaluate(whereText, true, ['data', 'where'], 'data.where') : null;
 
   const empty = (): PreparedData => ({
     variables,

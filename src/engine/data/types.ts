@@ -9,6 +9,8 @@ export interface Table {
   /** the columns that were asked for, parsed strictly as numbers; length = kept rows. NaN never appears:
    *  a bad cell in a requested column drops the row (reported in `dropped`) or fails the read. Other columns are not parsed. */
   values: Record<string, Float64Array>;
+  /** the columns asked for as text (ReadTableOptions.textColumns): each kept row's cell, trimmed, as written */
+  text?: Record<string, string[]>;
   /** 1-based data row of each kept row (first row after the header is 1) */
   row: Int32Array;
   /** 1-based file line of each kept row */

@@ -21,6 +21,7 @@ export interface IdentUse {
 export function identUses(node: Node, out: IdentUse[] = []): IdentUse[] {
   switch (node.type) {
     case 'num':
+    case 'str':
       break;
     case 'ident':
       if (node.quoted || !isConstantName(node.name)) out.push({ name: node.name, span: node.span, quoted: !!node.quoted });

@@ -31,6 +31,7 @@ function prec(node: Node): number {
     case 'num':
       return node.value < 0 || Object.is(node.value, -0) || !Number.isFinite(node.value) ? ATOM : ATOM;
     case 'ident':
+    case 'str':
     case 'call':
       return ATOM;
     case 'unary':
@@ -50,6 +51,8 @@ export function formatFormula(node: Node): string {
   switch (node.type) {
     case 'num':
       return formatNumber(node.value);
+    case 'str':
+      return '"' + node.value.replace(/"/g, '""') + '"';
     case 'ident':
       return needsQuotes(node.name, node.quoted) ? '`' + node.name.replace(/`/g, '``') + '`' : node.name;
     case 'call':

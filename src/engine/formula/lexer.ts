@@ -2,11 +2,11 @@
 
 import { FormulaError } from './types';
 
-export type TokenKind = 'num' | 'ident' | 'op' | '(' | ')' | ',' | 'eof';
+export type TokenKind = 'num' | 'ident' | 'str' | 'op' | '(' | ')' | ',' | 'eof';
 
 export interface Token {
   kind: TokenKind;
-  /** source text of the token (for a quoted name: the name without backticks) */
+  /** source text of the token (for a quoted name: the name without backticks; for a text literal: its value) */
   text: string;
   start: number;
   end: number;
@@ -32,7 +32,12 @@ function isDigit(c: string | undefined): boolean {
   return c !== undefined && c >= '0' && c <= '9';
 }
 
-export function tokenize(text: string): Token[] {
+export interface TokenizeOptions {
+  /** accept "double-quoted" text literals (row filters: state == "treated"); a '"' inside is written '""' */
+  strings?: boolean;
+}
+
+export function tokenize(text: string, opts: TokenizeOptions = {}): Token[] {
   const tokens: Token[] = [];
   let i = 0;
   const n = text.length;
@@ -65,6 +70,31 @@ export function tokenize(text: string): Token[] {
         `unexpected '.' at column ${col(i)} — a decimal point must be followed by digits, e.g. '0.5'`,
         { start: i, end: i + 1 },
       );
+    }
+    if (c === '"' && opts.strings) {
+      let j = i + 1;
+      let value = '';
+      for (;;) {
+        if (j >= n) {
+          throw new FormulaError(
+            `unterminated text starting at column ${col(i)} — add the closing '"' (a '"' inside the text is written '""')`,
+            { start: i, end: n },
+          );
+        }
+        if (text[j] === '"') {
+          if (text[j + 1] === '"') {
+            value += '"';
+            j += 2;
+            continue;
+          }
+          break;
+        }
+        value += text[j];
+        j++;
+      }
+      tokens.push({ kind: 'str', text: value, start, end: j + 1 });
+      i = j + 1;
+      continue;
     }
     if (c === '`') {
       let j = i + 1;
@@ -133,7 +163,8 @@ export function tokenize(text: string): Token[] {
         : c === '|' ? "write 'or' (allowed in 'where' filters), or abs(...) for an absolute value"
         : c === '[' || c === '{' ? "use '(' and ')' for grouping"
         : c === ']' || c === '}' ? "use '(' and ')' for grouping"
-        : c === '"' || c === "'" ? 'quote a column name with backticks, e.g. `OD 600`'
+        : c === "'" && opts.strings ? 'write text in double quotes, e.g. state == "treated"; quote a column name with backticks, e.g. `OD 600`'
+        : c === '"' || c === "'" ? 'quote a column name with backticks, e.g. `OD 600` (text in double quotes is only allowed in \'where\' filters)'
         : c === '×' || c === '·' ? "write '*' for a product"
         : c === '−' ? "write '-' (ASCII minus)"
         : 'remove it';

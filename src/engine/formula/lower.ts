@@ -2,7 +2,7 @@
 
 import { CONSTANT_VALUES } from './functions';
 import { Graph } from './graph';
-import { Node } from './types';
+import { FormulaError, Node } from './types';
 
 export type Resolved = { kind: 'var'; index: number } | { kind: 'param'; index: number } | { kind: 'const'; value: number };
 
@@ -11,6 +11,12 @@ export function lower(g: Graph, node: Node, resolve: (name: string, quoted: bool
   switch (node.type) {
     case 'num':
       return g.num(node.value);
+    case 'str':
+      // row filters replace text comparisons by codes before compiling (data/prepare.ts); elsewhere text is an error
+      throw new FormulaError(
+        `text ${JSON.stringify(node.value)} at column ${node.span.start + 1} can only be compared with a text column in data.where, e.g. state == ${JSON.stringify(node.value)}`,
+        node.span,
+      );
     case 'ident': {
       if (!node.quoted && Object.prototype.hasOwnProperty.call(CONSTANT_VALUES, node.name)) {
         return g.num(CONSTANT_VALUES[node.name]);

@@ -225,6 +225,8 @@ class Parser {
     switch (t.kind) {
       case 'num':
         return { type: 'num', value: t.value as number, span };
+      case 'str':
+        return { type: 'str', value: t.text, span };
       case '(': {
         if (this.peek().kind === ')') {
           const r = this.peek();
@@ -371,8 +373,9 @@ export function parseFormula(text: string, opts: ParseOptions = {}): Node {
       { start: MAX_LENGTH, end: text.length },
     );
   }
-  const tokens = tokenize(text);
+  const tokens = tokenize(text, { strings: !!opts.logic });
   const ast = new Parser(text, tokens, !!opts.logic).parse();
+  checkTextLiterals(ast, null);
   const deepest = deepestNode(ast);
   if (deepest) {
     throw new FormulaError(
@@ -381,6 +384,47 @@ export function parseFormula(text: string, opts: ParseOptions = {}): Node {
     );
   }
   return ast;
+}
+
+function describeOp(op: string): string {
+  return op === 'not' ? "'not'" : op === 'and' || op === 'or' ? `'${op}'` : `'${op}'`;
+}
+
+/** Text literals are values only for == and != (state == "treated"); anywhere else they are an error. */
+function checkTextLiterals(root: Node, parent0: Node | null): void {
+  const stack: [Node, Node | null][] = [[root, parent0]];
+  while (stack.length > 0) {
+    const [n, parent] = stack.pop() as [Node, Node | null];
+    if (n.type === 'str') {
+      const shown = JSON.stringify(n.value.length > 30 ? n.value.slice(0, 30) + '…' : n.value);
+      if (parent && parent.type === 'binary' && (parent.op === '==' || parent.op === '!=')) {
+        const other = parent.left === n ? parent.right : parent.left;
+        if (other.type === 'str')
+          throw new FormulaError(
+            `two texts compared at column ${col(parent.span.start)} — compare a text column with a text, e.g. state == ${shown}`,
+            parent.span,
+          );
+        if (other.type !== 'ident')
+          throw new FormulaError(
+            `text ${shown} at column ${col(n.span.start)} is compared with an expression — compare it with a text column by name, e.g. state ${parent.op} ${shown}`,
+            parent.span,
+          );
+        continue;
+      }
+      const where =
+        parent === null ? 'on its own'
+          : parent.type === 'call' ? `as an argument of ${parent.fn}()`
+          : parent.type === 'binary' || parent.type === 'unary' ? `with ${describeOp(parent.op)}`
+          : 'here';
+      throw new FormulaError(
+        `text ${shown} at column ${col(n.span.start)} is used ${where} — text can only be compared with == or != to a text column, e.g. state == ${shown}`,
+        n.span,
+      );
+    }
+    if (n.type === 'unary') stack.push([n.arg, n]);
+    else if (n.type === 'binary') stack.push([n.left, n], [n.right, n]);
+    else if (n.type === 'call') for (const a of n.args) stack.push([a, n]);
+  }
 }
 
 /** The first node deeper than MAX_TREE_DEPTH (iterative walk, so it cannot overflow the stack), or null. */

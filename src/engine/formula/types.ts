@@ -15,6 +15,8 @@ export type Node =
       /** written in backticks (`OD 600`): always a name, even when spelled like a constant or function */
       quoted?: boolean;
     }
+  /** a "double-quoted" text literal: only in row filters, only as an operand of == or != (see parser) */
+  | { type: 'str'; value: string; span: Span }
   | { type: 'unary'; op: '-' | '+' | 'not'; arg: Node; span: Span }
   | {
       type: 'binary';

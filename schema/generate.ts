@@ -148,6 +148,10 @@ export function fitspecSchema(): Schema {
         enumDescriptions: ['leave the row out and report it', 'stop with an error'],
         default: DEFAULTS.data.badRows,
       },
+      groupBy: {
+        description: 'A column, or several, whose distinct values (combinations, joined by "/") are groups: every model is fitted to each group separately. A group id is its value as written in the file; it may not contain "/", "[" or "]".',
+        oneOf: [str('Column naming the group of each row.', { minLength: 1 }), arr('Columns whose combination names the group of each row.', { type: 'string', minLength: 1 }, { minItems: 1, uniqueItems: true })],
+      },
     },
     ['file', 'x', 'y'],
   );
@@ -207,7 +211,7 @@ export function fitspecSchema(): Schema {
         description: 'Expected parameter values: model name -> parameter -> { "value", "tol" } or { "value", "rel" }.',
         additionalProperties: {
           type: 'object',
-          description: 'Parameter name -> expected value with tolerance.',
+          description: 'Parameter name -> expected value with tolerance. With data.groupBy, "K[R1]" pins K of group R1 and a plain name is checked in every group.',
           additionalProperties: expectEntry,
         },
       },
@@ -242,6 +246,7 @@ export function fitreportSchema(): Schema {
     path: { $ref: '#/definitions/jsonPath', description: 'Where in the spec it belongs.' },
     location: { $ref: '#/definitions/location', description: 'Where in a data file or the spec text, when that applies.' },
     rows: arr('Data rows the problem concerns.', { type: 'integer' }),
+    group: str('With data.groupBy: the id of the group the problem concerns.'),
   }, ['code', 'severity', 'message', 'path']);
   const termination = {
     type: 'string',
@@ -343,6 +348,7 @@ export function fitreportSchema(): Schema {
   const matrix = (d: string): Schema => ({ description: d, oneOf: [{ type: 'null' }, arr(d, arr('A row.', { type: ['number', 'null'] }))] });
   const modelReport = obj('Results of one model.', {
     name: str('Model name from the spec.'),
+    group: str('With data.groupBy: the id of the group this fit belongs to.'),
     kind: { type: 'string', enum: ['builtin', 'polynomial', 'formula'], description: 'How the model was defined.' },
     formula: str('The formula as fitted.'),
     linear: bool('Linear in its parameters (solved directly).'),
@@ -367,28 +373,40 @@ export function fitreportSchema(): Schema {
     inverse: arr('Inverse predictions at spec.solveFor.', inverse),
     problems: arr('Problems of this model.', { $ref: '#/definitions/problem' }),
   }, ['name', 'kind', 'formula', 'linear', 'status', 'termination', 'iterations', 'paramOrder', 'params', 'covariance', 'correlation', 'stats', 'residualTests', 'band', 'predictions', 'inverse', 'problems']);
+  const ranking = arr('Models ranked by AICc.', obj('One model.', {
+    name: str('Model name.'),
+    aicc: nnum('AICc.'),
+    deltaAicc: nnum('AICc − best AICc.'),
+    weight: nnum('Akaike weight.'),
+    cvRmse: nnum('Cross-validated RMSE.'),
+  }, ['name', 'aicc', 'deltaAicc', 'weight', 'cvRmse']));
+  const fTests = arr('Extra-sum-of-squares F-tests of nested pairs.', obj('One test.', {
+    simpler: str('Simpler model.'),
+    richer: str('Richer model.'),
+    F: num('F statistic.'),
+    df1: num('Numerator degrees of freedom.'),
+    df2: num('Denominator degrees of freedom.'),
+    p: num('p-value.'),
+  }, ['simpler', 'richer', 'F', 'df1', 'df2', 'p']));
   const comparison = {
     description: 'Model comparison, or null with a single model.',
     oneOf: [
       { type: 'null' },
       obj('Comparison.', {
-        ranking: arr('Models ranked by AICc.', obj('One model.', {
-          name: str('Model name.'),
-          aicc: nnum('AICc.'),
-          deltaAicc: nnum('AICc − best AICc.'),
-          weight: nnum('Akaike weight.'),
-          cvRmse: nnum('Cross-validated RMSE.'),
-        }, ['name', 'aicc', 'deltaAicc', 'weight', 'cvRmse'])),
-        fTests: arr('Extra-sum-of-squares F-tests of nested pairs.', obj('One test.', {
-          simpler: str('Simpler model.'),
-          richer: str('Richer model.'),
-          F: num('F statistic.'),
-          df1: num('Numerator degrees of freedom.'),
-          df2: num('Denominator degrees of freedom.'),
-          p: num('p-value.'),
-        }, ['simpler', 'richer', 'F', 'df1', 'df2', 'p'])),
-        best: { type: ['string', 'null'], description: 'Best model.' },
+        ranking,
+        fTests,
+        best: { type: ['string', 'null'], description: 'Best model (null with data.groupBy: see byGroup).' },
         reason: str('Why, in words.'),
+        byGroup: {
+          type: 'object',
+          description: 'With data.groupBy: the comparison within each group, by group id.',
+          additionalProperties: obj('The comparison within one group.', {
+            ranking,
+            fTests,
+            best: { type: ['string', 'null'], description: 'Best model in this group.' },
+            reason: str('Why, in words.'),
+          }, ['ranking', 'fTests', 'best', 'reason']),
+        },
       }, ['ranking', 'fTests', 'best', 'reason']),
     ],
   };
@@ -445,12 +463,19 @@ export function fitreportSchema(): Schema {
       seed: int('Seed of the multi-start search.'),
     }, ['engine', 'specHash', 'dataHash', 'seed']),
     data: dataReport,
-    models: arr('One report per model, in spec order.', modelReport),
+    groups: arr('With data.groupBy: the groups, in order of first appearance in the file.', obj('One group.', {
+      id: str('Group id: the value as written in the file, several columns joined by "/".'),
+      key: { type: 'object', description: 'groupBy column -> its value in this group.', additionalProperties: { type: 'string' } },
+      rows: int('Data rows of the group that passed data.where and data.exclude.'),
+      used: int('Rows fitted.'),
+    }, ['id', 'key', 'rows', 'used'])),
+    models: arr('One report per model, in spec order; with data.groupBy one per model per group (group by group).', modelReport),
     comparison,
     best: { type: ['string', 'null'], description: 'Best model, or null.' },
     problems: arr('Spec and data problems.', { $ref: '#/definitions/problem' }),
     expect: arr('Outcome of each spec.expect entry.', obj('One expectation.', {
       model: str('Model name.'),
+      group: str('With data.groupBy: the group checked.'),
       param: str('Parameter name.'),
       value: num('Expected value.'),
       tol: num('Absolute tolerance.'),

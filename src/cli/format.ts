@@ -119,20 +119,33 @@ export function summaryText(r: FitReport, specShown: string, written: string | n
   if (d.dropped.length) notes.push(`${d.droppedTotal ?? d.dropped.length} dropped`);
   if (d.excluded.length) notes.push(`${d.excluded.length} excluded`);
   out.push(`  data: ${d.file}, ${d.used} of ${d.rows} rows used${notes.length ? ` (${notes.join(', ')})` : ''}`);
-  const rows: string[][] = [['', 'model', 'status', 'parameters (± SE)', 'AICc', 'R²', 'problems']];
-  for (const m of r.models) {
+  if (r.groups) out.push(`  groups: ${r.groups.length} (${groupByText(r)}), each model fitted to each group; * marks the best model within a group`);
+  const grouped = r.groups !== undefined;
+  const rows: string[][] = [['', ...(grouped ? ['group'] : []), 'model', 'status', 'parameters (± SE)', 'AICc', 'R²', 'problems']];
+  const shown = grouped && r.models.length > MAX_GROUP_ROWS ? foldedModels(r) : r.models;
+  for (const m of shown) {
     const status = m.status === 'converged' ? 'converged' : `FAILED (${m.termination})`;
     const counted = m.problems.filter(p => p.severity !== 'info').length;
+    const best = grouped ? r.comparison?.byGroup?.[m.group as string]?.best === m.name : r.best === m.name;
     const [first, ...rest] = paramLines(m);
-    rows.push([r.best === m.name ? '*' : '', m.name, status, first, num(m.stats.aicc, 5), num(m.stats.r2, 5), String(counted)]);
-    for (const more of rest) rows.push(['', '', '', more, '', '', '']);
+    rows.push([best ? '*' : '', ...(grouped ? [m.group ?? ''] : []), m.name, status, first, num(m.stats.aicc, 5), num(m.stats.r2, 5), String(counted)]);
+    for (const more of rest) rows.push(['', ...(grouped ? [''] : []), '', '', more, '', '', '']);
   }
   out.push(...table(rows));
+  if (shown.length < r.models.length) {
+    const failed = r.models.filter(m => m.status !== 'converged').length;
+    out.push(`  … ${r.models.length - shown.length} more rows not shown (${r.models.length} fits in all: ${r.models.length - failed} converged, ${failed} failed; failed fits are always among the rows shown, up to ${MAX_GROUP_ROWS / 2}) — see --json or the results file`);
+  }
+  if (grouped && r.comparison?.byGroup) {
+    const tally = new Map<string, number>();
+    for (const c of Object.values(r.comparison.byGroup)) if (c.best) tally.set(c.best, (tally.get(c.best) ?? 0) + 1);
+    if (tally.size) out.push(`  best within groups: ${[...tally.entries()].map(([k, v]) => `${k} in ${v} of ${r.groups!.length}`).join(', ')}`);
+  }
   for (const t of r.comparison?.fTests ?? []) {
     out.push(`  F-test ${t.simpler} vs ${t.richer}: F = ${num(t.F)} on ${t.df1} and ${t.df2} df, p = ${num(t.p, 3)}`);
   }
   if (r.comparison && r.best) out.push(`  best: ${r.best}${r.comparison.reason ? ` — ${r.comparison.reason}` : ''}`);
-  const best = r.models.find(m => m.name === r.best) ?? r.models.find(m => m.status === 'converged');
+  const best = grouped ? undefined : r.models.find(m => m.name === r.best) ?? r.models.find(m => m.status === 'converged');
   if (best) {
     for (const p of best.predictions) {
       const x = typeof p.x === 'number' ? num(p.x) : Object.entries(p.x).map(([k, v]) => `${k}=${num(v)}`).join(', ');
@@ -164,8 +177,9 @@ export function summaryText(r: FitReport, specShown: string, written: string | n
   const shownGroups = list.slice(0, 12);
   for (const { problem, model, count } of shownGroups) {
     const named = model !== undefined && !problem.message.startsWith(`${model}:`);
-    const more = count > 1 ? ` (+${count - 1} more like it)` : '';
-    out.push(`  ${problem.severity}${named ? ` (${model})` : ''}: ${problem.message} [${problem.code}]${more}`);
+    const more = count > 1 ? ` (+${count - 1} more like it${problem.group !== undefined ? ' in other groups' : ''})` : '';
+    const who = [named ? model : undefined, problem.group !== undefined ? `group ${problem.group}` : undefined].filter(Boolean).join(', ');
+    out.push(`  ${problem.severity}${who ? ` (${who})` : ''}: ${problem.message} [${problem.code}]${more}`);
   }
   if (list.length > shownGroups.length) out.push(`  … and ${list.length - shownGroups.length} more kinds of problem (see the results file or --json)`);
   if (infos && !verbose) out.push(`  ${infos} info note${infos === 1 ? '' : 's'} (--verbose shows ${infos === 1 ? 'it' : 'them'})`);
@@ -176,5 +190,21 @@ export function summaryText(r: FitReport, specShown: string, written: string | n
 export function expectText(e: FitReport['expect'][number]): string {
   const allowed = e.tol !== undefined ? `± ${num(e.tol)}` : `± ${num((e.rel ?? 0) * 100)} %`;
   const got = e.actual === null ? 'no estimate (model failed or parameter unknown)' : `got ${num(e.actual, 6)}`;
-  return `${e.model}.${e.param} = ${num(e.value, 6)} ${allowed}: ${got}`;
+  return `${e.model}.${e.param}${e.group !== undefined ? `[${e.group}]` : ''} = ${num(e.value, 6)} ${allowed}: ${got}`;
+}
+
+/** Grouped summary tables longer than this many rows are folded. */
+export const MAX_GROUP_ROWS = 40;
+
+function groupByText(r: FitReport): string {
+  const first = r.groups?.[0];
+  return first ? `by ${Object.keys(first.key).join(' / ')}` : 'none';
+}
+
+/** The rows of a long grouped table that are shown: every failed fit first (up to the limit), then the first groups' fits. */
+function foldedModels(r: FitReport): ModelReport[] {
+  const keep = new Set<ModelReport>();
+  for (const m of r.models) if (m.status !== 'converged' && keep.size < MAX_GROUP_ROWS / 2) keep.add(m);
+  for (const m of r.models) if (keep.size < MAX_GROUP_ROWS) keep.add(m);
+  return r.models.filter(m => keep.has(m));
 }

@@ -1,6 +1,6 @@
 // `check --update`: set each expect value in the spec text to the current estimate, keeping comments, layout and
 // the tolerance (jsonc-parser modify + applyEdits edit only the numbers).
-import { applyEdits, modify } from 'jsonc-parser';
+import { applyEdits, modify, parse } from 'jsonc-parser';
 import type { ExpectResult } from '../engine/report';
 
 /**
@@ -26,11 +26,21 @@ export function updateExpectText(text: string, results: ExpectResult[]): { text:
   const changed: { model: string; param: string; from: number; to: number }[] = [];
   for (const r of results) {
     if (r.actual === null || !Number.isFinite(r.actual)) continue;
+    // a group's pin is its own key "K[R1]"; a plain "K" checked in every group has no one value to take
+    const key = r.group !== undefined ? `${r.param}[${r.group}]` : r.param;
+    if (r.group !== undefined && !hasKey(out, r.model, key)) continue;
     const to = roundedPin(r.actual, r);
     if (to === r.value) continue;
-    const edits = modify(out, ['expect', r.model, r.param, 'value'], to, { formattingOptions: { insertSpaces: true, tabSize: 2 } });
+    const edits = modify(out, ['expect', r.model, key, 'value'], to, { formattingOptions: { insertSpaces: true, tabSize: 2 } });
     out = applyEdits(out, edits);
     changed.push({ model: r.model, param: r.param, from: r.value, to });
   }
   return { text: out, changed };
+}
+
+/** Whether the spec text has expect.<model>.<key>. */
+function hasKey(text: string, model: string, key: string): boolean {
+  const raw = parse(text, [], { allowTrailingComma: true }) as { expect?: Record<string, Record<string, unknown>> } | undefined;
+  const entries = raw?.expect?.[model];
+  return !!entries && typeof entries === 'object' && Object.prototype.hasOwnProperty.call(entries, key);
 }

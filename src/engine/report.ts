@@ -49,6 +49,8 @@ export interface DataSpec {
   delimiter?: 'auto' | ',' | ';' | '\t';
   decimal?: '.' | ',';
   badRows?: 'drop' | 'fail';
+  /** a column or several: each distinct value (combination, joined by '/') is a group, fitted separately */
+  groupBy?: string | string[];
 }
 
 export type ExpectSpec = { value: number; tol: number } | { value: number; rel: number };
@@ -118,6 +120,8 @@ export interface Problem {
   location?: FileLocation;
   /** data rows it concerns (dropped, influential, ...) */
   rows?: number[];
+  /** the group it concerns (data.groupBy), by id */
+  group?: string;
 }
 
 export type Termination =
@@ -215,6 +219,8 @@ export interface InverseReport {
 
 export interface ModelReport {
   name: string;
+  /** with data.groupBy: the id of the group this fit belongs to */
+  group?: string;
   kind: 'builtin' | 'polynomial' | 'formula';
   /** the formula as fitted, in the formula language */
   formula: string;
@@ -247,6 +253,26 @@ export interface ComparisonReport {
   fTests: { simpler: string; richer: string; F: number; df1: number; df2: number; p: number }[];
   best: string | null;
   reason: string;
+  /** with data.groupBy: the usual comparison within each group, by group id */
+  byGroup?: Record<string, GroupComparison>;
+}
+
+/** The comparison of the models within one group. */
+export interface GroupComparison {
+  ranking: ComparisonReport['ranking'];
+  fTests: ComparisonReport['fTests'];
+  best: string | null;
+  reason: string;
+}
+
+/** One group of data.groupBy: its id (values joined by '/'), the value of each groupBy column, rows read and used. */
+export interface GroupReport {
+  id: string;
+  key: Record<string, string>;
+  /** data rows of the group that passed data.where and data.exclude */
+  rows: number;
+  /** rows fitted (after dropping rows with values that are not finite) */
+  used: number;
 }
 
 export interface DataReport {
@@ -268,6 +294,8 @@ export interface DataReport {
 
 export interface ExpectResult {
   model: string;
+  /** with data.groupBy: the group checked */
+  group?: string;
   param: string;
   value: number;
   tol?: number;
@@ -321,8 +349,11 @@ export interface FitReport {
   title?: string;
   meta: ReportMeta;
   data: DataReport;
+  /** with data.groupBy: the groups, in order of first appearance in the file */
+  groups?: GroupReport[];
   models: ModelReport[];
   comparison: ComparisonReport | null;
+  /** the best model overall; null with data.groupBy (see comparison.byGroup[id].best) */
   best: string | null;
   problems: Problem[];
   expect: ExpectResult[];

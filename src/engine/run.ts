@@ -13,6 +13,8 @@ import {
   type ExpectResult,
   type FileLocation,
   type FitReport,
+  type GroupComparison,
+  type GroupReport,
   type JsonPath,
   type ModelReport,
   type ParamReport,
@@ -21,7 +23,7 @@ import {
   type Thresholds,
 } from './report';
 import { FormulaError } from './formula/types';
-import { formulaIdentifiers } from './formula';
+import { formulaIdentifiers, suggest } from './formula';
 import { parseSpecText, validateSpec, locatePath } from './spec';
 import type { NormalizedSpec } from './spec/types';
 import { DataError, prepareData, readHeader, readTable, whereTextColumns } from './data';
@@ -121,9 +123,9 @@ export function columnsNeeded(spec: NormalizedSpec, header: string[]): string[] 
   return header.filter(c => wanted.has(c));
 }
 
-/** Columns of the CSV read as text: those a where filter compares with quoted text. */
+/** Columns of the CSV read as text: those a where filter compares with quoted text, and the groupBy columns. */
 export function textColumnsNeeded(spec: NormalizedSpec, header: string[]): string[] {
-  const wanted = new Set(whereTextColumns(spec.data.where));
+  const wanted = new Set([...whereTextColumns(spec.data.where), ...(spec.data.groupBy ?? [])]);
   return header.filter(c => wanted.has(c));
 }
 
@@ -242,89 +244,142 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
   const correlated = dataCorrelation(prepared.variables, prepared.X, prepared.y, thresholds);
   const correlation = correlated.correlation;
   const hasLine = spec.models.some(m => m.builtin === 'linear' || m.polynomial === 1);
-  const correlationProblems = hasLine ? [] : correlated.problems;   // the hint is moot when a line is already fitted
+  // the hint is moot when a line is already fitted, and about the pooled data when the groups are fitted separately
+  const correlationProblems = hasLine || spec.data.groupBy ? [] : correlated.problems;
 
-  // 4. models
-  const models: ModelReport[] = [];
-  const analysed: { input: ModelAnalysisInput; report: ModelReport }[] = [];
-  for (let i = 0; i < spec.models.length; i++) {
-    const m = spec.models[i];
-    progress(`fitting model ${i + 1} of ${spec.models.length}: ${m.name}`);
-    let built: ReturnType<typeof buildModel>;
-    try {
-      built = buildModel(asWritten(m, parsed.raw), prepared.variables, { X: prepared.X, y: prepared.y });
-    } catch (e) {
-      if (e instanceof FormulaError || e instanceof DataError || isUserError(e)) {
-        const sub = (e as { path?: unknown }).path;
-        const p: JsonPath = ['models', i, ...(Array.isArray(sub) && sub.length ? (sub as JsonPath) : [m.kind])];
-        return errorReport(name, `model '${m.name}': ${(e as Error).message}`, { path: p, location: locationOf(text, name, p) });
+  // 4. models (with data.groupBy: every model on every group, group by group, in the groups' order)
+  type Fitted = { models: ModelReport[]; analysed: { input: ModelAnalysisInput; report: ModelReport }[] };
+  const fitAll = (sub: { X: Float64Array[]; y: Float64Array; w: Float64Array | null; rows: Int32Array }, group?: string): Fitted | ErrorReport => {
+    const models: ModelReport[] = [];
+    const analysed: Fitted['analysed'] = [];
+    const inGroup = group !== undefined ? ` in group '${group}'` : '';
+    for (let i = 0; i < spec.models.length; i++) {
+      const m = spec.models[i];
+      progress(`fitting model ${i + 1} of ${spec.models.length}: ${m.name}${inGroup}`);
+      let built: ReturnType<typeof buildModel>;
+      try {
+        built = buildModel(asWritten(m, parsed.raw), prepared.variables, { X: sub.X, y: sub.y });
+      } catch (e) {
+        if (e instanceof FormulaError || e instanceof DataError || isUserError(e)) {
+          const subPath = (e as { path?: unknown }).path;
+          const p: JsonPath = ['models', i, ...(Array.isArray(subPath) && subPath.length ? (subPath as JsonPath) : [m.kind])];
+          return errorReport(name, `model '${m.name}'${inGroup}: ${(e as Error).message}`, { path: p, location: locationOf(text, name, p) });
+        }
+        models.push(withGroup(failedModel(m, i, e, `building the model${inGroup}`), group));
+        continue;
       }
-      models.push(failedModel(m, i, e, 'building the model'));
-      continue;
+      const free = built.fixed.filter(f => !f).length;
+      if (group !== undefined && sub.y.length < free) {
+        models.push(tooFewRows(m, i, built, sub.y.length, free, group));
+        continue;
+      }
+      try {
+        const result = fitModel(built, sub, {
+          maxIterations: m.solver.maxIterations,
+          seconds: m.solver.seconds,
+          multiStart: m.solver.multiStart,
+          seed: RUN_SEED,
+          shouldStop: opts.shouldStop,
+        });
+        const input: ModelAnalysisInput = {
+          index: i,
+          name: m.name,
+          kind: built.kind,
+          formula: built.formula,
+          builtin: built.builtin,
+          degree: built.degree,
+          compiled: built.compiled,
+          params: built.params,
+          lower: built.lower,
+          upper: built.upper,
+          fixed: built.fixed,
+          linear: built.compiled.linear,
+          variables: prepared.variables,
+          X: sub.X,
+          y: sub.y,
+          w: sub.w,
+          rows: sub.rows,
+          sigmaMode: spec.data.sigmaMode,
+          result,
+          startValues: result.startValues,
+          startSource: result.startSource,
+          confidence: spec.confidence,
+          predict: spec.predict,
+          solveFor: spec.solveFor,
+          thresholds,
+          solverOptions: { maxIterations: m.solver.maxIterations, seconds: m.solver.seconds },
+          shouldStop: opts.shouldStop,
+          options: { ...ANALYSIS_DEFAULTS, ...opts.analysis },
+        };
+        const report = withGroup(analyzeModel(input), group);
+        models.push(report);
+        analysed.push({ input, report });
+      } catch (e) {
+        models.push(withGroup(failedModel(m, i, e, `fitting model '${m.name}'${inGroup}`, built), group));
+      }
     }
-    try {
-      const result = fitModel(built, data, {
-        maxIterations: m.solver.maxIterations,
-        seconds: m.solver.seconds,
-        multiStart: m.solver.multiStart,
-        seed: RUN_SEED,
-        shouldStop: opts.shouldStop,
-      });
-      const input: ModelAnalysisInput = {
-        index: i,
-        name: m.name,
-        kind: built.kind,
-        formula: built.formula,
-        builtin: built.builtin,
-        degree: built.degree,
-        compiled: built.compiled,
-        params: built.params,
-        lower: built.lower,
-        upper: built.upper,
-        fixed: built.fixed,
-        linear: built.compiled.linear,
-        variables: prepared.variables,
-        X: prepared.X,
-        y: prepared.y,
-        w: prepared.w,
-        rows: prepared.rows,
-        sigmaMode: spec.data.sigmaMode,
-        result,
-        startValues: result.startValues,
-        startSource: result.startSource,
-        confidence: spec.confidence,
-        predict: spec.predict,
-        solveFor: spec.solveFor,
-        thresholds,
-        solverOptions: { maxIterations: m.solver.maxIterations, seconds: m.solver.seconds },
-        shouldStop: opts.shouldStop,
-        options: { ...ANALYSIS_DEFAULTS, ...opts.analysis },
-      };
-      const report = analyzeModel(input);
-      models.push(report);
-      analysed.push({ input, report });
-    } catch (e) {
-      models.push(failedModel(m, i, e, `fitting model '${m.name}'`, built));
-    }
-  }
+    return { models, analysed };
+  };
 
-  // 5. comparison
-  let comparison: FitReport['comparison'] = null;
+  // 5. comparison (with groups: within each group)
   const runProblems: Problem[] = [];
-  if (analysed.length > 0) {
+  const compare = (analysed: Fitted['analysed'], inGroup: string): FitReport['comparison'] => {
+    if (analysed.length === 0) return null;
     try {
-      comparison = compareModels(
-        analysed.map(a => a.input),
-        analysed.map(a => a.report),
-        thresholds,
-      );
+      return compareModels(analysed.map(a => a.input), analysed.map(a => a.report), thresholds);
     } catch (e) {
-      runProblems.push({ code: 'comparison-failed', severity: 'warning', message: internalMessage(e, 'comparing the models'), path: ['models'] });
+      runProblems.push({ code: 'comparison-failed', severity: 'warning', message: internalMessage(e, `comparing the models${inGroup}`), path: ['models'] });
+      return null;
     }
+  };
+  const models: ModelReport[] = [];
+  let comparison: FitReport['comparison'] = null;
+  let groups: GroupReport[] | undefined;
+  if (!prepared.groups) {
+    const fitted = fitAll({ ...data, rows: prepared.rows });
+    if ('error' in fitted) return fitted;
+    models.push(...fitted.models);
+    comparison = compare(fitted.analysed, '');
+  } else {
+    const G = prepared.groups;
+    const members: number[][] = G.ids.map(() => []);
+    for (let j = 0; j < G.of.length; j++) members[G.of[j]].push(j);
+    groups = G.ids.map((id, g) => ({ id, key: G.keys[g], rows: G.rows[g], used: members[g].length }));
+    const byGroup: Record<string, GroupComparison> = {};
+    for (let g = 0; g < G.ids.length; g++) {
+      if (opts.shouldStop?.()) break;
+      const fitted = fitAll(subset(prepared, members[g]), G.ids[g]);
+      if ('error' in fitted) return fitted;
+      models.push(...fitted.models);
+      const c = compare(fitted.analysed, ` in group '${G.ids[g]}'`);
+      byGroup[G.ids[g]] = c ?? { ranking: [], fTests: [], best: null, reason: `No model could be fitted in group '${G.ids[g]}', so none can be recommended.` };
+    }
+    comparison = {
+      ranking: [],
+      fTests: [],
+      best: null,
+      reason: `${G.ids.length} group${G.ids.length === 1 ? '' : 's'} fitted separately: the comparison within each group is in byGroup`,
+      byGroup,
+    };
   }
 
   // 6. expectations
   const expect = checkExpectations(spec, models);
+  if (groups) {
+    const ids = groups.map(g => g.id);
+    for (const [modelName, params] of Object.entries(spec.expect ?? {}))
+      for (const key of Object.keys(params)) {
+        const m = /^(.+)\[(.+)\]$/.exec(key);
+        if (m && !ids.includes(m[2]))
+          runProblems.push({
+            code: 'spec-expect',
+            severity: 'error',
+            message: `expect.${modelName} names group '${m[2]}' in '${key}', which is not a group of data.groupBy${suggestText(m[2], ids)} (groups: ${ids.slice(0, 12).join(', ')}${ids.length > 12 ? ', …' : ''})`,
+            path: ['expect', modelName, key],
+            location: locationOf(text, name, ['expect', modelName, key]),
+          });
+      }
+  }
 
   const specDir = path.dirname(path.resolve(specPath));
   const report: FitReport = {
@@ -333,6 +388,7 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
     ...(spec.title !== undefined ? { title: spec.title } : {}),
     meta: { engine: ENGINE_VERSION, specHash, dataHash: table.hash, seed: RUN_SEED },
     data: dataReport(spec, table, prepared, correlation),
+    ...(groups ? { groups } : {}),
     models,
     comparison,
     best: comparison ? comparison.best : null,
@@ -418,26 +474,79 @@ function failedModel(
   };
 }
 
+function suggestText(word: string, candidates: string[]): string {
+  const s = suggest(word, candidates);
+  return s !== undefined ? ` — did you mean '${s}'?` : '';
+}
+
+/** A model report tagged with its group (and its problems too), or unchanged without groups. */
+function withGroup(report: ModelReport, group: string | undefined): ModelReport {
+  if (group === undefined) return report;
+  const { name, ...rest } = report;
+  return { name, group, ...rest, problems: report.problems.map(p => ({ ...p, group })) };
+}
+
+/** The points of `members` (indices into the prepared arrays) as data of their own. */
+function subset(prepared: ReturnType<typeof prepareData>, members: number[]): { X: Float64Array[]; y: Float64Array; w: Float64Array | null; rows: Int32Array } {
+  const pick = <T extends Float64Array | Int32Array>(a: T, make: (n: number) => T): T => {
+    const out = make(members.length);
+    for (let k = 0; k < members.length; k++) out[k] = a[members[k]];
+    return out;
+  };
+  const f64 = (n: number) => new Float64Array(n);
+  return {
+    X: prepared.X.map(x => pick(x, f64)),
+    y: pick(prepared.y, f64),
+    w: prepared.w ? pick(prepared.w, f64) : null,
+    rows: pick(prepared.rows, n => new Int32Array(n)),
+  };
+}
+
+/** The entry of a model a group has too few rows for: not fitted, with a problem naming the group. */
+function tooFewRows(m: NormalizedSpec['models'][number], index: number, built: { formula: string; params: string[]; compiled: { linear: boolean } }, n: number, free: number, group: string): ModelReport {
+  const r = failedModel(m, index, null, '', built);
+  r.stats.n = n;
+  r.termination = 'singular'; // fewer rows than free parameters: the Jacobian cannot have full column rank
+  r.problems = [{
+    code: 'group-too-few-rows',
+    severity: 'error',
+    message: `group '${group}' has ${n} row${n === 1 ? '' : 's'} to fit, but model '${m.name}' estimates ${free} parameters — it was not fitted in this group (the other groups were); add data to the group, fix parameters, or leave the group out with data.where`,
+    path: ['models', index],
+  }];
+  return withGroup(r, group);
+}
+
+/** The groups an expect key applies to: 'K[R1]' -> K in group R1; a plain name -> every group (or no group). */
+function expectTargets(param: string, groups: string[] | null): { param: string; group?: string }[] {
+  if (!groups) return [{ param }];
+  const m = /^(.+)\[(.+)\]$/.exec(param);
+  if (m) return [{ param: m[1], group: m[2] }];
+  return groups.map(group => ({ param, group }));
+}
+
 function checkExpectations(spec: NormalizedSpec, models: ModelReport[]): ExpectResult[] {
   const out: ExpectResult[] = [];
+  const groupIds = spec.data.groupBy ? [...new Set(models.map(m => m.group as string))] : null;
   for (const [modelName, params] of Object.entries(spec.expect ?? {})) {
-    const model = models.find(m => m.name === modelName);
-    for (const [param, e] of Object.entries(params)) {
-      const pr = model?.params[param];
-      const actual = pr && Number.isFinite(pr.value) && model!.status === 'converged' ? pr.value : null;
-      const r: ExpectResult = { model: modelName, param, value: e.value, actual: null, ok: false };
-      let allowed: number;
-      if ('tol' in e) {
-        r.tol = e.tol;
-        allowed = e.tol;
-      } else {
-        r.rel = e.rel;
-        allowed = e.rel * Math.abs(e.value);
+    for (const [key, e] of Object.entries(params)) {
+      for (const { param, group } of expectTargets(key, groupIds)) {
+        const model = models.find(m => m.name === modelName && m.group === group);
+        const pr = model?.params[param];
+        const actual = pr && Number.isFinite(pr.value) && model!.status === 'converged' ? pr.value : null;
+        const r: ExpectResult = { model: modelName, ...(group !== undefined ? { group } : {}), param, value: e.value, actual: null, ok: false };
+        let allowed: number;
+        if ('tol' in e) {
+          r.tol = e.tol;
+          allowed = e.tol;
+        } else {
+          r.rel = e.rel;
+          allowed = e.rel * Math.abs(e.value);
+        }
+        r.actual = actual;
+        // a relative slack of a few ulps so that a value pinned exactly at the edge is not failed by rounding
+        r.ok = actual !== null && Math.abs(actual - e.value) <= allowed * (1 + 1e-12) + 4 * Number.EPSILON * Math.abs(e.value);
+        out.push(r as ExpectResult);
       }
-      r.actual = actual;
-      // a relative slack of a few ulps so that a value pinned exactly at the edge is not failed by rounding
-      r.ok = actual !== null && Math.abs(actual - e.value) <= allowed * (1 + 1e-12) + 4 * Number.EPSILON * Math.abs(e.value);
-      out.push(r as ExpectResult);
     }
   }
   return out;
@@ -484,7 +593,7 @@ export interface SerializeOptions {
 }
 
 /** Top-level key order of a FitReport (others follow in insertion order). */
-const REPORT_KEYS = ['version', 'spec', 'title', 'error', 'meta', 'data', 'models', 'comparison', 'best', 'problems', 'expect', 'confidence'];
+const REPORT_KEYS = ['version', 'spec', 'title', 'error', 'meta', 'data', 'groups', 'models', 'comparison', 'best', 'problems', 'expect', 'confidence'];
 
 function normalise(v: unknown): unknown {
   if (typeof v === 'number') return Number.isFinite(v) ? (Object.is(v, -0) ? 0 : v) : null;

@@ -25,7 +25,23 @@ export interface PreparedData {
   dropped: Table['dropped'];
   /** table problems plus those found here */
   problems: Problem[];
+  /** with data.groupBy: the groups in order of first appearance, and the group of each used point */
+  groups?: PreparedGroups;
 }
+
+export interface PreparedGroups {
+  ids: string[];
+  keys: Record<string, string>[];
+  /** rows of each group that passed data.where and data.exclude */
+  rows: number[];
+  /** index into ids of each used point (length n) */
+  of: Int32Array;
+}
+
+/** Most groups one spec may have: beyond it the run stops with a clear message instead of fitting for hours. */
+export const MAX_GROUPS = 20000;
+/** Characters a group id may not contain: '/' joins several groupBy columns, '[' and ']' index parameters (K[R1]). */
+const GROUP_ID_FORBIDDEN = /[/[\]]/;
 
 /** Prefix of the code columns that stand for text columns inside a compiled where filter (never a header name). */
 const TEXT_CODE = '\u0001text:';
@@ -354,6 +370,14 @@ export function prepareData(spec: NormalizedSpec, table: Table): PreparedData {
   };
   const newlyDropped: Table['dropped'] = [];
   let droppedHere = 0;
+  const groupCols = d.groupBy ?? [];
+  const groupCells = groupCols.map((c) => table.text?.[c] ?? []);
+  const groupIndex = new Map<string, number>();
+  const groupIds: string[] = [];
+  const groupKeys: Record<string, string>[] = [];
+  const groupRows: number[] = [];
+  const groupOfRow = new Int32Array(groupCols.length ? N : 0);
+  let groupError: Problem | null = null;
   for (let i = 0; i < N; i++) {
     const row = table.row[i];
     if (excludedAt.has(row)) continue;
@@ -363,6 +387,45 @@ export function prepareData(spec: NormalizedSpec, table: Table): PreparedData {
         filtered++;
         continue;
       }
+    }
+    if (groupCols.length) {
+      if (groupError) continue;
+      const id = groupCols.length === 1 ? groupCells[0][i] : groupCells.map((c) => c[i]).join('/');
+      let g = groupIndex.get(id);
+      if (g === undefined) {
+        const bad = groupCols.findIndex((_, k) => groupCells[k][i] === '' || GROUP_ID_FORBIDDEN.test(groupCells[k][i]));
+        if (bad !== -1) {
+          const v = groupCells[bad][i];
+          groupError = {
+            code: 'group-id',
+            severity: 'error',
+            message: v === ''
+              ? `${label} line ${table.line[i]} (data row ${row}): the group column '${groupCols[bad]}' is empty — give every row a group, or leave such rows out with data.where (e.g. ${groupCols[bad]} != "")`
+              : `${label} line ${table.line[i]} (data row ${row}): the group value '${v}' of column '${groupCols[bad]}' contains '${/[/]/.test(v) ? '/' : /\[/.test(v) ? '[' : ']'}' — group ids may not contain '/', '[' or ']' ('/' joins several groupBy columns, '[…]' names a group's parameter, e.g. K[R1]); rename the groups in the file, e.g. '${v.replace(/[/[\]]/g, '-')}'`,
+            path: ['data', 'groupBy'],
+            location: { file: label, line: table.line[i], column: groupCols[bad], row },
+          };
+          continue;
+        }
+        if (groupIds.length >= MAX_GROUPS) {
+          groupError = {
+            code: 'too-many-groups',
+            severity: 'error',
+            message: `data.groupBy gives more than ${MAX_GROUPS} groups in ${label} (group '${id}' at line ${table.line[i]} is number ${MAX_GROUPS + 1}) — one spec fits at most ${MAX_GROUPS} groups; check that ${groupCols.map((c) => `'${c}'`).join(' and ')} name${groupCols.length === 1 ? 's' : ''} groups rather than single rows, or split the file`,
+            path: ['data', 'groupBy'],
+          };
+          continue;
+        }
+        g = groupIds.length;
+        groupIndex.set(id, g);
+        groupIds.push(id);
+        const key: Record<string, string> = {};
+        groupCols.forEach((c, k) => (key[c] = groupCells[k][i]));
+        groupKeys.push(key);
+        groupRows.push(0);
+      }
+      groupRows[g]++;
+      groupOfRow[i] = g;
     }
     let reason: { column: string; reason: string } | null = null;
     for (let k = 0; k < variables.length && !reason; k++) {
@@ -413,6 +476,7 @@ export function prepareData(spec: NormalizedSpec, table: Table): PreparedData {
     });
   }
 
+  if (groupError) problems.push(groupError);
   let n = 0;
   for (let i = 0; i < N; i++) n += keep[i];
   const X = variables.map(() => new Float64Array(n));
@@ -420,8 +484,10 @@ export function prepareData(spec: NormalizedSpec, table: Table): PreparedData {
   const w = sigmaAll || weightAll ? new Float64Array(n) : null;
   const rows = new Int32Array(n);
   const lines = new Int32Array(n);
+  const of = new Int32Array(groupCols.length ? n : 0);
   for (let i = 0, j = 0; i < N; i++) {
     if (!keep[i]) continue;
+    if (groupCols.length) of[j] = groupOfRow[i];
     for (let k = 0; k < variables.length; k++) X[k][j] = (Xall[k] as Float64Array)[i];
     y[j] = yAll[i];
     if (w) w[j] = sigmaAll ? 1 / (sigmaAll[i] * sigmaAll[i]) : (weightAll as Float64Array)[i];
@@ -437,5 +503,6 @@ export function prepareData(spec: NormalizedSpec, table: Table): PreparedData {
       path: d.where !== undefined && filtered > 0 ? ['data', 'where'] : ['data'],
     });
   const dropped = [...table.dropped, ...newlyDropped].sort((a, b) => a.row - b.row);
-  return { variables, X, y, w, rows, lines, excluded, filtered, dropped, problems };
+  const groups = groupCols.length ? { groups: { ids: groupIds, keys: groupKeys, rows: groupRows, of } } : {};
+  return { variables, X, y, w, rows, lines, excluded, filtered, dropped, problems, ...groups };
 }

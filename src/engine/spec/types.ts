@@ -13,6 +13,8 @@ export interface NormalizedData extends DataSpec {
   delimiter: 'auto' | ',' | ';' | '\t';
   decimal: '.' | ',';
   badRows: 'drop' | 'fail';
+  /** data.groupBy as a list of columns (absent without groups) */
+  groupBy?: string[];
 }
 
 export interface NormalizedModel extends ModelSpec {

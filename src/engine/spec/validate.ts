@@ -33,7 +33,7 @@ export interface ValidateResult {
 }
 
 const TOP_KEYS = ['$schema', 'title', 'data', 'models', 'confidence', 'predict', 'solveFor', 'output', 'outputPoints', 'expect', 'thresholds'];
-const DATA_KEYS = ['file', 'x', 'y', 'sigma', 'weight', 'sigmaMode', 'where', 'exclude', 'delimiter', 'decimal', 'badRows'];
+const DATA_KEYS = ['file', 'x', 'y', 'sigma', 'weight', 'sigmaMode', 'where', 'exclude', 'delimiter', 'decimal', 'badRows', 'groupBy'];
 const MODEL_KEYS = ['name', 'builtin', 'polynomial', 'formula', 'params', 'solver'];
 const PARAM_KEYS = ['start', 'min', 'max', 'fixed'];
 const SOLVER_KEYS = ['maxIterations', 'multiStart', 'seconds'];
@@ -365,9 +365,16 @@ export function validateSpec(raw: unknown, ctx: ValidateContext): ValidateResult
         }
         const known = paramsByModel.get(mname);
         const out: Record<string, { value: number; tol: number } | { value: number; rel: number }> = {};
+        const grouped = isObj(raw.data) && raw.data.groupBy !== undefined;
         for (const [pname, e] of Object.entries(entries)) {
           const qp = [...q, pname];
-          if (known && !known.includes(pname)) {
+          // with data.groupBy, 'K[R1]' pins K of group R1 (checked against the groups once the data are read)
+          const indexed = grouped ? /^(.+)\[(.+)\]$/.exec(pname) : null;
+          if (known && indexed && !known.includes(indexed[1])) {
+            c.add('spec-expect', qp, `expect names parameter '${indexed[1]}' (of group '${indexed[2]}'), which model '${mname}' does not have${didYouMean(indexed[1], known)} (parameters: ${quoteList(known)})`, { key: true });
+            continue;
+          }
+          if (known && !indexed && !known.includes(pname)) {
             c.add('spec-expect', qp, `expect names parameter '${pname}', which model '${mname}' does not have${didYouMean(pname, known)} (parameters: ${quoteList(known)})`, { key: true });
             continue;
           }
@@ -467,6 +474,24 @@ function checkData(c: Checker, ctx: ValidateContext, d: Obj, specDir: string, se
   if (d.sigma !== undefined && d.weight !== undefined)
     c.add('spec-sigma-weight', ['data', 'weight'], 'data gives both "sigma" and "weight" — keep one: sigma (standard deviations, weights 1/σ²) or weight (weights directly)');
   const where = c.str(d, 'where', P, { nonEmpty: true });
+  let groupBy: string[] | undefined;
+  if (d.groupBy !== undefined) {
+    const list = typeof d.groupBy === 'string' ? [d.groupBy] : Array.isArray(d.groupBy) ? d.groupBy : null;
+    if (!list || list.length === 0 || list.some((g) => typeof g !== 'string' || g.trim() === ''))
+      c.type(['data', 'groupBy'], 'a column name, or a non-empty list of column names, e.g. "reactor" or ["plate", "well"]', d.groupBy);
+    else if (new Set(list).size !== list.length) c.add('spec-type', ['data', 'groupBy'], 'data.groupBy names a column twice — list each column once');
+    else {
+      groupBy = list as string[];
+      if (ctx.columns) {
+        const label = ctx.dataLabel ?? 'the data file';
+        groupBy.forEach((g, k) => {
+          if (!ctx.columns!.includes(g))
+            c.add('spec-unknown-column', typeof d.groupBy === 'string' ? ['data', 'groupBy'] : ['data', 'groupBy', k],
+              `data.groupBy names '${g}', which is not a column of ${label}${didYouMean(g, ctx.columns!)} (columns: ${quoteList(ctx.columns!, 12)})`);
+        });
+      }
+    }
+  }
   const sigmaMode = c.oneOf(d, 'sigmaMode', P, ['relative', 'absolute'] as const);
   if (sigmaMode === 'absolute' && d.sigma === undefined && d.weight === undefined)
     c.add('spec-sigma-mode', ['data', 'sigmaMode'], 'sigmaMode "absolute" needs data.sigma (the known standard deviations) — add it or remove sigmaMode', { severity: 'warning' });
@@ -545,6 +570,7 @@ function checkData(c: Checker, ctx: ValidateContext, d: Obj, specDir: string, se
   if (nsigma !== undefined) out.sigma = nsigma;
   if (nweight !== undefined) out.weight = nweight;
   if (nwhere !== undefined) out.where = nwhere;
+  if (groupBy !== undefined) out.groupBy = groupBy;
   return out;
 }
 

@@ -158,6 +158,13 @@ export function summaryText(r: FitReport, specShown: string, written: string | n
       out.push(`  inverse prediction (${best.name}) at y = ${num(inv.y, 6)}: back-calculated x = ${roots}${inv.extrapolated ? ' (extrapolated)' : ''}`);
     }
   }
+  if (r.derived?.length) {
+    const shownD = r.derived.slice(0, MAX_GROUP_ROWS);
+    const conf = `${num(r.confidence * 100, 3)} %`;
+    for (const d of shownD)
+      out.push(`  derived ${d.name} (${d.model}${d.group !== null ? `, group ${d.group}` : ''}): ${num(d.value, 5)}${d.se !== null ? ` ± ${num(d.se, 2)}` : ''}${d.ci ? ` [${num(d.ci[0])}, ${num(d.ci[1])}] (${conf} Wald)` : ''}`);
+    if (r.derived.length > shownD.length) out.push(`  … ${r.derived.length - shownD.length} more derived values — see --json or the results file`);
+  }
   if (r.expect.length) {
     const met = r.expect.filter(e => e.ok).length;
     out.push(`  expect: ${met} of ${r.expect.length} met${met < r.expect.length ? ` — ${r.expect.filter(e => !e.ok).map(expectText).join('; ')}` : ''}`);

@@ -68,6 +68,21 @@ export interface FitSpec {
   outputPoints?: 'inline' | 'sidecar' | 'omit';
   expect?: Record<string, Record<string, ExpectSpec>>;
   thresholds?: Partial<Thresholds>;
+  /** name -> expression over a model's parameters (e.g. "log(2)/r"), reported for every model that has them */
+  derived?: Record<string, string>;
+}
+
+/** A derived quantity of one fitted model (and group): value, delta-method SE and Wald interval. */
+export interface DerivedReport {
+  name: string;
+  model: string;
+  /** the group of the fit, or null without data.groupBy */
+  group: string | null;
+  value: number;
+  /** delta-method standard error sqrt(gᵀ C g), g the exact gradient of the expression; null without a covariance */
+  se: number | null;
+  /** Wald interval value ± q·se at the spec's confidence (q from t with the fit's dof, or normal with known σ) */
+  ci: [number, number] | null;
 }
 
 /** Problem-detection defaults; one table, documented in docs/problems.md, overridable by `thresholds` in a spec. */
@@ -357,6 +372,8 @@ export interface FitReport {
   best: string | null;
   problems: Problem[];
   expect: ExpectResult[];
+  /** with spec.derived: each derived quantity for each model (and group) that has its parameters */
+  derived?: DerivedReport[];
   /** confidence level of every interval */
   confidence: number;
   /** the sidecar file holding every model's points and band (outputPoints "sidecar"), relative to this file */

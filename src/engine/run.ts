@@ -32,6 +32,7 @@ import { buildModel, fitModel } from './models';
 import { analyzeModel, compareModels, dataCorrelation, resolveThresholds } from './stats';
 import type { AnalysisOptions, ModelAnalysisInput } from './stats/api';
 import { sidecarPath, splitReport, type OutputPoints } from './pointsFile';
+import { derivedFor } from './stats/derived';
 
 export interface RunOptions {
   /** spec text to use instead of the file on disk (e.g. unsaved editor text) */
@@ -363,8 +364,9 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
     };
   }
 
-  // 6. expectations
+  // 6. expectations and derived quantities
   const expect = checkExpectations(spec, models);
+  const derived = spec.derived ? models.flatMap(m => derivedFor(spec.derived!, m, { confidence: spec.confidence, absolute: spec.data.sigmaMode === 'absolute' })) : undefined;
   if (groups) {
     const ids = groups.map(g => g.id);
     for (const [modelName, params] of Object.entries(spec.expect ?? {}))
@@ -394,6 +396,7 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
     best: comparison ? comparison.best : null,
     problems: dedupe([...specProblems, ...dataProblems, ...correlationProblems, ...runProblems]),
     expect,
+    ...(derived ? { derived } : {}),
     confidence: spec.confidence,
   };
   // results files are committed: no absolute paths of this machine in them, only paths relative to the spec
@@ -593,7 +596,7 @@ export interface SerializeOptions {
 }
 
 /** Top-level key order of a FitReport (others follow in insertion order). */
-const REPORT_KEYS = ['version', 'spec', 'title', 'error', 'meta', 'data', 'groups', 'models', 'comparison', 'best', 'problems', 'expect', 'confidence'];
+const REPORT_KEYS = ['version', 'spec', 'title', 'error', 'meta', 'data', 'groups', 'models', 'comparison', 'best', 'problems', 'expect', 'derived', 'confidence'];
 
 function normalise(v: unknown): unknown {
   if (typeof v === 'number') return Number.isFinite(v) ? (Object.is(v, -0) ? 0 : v) : null;

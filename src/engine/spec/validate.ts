@@ -32,7 +32,7 @@ export interface ValidateResult {
   data?: { file: string; fileGiven: string; delimiter: NormalizedData['delimiter']; decimal: NormalizedData['decimal'] };
 }
 
-const TOP_KEYS = ['$schema', 'title', 'data', 'models', 'confidence', 'predict', 'solveFor', 'output', 'outputPoints', 'expect', 'thresholds'];
+const TOP_KEYS = ['$schema', 'title', 'data', 'models', 'confidence', 'predict', 'solveFor', 'output', 'outputPoints', 'expect', 'thresholds', 'derived'];
 const DATA_KEYS = ['file', 'x', 'y', 'sigma', 'weight', 'sigmaMode', 'where', 'exclude', 'delimiter', 'decimal', 'badRows', 'groupBy'];
 const MODEL_KEYS = ['name', 'builtin', 'polynomial', 'formula', 'params', 'solver'];
 const PARAM_KEYS = ['start', 'min', 'max', 'fixed'];
@@ -410,6 +410,44 @@ export function validateSpec(raw: unknown, ctx: ValidateContext): ValidateResult
     }
   }
 
+  // ------------------------------------------------------------------ derived
+  const derived: Record<string, string> = {};
+  if (raw.derived !== undefined) {
+    if (!isObj(raw.derived)) c.type(['derived'], 'an object { "name": "expression over parameters" }, e.g. { "doubling": "log(2)/r" }', raw.derived);
+    else {
+      for (const [dname, expr] of Object.entries(raw.derived)) {
+        const q: JsonPath = ['derived', dname];
+        if (!PLAIN_IDENT.test(dname)) {
+          c.add('spec-derived', q, `derived quantity name '${dname}' must be a plain name (letters, digits, _; not starting with a digit)`, { key: true });
+          continue;
+        }
+        if (typeof expr !== 'string' || expr.trim() === '') {
+          c.type(q, 'an expression over parameters in double quotes, e.g. "log(2)/r"', expr);
+          continue;
+        }
+        let ids: string[];
+        try {
+          ids = [...new Set(formulaIdentifiers(expr).map((u) => u.name))];
+        } catch (e) {
+          if (e instanceof FormulaError) {
+            c.add('spec-expression', q, `derived.${dname} ${JSON.stringify(expr)} is not a valid expression: ${e.message}`, { charIndex: e.span.start });
+            continue;
+          }
+          throw e;
+        }
+        const lists = [...paramsByModel.entries()].filter((e): e is [string, string[]] => e[1] !== undefined);
+        if (lists.length > 0 && !lists.some(([, ps]) => ids.every((i) => ps.includes(i)))) {
+          const all = [...new Set(lists.flatMap(([, ps]) => ps))];
+          const missing = ids.filter((i) => !all.includes(i));
+          const hint = missing.length ? ` ('${missing[0]}' is no model's parameter${didYouMean(missing[0], all)})` : ' (no one model has all of them)';
+          c.add('spec-derived', q, `derived.${dname} uses ${ids.map((i) => `'${i}'`).join(', ')}, which no model can evaluate${hint} — models and their parameters: ${lists.map(([n, ps]) => `${n} (${ps.join(', ')})`).join('; ')}`);
+          continue;
+        }
+        derived[dname] = expr;
+      }
+    }
+  }
+
   let dataFile: ValidateResult['data'];
   if (isObj(d) && typeof d.file === 'string' && d.file.trim() !== '') {
     const delimiter = ['auto', ',', ';', '\t'].includes(d.delimiter as string) ? (d.delimiter as NormalizedData['delimiter']) : DEFAULTS.data.delimiter;
@@ -434,6 +472,7 @@ export function validateSpec(raw: unknown, ctx: ValidateContext): ValidateResult
     spec.outputGiven = outputGiven;
   }
   if (outputPoints !== undefined) spec.outputPoints = outputPoints;
+  if (Object.keys(derived).length > 0) spec.derived = derived;
   return { spec, problems: c.problems, ...(dataFile ? { data: dataFile } : {}) };
 }
 

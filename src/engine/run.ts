@@ -21,10 +21,9 @@ import {
   type Thresholds,
 } from './report';
 import { FormulaError } from './formula/types';
-import { formulaIdentifiers } from './formula';
 import { parseSpecText, validateSpec, locatePath } from './spec';
 import type { NormalizedSpec } from './spec/types';
-import { DataError, prepareData, readHeader, readTable } from './data';
+import { DataError, columnPaths, columnsNeeded, prepareData, readHeader, readTable } from './data';
 import type { Table } from './data/types';
 import { buildModel, fitModel } from './models';
 import { analyzeModel, compareModels, dataCorrelation, resolveThresholds } from './stats';
@@ -95,28 +94,6 @@ function locationOf(text: string, file: string, jsonPath: JsonPath): FileLocatio
 function internalMessage(e: unknown, doing: string): string {
   const m = e instanceof Error ? e.message : String(e);
   return `internal error while ${doing}: ${m} — this is a bug in Curvewright; please report it with the spec and data file`;
-}
-
-// ------------------------------------------------------------------ columns
-
-/** Columns of the CSV the spec reads: identifiers of data.x, y, sigma, weight and where that name a header column. */
-export function columnsNeeded(spec: NormalizedSpec, header: string[]): string[] {
-  const wanted = new Set<string>();
-  const texts: { text: string; logic: boolean }[] = [];
-  for (const expr of Object.values(spec.data.x)) texts.push({ text: expr, logic: false });
-  texts.push({ text: spec.data.y, logic: false });
-  if (spec.data.sigma) texts.push({ text: spec.data.sigma, logic: false });
-  if (spec.data.weight) texts.push({ text: spec.data.weight, logic: false });
-  if (spec.data.where) texts.push({ text: spec.data.where, logic: true });
-  const columns = new Set(header);
-  for (const { text, logic } of texts) {
-    if (columns.has(text)) {
-      wanted.add(text);
-      continue;
-    }
-    for (const id of formulaIdentifiers(text, { logic })) if (columns.has(id.name)) wanted.add(id.name);
-  }
-  return header.filter(c => wanted.has(c));
 }
 
 // ------------------------------------------------------------------ output path checks
@@ -224,7 +201,10 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
 
   // 3. data
   progress(`reading ${spec.data.fileGiven}`);
-  const table = await readTable(spec.data.file, { columns: columnsNeeded(spec, header), ...readOpts, badRows: spec.data.badRows });
+  // the columns the spec reads (those the header has; validateSpec has reported any other), and for each the data key
+  // that reads it, so that a bad cell points at that key (e.g. ["data","y"]) rather than at the file
+  const columns = columnsNeeded(spec, header).filter(c => header.includes(c));
+  const table = await readTable(spec.data.file, { columns, columnPaths: columnPaths(spec, header), ...readOpts, badRows: spec.data.badRows });
   const prepared = prepareData(spec, table);
   const dataProblems = dedupe([...table.problems, ...prepared.problems]);
   if (dataProblems.some(p => p.severity === 'error')) return fromProblems(name, [...specProblems, ...dataProblems]);

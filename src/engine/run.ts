@@ -29,6 +29,7 @@ import { buildModel, fitModel } from './models';
 import { analyzeModel, compareModels, dataCorrelation, resolveThresholds } from './stats';
 import type { AnalysisOptions, ModelAnalysisInput } from './stats/api';
 import { sidecarPath, splitReport, type OutputPoints } from './pointsFile';
+import { DEFAULTS } from './spec/defaults';
 
 export interface RunOptions {
   /** spec text to use instead of the file on disk (e.g. unsaved editor text) */
@@ -47,7 +48,7 @@ export interface RunOptions {
  * Time budgets of profiling and cross-validation per model. Generous on purpose: a budget that runs out makes the
  * result depend on the machine's speed, and the same spec and data must give byte-identical reports.
  */
-export const ANALYSIS_DEFAULTS: AnalysisOptions = { profileSeconds: 10, cvSeconds: 10 };
+export const ANALYSIS_DEFAULTS: AnalysisOptions = { profileSeconds: DEFAULTS.analysis.profileSeconds, cvSeconds: DEFAULTS.analysis.cvSeconds };
 
 /** Seed of every randomised step (multi-start); fixed so that the same spec and data give the same report. */
 export const RUN_SEED = 1;

@@ -14,6 +14,7 @@ import { crossValidate, sortedOrder } from './crossval';
 import { computeBand, computeInverse, computePrediction, predictionPoint, variableRange, type PredictionContext } from './predict';
 import { fmt } from './format';
 import { roleOf } from '../models/roles';
+import { DEFAULTS } from '../spec/defaults';
 
 /** LsqProblem over the given data for a compiled formula. */
 export function lsqProblem(input: Pick<ModelAnalysisInput, 'compiled' | 'X' | 'y' | 'w' | 'params'>): LsqProblem {
@@ -67,8 +68,8 @@ export function hasConstantColumn(J: Float64Array, n: number, p: number, free: b
   return Math.sqrt(r) < 1e-8;
 }
 
-const PROFILE_SECONDS = 2;
-const CV_SECONDS = 2;
+const PROFILE_SECONDS: number = DEFAULTS.analysis.profileSeconds;
+const CV_SECONDS: number = DEFAULTS.analysis.cvSeconds;
 
 function emptyStats(n: number, dof: number, sse: number): FitStats {
   return {
@@ -366,7 +367,7 @@ export function analyzeModel(input: ModelAnalysisInput): ModelReport {
 
   // ------------------------------------------------------------ band, predictions, inverse
   const pctx: PredictionContext = { compiled, theta, cov, free, q: qWald, scale, X, w };
-  if (input.variables.length === 1) report.band = computeBand(pctx, input.variables[0], opts.bandPoints ?? 200);
+  if (input.variables.length === 1) report.band = computeBand(pctx, input.variables[0], opts.bandPoints ?? DEFAULTS.analysis.bandPoints);
   const ranges = variableRange(X);
   input.predict.forEach((entry, k) => {
     const pt = predictionPoint(entry, input.variables);

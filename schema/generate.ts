@@ -193,6 +193,7 @@ export function fitspecSchema(): Schema {
         ],
       }),
       solveFor: arr('y values to read x off the curve at (inverse prediction, single x variable).', num('A y value.')),
+      predictWeight: num('Weight of a new observation in the prediction intervals of predict, solveFor and the band (on the scale of data.weight, or 1/σ² with data.sigma). Default: the weight of the observation nearest in x.', { exclusiveMinimum: 0 }),
       output: str(
         'Results file (FitReport JSON), relative to this spec file. Must stay inside the workspace and may not be the data or spec file.',
         { minLength: 1 },
@@ -334,6 +335,10 @@ export function fitreportSchema(): Schema {
     ci: nullableInterval('Confidence interval of the mean.'),
     pi: nullableInterval('Prediction interval of a new observation.'),
     extrapolated: bool('x lies outside the fitted range.'),
+    weight: obj('Weight of the new observation in pi (weighted fits, or spec predictWeight).', {
+      value: num('The weight.'),
+      from: { enum: ['spec', 'nearest'], description: '"spec": predictWeight; "nearest": the weight of the observation nearest in x.' },
+    }, ['value', 'from']),
   }, ['x', 'y', 'ci', 'pi', 'extrapolated']);
   const inverse = obj('x values read off the curve at one y.', {
     y: num('The y value.'),
@@ -379,10 +384,12 @@ export function fitreportSchema(): Schema {
           weight: nnum('Akaike weight.'),
           cvRmse: nnum('Cross-validated RMSE.'),
         }, ['name', 'aicc', 'deltaAicc', 'weight', 'cvRmse'])),
-        fTests: arr('Extra-sum-of-squares F-tests of nested pairs.', obj('One test.', {
+        fTests: arr('Tests of nested pairs: the extra-sum-of-squares F-test, or with known σ (sigmaMode "absolute") the χ² difference test.', obj('One test.', {
           simpler: str('Simpler model.'),
           richer: str('Richer model.'),
-          F: num('F statistic.'),
+          test: { enum: ['chi2'], description: 'Present ("chi2") for the χ² difference test with known σ; absent for the F-test.' },
+          chi2: num('Δχ² of the χ² difference test (test "chi2").'),
+          F: num('F statistic (for the χ² test: Δχ²/df1).'),
           df1: num('Numerator degrees of freedom.'),
           df2: num('Denominator degrees of freedom.'),
           p: num('p-value.'),

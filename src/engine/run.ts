@@ -268,6 +268,7 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
         confidence: spec.confidence,
         predict: spec.predict,
         solveFor: spec.solveFor,
+        predictWeight: spec.predictWeight,
         thresholds,
         solverOptions: { maxIterations: m.solver.maxIterations, seconds: m.solver.seconds },
         shouldStop: opts.shouldStop,

@@ -32,7 +32,7 @@ export interface ValidateResult {
   data?: { file: string; fileGiven: string; delimiter: NormalizedData['delimiter']; decimal: NormalizedData['decimal'] };
 }
 
-const TOP_KEYS = ['$schema', 'title', 'data', 'models', 'confidence', 'predict', 'solveFor', 'output', 'outputPoints', 'expect', 'thresholds'];
+const TOP_KEYS = ['$schema', 'title', 'data', 'models', 'confidence', 'predict', 'solveFor', 'predictWeight', 'output', 'outputPoints', 'expect', 'thresholds'];
 const DATA_KEYS = ['file', 'x', 'y', 'sigma', 'weight', 'sigmaMode', 'where', 'exclude', 'delimiter', 'decimal', 'badRows'];
 const MODEL_KEYS = ['name', 'builtin', 'polynomial', 'formula', 'params', 'solver'];
 const PARAM_KEYS = ['start', 'min', 'max', 'fixed'];
@@ -323,6 +323,13 @@ export function validateSpec(raw: unknown, ctx: ValidateContext): ValidateResult
       });
     }
   }
+  // the weight of a new observation in prediction intervals (predict and solveFor); default: nearest observed x
+  let predictWeight: number | undefined;
+  if (raw.predictWeight !== undefined) {
+    if (!isNum(raw.predictWeight)) c.type(['predictWeight'], 'a positive number (the weight of a new observation, on the scale of data.weight or 1/σ²)', raw.predictWeight);
+    else if (!(raw.predictWeight > 0) || !Number.isFinite(raw.predictWeight)) c.add('spec-range', ['predictWeight'], `predictWeight must be a positive number, not ${raw.predictWeight} — e.g. 1`);
+    else predictWeight = raw.predictWeight;
+  }
 
   // ------------------------------------------------------------------ output
   let output: string | undefined;
@@ -418,6 +425,7 @@ export function validateSpec(raw: unknown, ctx: ValidateContext): ValidateResult
     confidence,
     predict,
     solveFor,
+    ...(predictWeight !== undefined ? { predictWeight } : {}),
     expect,
     thresholds,
   };

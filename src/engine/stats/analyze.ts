@@ -6,7 +6,7 @@ import type { LsqProblem } from '../solve/types';
 import type { ModelAnalysisInput } from './api';
 import { covarianceFromJacobian, leverage } from './covariance';
 import { chi2Sf, normalQuantile, tQuantile, tTwoSidedP, normalSf } from './distributions';
-import { informationCriteria } from './information';
+import { informationCriteria, informationCriteriaKnownSigma } from './information';
 import { durbinWatson, normalityTest } from './residualTests';
 import { runsByPosition, type PositionRuns } from './runs';
 import { profileIntervals } from './profile';
@@ -206,6 +206,11 @@ export function analyzeModel(input: ModelAnalysisInput): ModelReport {
     return report;
   }
 
+  // a model linear in θ with a parameter on its bound: the profile is not the Wald quadratic any more (the bound is
+  // kept while profiling), so it is computed like a nonlinear model's; otherwise profile-t equals Wald exactly
+  const boundActive = params.some((_, j) => !input.fixed[j] && (res.atBound[j] ?? null) !== null);
+  const waldIsProfile = input.linear && !boundActive;
+
   // ------------------------------------------------------------ covariance and parameters
   const covInfo0 = covarianceFromJacobian(J, n, p, w, free, 1);
   const rank = covInfo0.rank;
@@ -234,7 +239,7 @@ export function analyzeModel(input: ModelAnalysisInput): ModelReport {
       }
       if (Number.isFinite(qWald)) {
         pr.ci = [theta[j] - qWald * se[j], theta[j] + qWald * se[j]];
-        if (input.linear) pr.profileCi = pr.ci.slice() as [number, number]; // linear models: profile-t equals Wald exactly
+        if (waldIsProfile) pr.profileCi = pr.ci.slice() as [number, number]; // linear models: profile-t equals Wald exactly
       }
     }
     report.params[name] = pr;
@@ -285,7 +290,7 @@ export function analyzeModel(input: ModelAnalysisInput): ModelReport {
     stats.reducedChi2 = dof > 0 ? sse / dof : null;
     stats.chi2P = absolute && dof > 0 ? chi2Sf(sse, dof) : null;
   }
-  const ic = informationCriteria(sse, nPos, pFree, sumLogW);
+  const ic = absolute ? informationCriteriaKnownSigma(sse, nPos, pFree, sumLogW) : informationCriteria(sse, nPos, pFree, sumLogW);
   stats.logLik = ic.logLik;
   stats.aic = ic.aic;
   stats.aicc = ic.aicc;
@@ -312,7 +317,9 @@ export function analyzeModel(input: ModelAnalysisInput): ModelReport {
   const tests: ResidualTests = {
     runs: runs ? { runs: runs.runs, expected: runs.expected, z: runs.z, p: runs.p } : null,
     normality: normality ? { test: normality.test, statistic: normality.statistic, p: normality.p } : null,
-    durbinWatson: allZero ? null : durbinWatson(rOrdered),
+    // Durbin–Watson is defined on the observations in the order they were taken: data row order (Durbin & Watson
+    // 1950); patterns along x are the runs test's job
+    durbinWatson: allZero ? null : durbinWatson(r),
   };
   report.residualTests = tests;
 
@@ -335,12 +342,12 @@ export function analyzeModel(input: ModelAnalysisInput): ModelReport {
     }
   }
 
-  // ------------------------------------------------------------ profile-likelihood intervals (nonlinear only)
+  // ------------------------------------------------------------ profile-likelihood intervals (nonlinear, or bound active)
   const openProfile = new Set<number>();
   /** parameters whose profile interval was computed to the end (both sides found or shown not to exist) */
   const profiled = new Set<number>();
   // (an exact fit, s = 0, has no profile to walk: its intervals are degenerate and profileCi stays null)
-  if (!input.linear && opts.profile !== false && dof > 0 && Number.isFinite(qWald) && scale > 0) {
+  if (!waldIsProfile && opts.profile !== false && dof > 0 && Number.isFinite(qWald) && scale > 0) {
     const seconds = opts.profileSeconds ?? PROFILE_SECONDS;
     const prof = profileIntervals({
       problem: lsqProblem(input), theta, lower: input.lower, upper: input.upper, fixed: input.fixed,
@@ -370,7 +377,7 @@ export function analyzeModel(input: ModelAnalysisInput): ModelReport {
   }
 
   // ------------------------------------------------------------ band, predictions, inverse
-  const pctx: PredictionContext = { compiled, theta, cov, free, q: qWald, scale, X, w };
+  const pctx: PredictionContext = { compiled, theta, cov, free, q: qWald, scale, X, w, predictWeight: input.predictWeight };
   if (input.variables.length === 1) report.band = computeBand(pctx, input.variables[0], opts.bandPoints ?? DEFAULTS.analysis.bandPoints);
   const ranges = variableRange(X);
   input.predict.forEach((entry, k) => {
@@ -421,7 +428,21 @@ export function analyzeModel(input: ModelAnalysisInput): ModelReport {
           `Check that the value is inside the range of the curve (fitted ${fmt(minOf(f))} to ${fmt(maxOf(f))}) and in the same units as y.`,
         path: ['solveFor', k],
       });
-    } else if (inv.extrapolated) {
+    }
+    const open = inv.roots.filter((rt) => rt.interval[0] === null || rt.interval[1] === null);
+    if (open.length > 0 && Number.isFinite(qWald)) {
+      const sides = open.map((rt) => `${input.variables[0]} = ${fmt(rt.x)}: ${rt.interval[0] === null && rt.interval[1] === null ? 'both limits' : rt.interval[0] === null ? 'the lower limit' : 'the upper limit'}`);
+      problems.push({
+        code: 'inverse-unbounded',
+        severity: 'warning',
+        message:
+          `${input.name}: the ${Math.round(100 * input.confidence)}% interval for x at y = ${fmt(yv)} does not close (${sides.join('; ')} does not exist, so it is null): ` +
+          `the prediction interval contains y = ${fmt(yv)} however far x goes on that side, because the curve changes too little there compared with the scatter ` +
+          `(for a straight line: the slope is not significantly different from 0 at this confidence). More data, less scatter or standards further out make the interval finite.`,
+        path: ['solveFor', k],
+      });
+    }
+    if (inv.roots.length > 0 && inv.extrapolated) {
       problems.push({
         code: 'inverse-extrapolation',
         severity: 'warning',

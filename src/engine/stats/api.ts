@@ -49,6 +49,8 @@ export interface ModelAnalysisInput {
   predict: (number | Record<string, number>)[];
   /** y values to invert the curve at */
   solveFor: number[];
+  /** weight of a new observation in prediction intervals (spec predictWeight); absent: nearest observed x's weight */
+  predictWeight?: number;
   /** effective thresholds (DEFAULT_THRESHOLDS merged with the spec's overrides; see resolveThresholds) */
   thresholds: Thresholds;
   /** options for refits (profile likelihood, cross-validation) */

@@ -116,7 +116,8 @@ export function fitspecSchema(): Schema {
       },
       y: str('Column name or expression over columns, e.g. "od600" or "log(od600)".', { minLength: 1 }),
       sigma: str('Column or expression of the standard deviations of y; the weights are 1/sigma². Not together with "weight".', { minLength: 1 }),
-      weight: str('Expression of weights over columns, x and y, e.g. "1/y^2". Not together with "sigma".', { minLength: 1 }),
+      weight: str('Expression of inverse-variance (precision) weights over columns, x and y, e.g. "1/y^2": weight w means y has variance σ²/w. Not together with "sigma". For replicate counts use "count".', { minLength: 1 }),
+      count: str('Column or expression of frequency weights: each row stands for that many identical observations (a whole number ≥ 1); dof, standard errors, likelihood and intervals are those of the expanded data. Combines with sigma or weight.', { minLength: 1 }),
       sigmaMode: {
         type: 'string',
         description:
@@ -311,7 +312,8 @@ export function fitreportSchema(): Schema {
     standardized: numbers('Standardized residuals.'),
     leverage: numbers('Hat values.'),
     cooks: numbers("Cook's distances."),
-    weight: numbers('Weights used (omitted when unweighted).'),
+    weight: numbers('Weights used (omitted when unweighted): precision weights, data.count not included.'),
+    count: numbers('data.count of each row: identical observations it stands for (omitted without data.count).'),
   }, ['row', 'x', 'y', 'fitted', 'residual', 'standardized', 'leverage', 'cooks']);
   const band = {
     description: 'Fitted curve with confidence and prediction bands (single-variable models), or null.',

@@ -42,7 +42,13 @@ export interface DataSpec {
   x: string | Record<string, string>;
   y: string;
   sigma?: string;
+  /** inverse-variance (precision) weights: weight w means the row's y has variance σ²/w */
   weight?: string;
+  /**
+   * frequency weights: each row stands for this many identical observations (a whole number ≥ 1); dof, standard
+   * errors, likelihood and intervals are those of the expanded data. Combines with sigma or weight.
+   */
+  count?: string;
   sigmaMode?: 'relative' | 'absolute';
   where?: string;
   exclude?: ExcludeSpec[];
@@ -189,8 +195,10 @@ export interface PointsReport {
   standardized: number[];
   leverage: number[];
   cooks: number[];
-  /** weights used (omitted when unweighted) */
+  /** weights used (omitted when unweighted): precision weights, data.count not included */
   weight?: number[];
+  /** data.count of each row (omitted without data.count) */
+  count?: number[];
 }
 
 export interface BandReport {

@@ -209,7 +209,9 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
   const prepared = prepareData(spec, table);
   const dataProblems = dedupe([...table.problems, ...prepared.problems]);
   if (dataProblems.some(p => p.severity === 'error')) return fromProblems(name, [...specProblems, ...dataProblems]);
-  const data = { X: prepared.X, y: prepared.y, w: prepared.w };
+  // the weights the fit minimises with: precision weights (sigma or weight) times frequency weights (data.count)
+  const wFit = fitWeights(prepared.w, prepared.count);
+  const data = { X: prepared.X, y: prepared.y, w: wFit };
   const thresholds: Thresholds = resolveThresholds(spec.thresholds);
   // Pearson r of y with each x, and the hint to try a straight line when |r| is high (common practice)
   const correlated = dataCorrelation(prepared.variables, prepared.X, prepared.y, thresholds);
@@ -259,7 +261,9 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
         variables: prepared.variables,
         X: prepared.X,
         y: prepared.y,
-        w: prepared.w,
+        w: wFit,
+        count: prepared.count,
+        precision: prepared.w,
         rows: prepared.rows,
         sigmaMode: spec.data.sigmaMode,
         result,
@@ -331,6 +335,12 @@ function asWritten(m: NormalizedSpec['models'][number], raw: unknown): Normalize
     return rest as NormalizedSpec['models'][number];
   }
   return m;
+}
+
+/** Precision weights times frequency weights (data.count); null when neither is given. */
+function fitWeights(w: Float64Array | null, count: Float64Array | null): Float64Array | null {
+  if (!count) return w;
+  return Float64Array.from(count, (c, i) => c * (w ? w[i] : 1));
 }
 
 /** Errors thrown by buildModel with a user message (not a bug): plain Errors whose name says so. */

@@ -130,4 +130,70 @@ describe(`statistics against R (${R.R}; figures from scripts/reference-r.R)`, fu
     assert.equal(nearest.weight!.from, 'nearest');
     close(nearest.weight!.value, c.weight_nearest, 1e-15, 'nearest weight');
   });
+
+  it('data.count (frequency weights) equals the fit on the expanded rows (datasets::cars binned into counts; lm on the expanded data)', async () => {
+    const c = R.counts_expanded;
+    const counted = await fit({ x: c.x, y: c.y, n: c.count }, {
+      data: { x: 'x', y: 'y', count: 'n' }, predict: [12], solveFor: [40],
+      models: [{ name: 'line', builtin: 'linear' }, { name: 'quad', polynomial: 2 }],
+    });
+    const ex: Record<string, number[]> = { x: [], y: [] };
+    c.x.forEach((x: number, i: number) => { for (let k = 0; k < c.count[i]; k++) { ex.x.push(x); ex.y.push(c.y[i]); } });
+    const expanded = await fit(ex, {
+      data: { x: 'x', y: 'y' }, predict: [12], solveFor: [40],
+      models: [{ name: 'line', builtin: 'linear' }, { name: 'quad', polynomial: 2 }],
+    });
+    const line = counted.models[0];
+    // against R on the expanded rows
+    close(line.params.intercept.value, c.intercept, 1e-10, 'intercept');
+    close(line.params.slope.value, c.slope, 1e-10, 'slope');
+    close(line.params.intercept.se, c.se_intercept, 1e-10, 'SE intercept');
+    close(line.params.slope.se, c.se_slope, 1e-10, 'SE slope');
+    close(line.stats.sigma, c.sigma, 1e-10, 'σ');
+    assert.equal(line.stats.dof, c.dof);
+    close(line.stats.logLik, c.logLik, 1e-10, 'logLik');
+    close(line.stats.aic, c.aic, 1e-10, 'AIC');
+    close(line.stats.bic, c.bic, 1e-10, 'BIC');
+    // and every inference figure equal to the expanded fit's, to 1e-10
+    for (let k = 0; k < 2; k++) {
+      const a = counted.models[k];
+      const b = expanded.models[k];
+      assert.equal(a.stats.n, b.stats.n);
+      assert.equal(a.stats.dof, b.stats.dof);
+      for (const s of ['sse', 'sigma', 'r2', 'adjR2', 'logLik', 'aic', 'aicc', 'bic'] as const) close(a.stats[s] as number, b.stats[s] as number, 1e-10, `${a.name} ${s}`);
+      for (const pn of a.paramOrder) {
+        const pa = a.params[pn];
+        const pb = b.params[pn];
+        close(pa.value, pb.value, 1e-10, `${pn} value`);
+        close(pa.se, pb.se!, 1e-10, `${pn} SE`);
+        pa.ci!.forEach((v, i) => close(v, pb.ci![i], 1e-10, `${pn} ci`));
+        pa.profileCi!.forEach((v, i) => close(v, pb.profileCi![i] as number, 1e-10, `${pn} profileCi`));
+      }
+      a.predictions[0].ci!.forEach((v, i) => close(v, b.predictions[0].ci![i], 1e-10, 'prediction CI'));
+      a.predictions[0].pi!.forEach((v, i) => close(v, b.predictions[0].pi![i], 1e-10, 'prediction PI'));
+      close(a.inverse[0].roots[0].x, b.inverse[0].roots[0].x, 1e-10, 'inverse root');
+      a.inverse[0].roots[0].interval.forEach((v, i) => {
+        const o = b.inverse[0].roots[0].interval[i];
+        if (o === null) assert.equal(v, null, 'inverse limit: both absent');
+        else close(v, o, 1e-8, 'inverse limit');
+      });
+      close(a.residualTests!.durbinWatson, b.residualTests!.durbinWatson!, 1e-10, 'Durbin–Watson on the expanded residuals');
+      close(a.residualTests!.normality!.statistic, b.residualTests!.normality!.statistic, 1e-8, 'normality statistic');
+    }
+    const f1 = counted.comparison!.fTests[0];
+    const f2 = expanded.comparison!.fTests[0];
+    close(f1.F, f2.F, 1e-8, 'nested F');
+    assert.equal(f1.df2, f2.df2);
+  });
+
+  it('data.count must be a whole number ≥ 1: other rows are left out with bad-count at ["data","count"]', async () => {
+    const r = await fit({ x: [1, 2, 3, 4, 5, 6], y: [2.1, 3.9, 6.2, 8.1, 9.8, 12.2], n: [1, 2, 0.5, 1, 3, 1] }, {
+      data: { x: 'x', y: 'y', count: 'n' }, models: [{ name: 'line', builtin: 'linear' }],
+    });
+    const p = r.problems.find((q) => q.code === 'bad-count');
+    assert.ok(p, 'bad-count reported');
+    assert.deepEqual(p!.path, ['data', 'count']);
+    assert.equal(r.data.used, 5);
+    assert.equal(r.models[0].stats.n, 8);
+  });
 });

@@ -33,7 +33,7 @@ export interface ValidateResult {
 }
 
 const TOP_KEYS = ['$schema', 'title', 'data', 'models', 'confidence', 'predict', 'solveFor', 'predictWeight', 'output', 'outputPoints', 'expect', 'thresholds'];
-const DATA_KEYS = ['file', 'x', 'y', 'sigma', 'weight', 'sigmaMode', 'where', 'exclude', 'delimiter', 'decimal', 'badRows'];
+const DATA_KEYS = ['file', 'x', 'y', 'sigma', 'weight', 'count', 'sigmaMode', 'where', 'exclude', 'delimiter', 'decimal', 'badRows'];
 const MODEL_KEYS = ['name', 'builtin', 'polynomial', 'formula', 'params', 'solver'];
 const PARAM_KEYS = ['start', 'min', 'max', 'fixed'];
 const SOLVER_KEYS = ['maxIterations', 'multiStart', 'seconds'];
@@ -472,6 +472,7 @@ function checkData(c: Checker, ctx: ValidateContext, d: Obj, specDir: string, se
   const y = c.str(d, 'y', P, { required: 'the y column or expression, e.g. "od600"', nonEmpty: true });
   const sigma = c.str(d, 'sigma', P, { nonEmpty: true });
   const weight = c.str(d, 'weight', P, { nonEmpty: true });
+  const count = c.str(d, 'count', P, { nonEmpty: true });
   if (d.sigma !== undefined && d.weight !== undefined)
     c.add('spec-sigma-weight', ['data', 'weight'], 'data gives both "sigma" and "weight" — keep one: sigma (standard deviations, weights 1/σ²) or weight (weights directly)');
   const where = c.str(d, 'where', P, { nonEmpty: true });
@@ -537,6 +538,7 @@ function checkData(c: Checker, ctx: ValidateContext, d: Obj, specDir: string, se
   const extra = [...variables, 'y'];
   const nweight = weight !== undefined ? checkExpression(c, ectx, weight, ['data', 'weight'], 'data.weight', { extra }) : undefined;
   const nwhere = where !== undefined ? checkExpression(c, ectx, where, ['data', 'where'], 'data.where', { extra, logic: true }) : undefined;
+  const ncount = count !== undefined ? checkExpression(c, ectx, count, ['data', 'count'], 'data.count', { extra }) : undefined;
 
   if (c.errors > errorsBefore || file === undefined || ny === undefined) return undefined;
   const out: NormalizedData = {
@@ -553,6 +555,7 @@ function checkData(c: Checker, ctx: ValidateContext, d: Obj, specDir: string, se
   if (nsigma !== undefined) out.sigma = nsigma;
   if (nweight !== undefined) out.weight = nweight;
   if (nwhere !== undefined) out.where = nwhere;
+  if (ncount !== undefined) out.count = ncount;
   return out;
 }
 

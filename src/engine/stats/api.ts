@@ -49,6 +49,10 @@ export interface ModelAnalysisInput {
   predict: (number | Record<string, number>)[];
   /** y values to invert the curve at */
   solveFor: number[];
+  /** data.count: identical observations per row (w then includes it: w = count × precision weight), or null */
+  count?: Float64Array | null;
+  /** with count: the precision weights alone (1/σ² or data.weight), or null when none were given */
+  precision?: Float64Array | null;
   /** weight of a new observation in prediction intervals (spec predictWeight); absent: nearest observed x's weight */
   predictWeight?: number;
   /** effective thresholds (DEFAULT_THRESHOLDS merged with the spec's overrides; see resolveThresholds) */

@@ -166,7 +166,7 @@ describe(`statistics against R (${R.R}; figures from scripts/reference-r.R)`, fu
         const pb = b.params[pn];
         close(pa.value, pb.value, 1e-10, `${pn} value`);
         close(pa.se, pb.se!, 1e-10, `${pn} SE`);
-        pa.ci!.forEach((v, i) => close(v, pb.ci![i], 1e-10, `${pn} ci`));
+        pa.ci!.forEach((v, i) => close(v, pb.ci![i] as number, 1e-10, `${pn} ci`));
         pa.profileCi!.forEach((v, i) => close(v, pb.profileCi![i] as number, 1e-10, `${pn} profileCi`));
       }
       a.predictions[0].ci!.forEach((v, i) => close(v, b.predictions[0].ci![i], 1e-10, 'prediction CI'));

@@ -179,6 +179,7 @@ describe(`statistics against R (${R.R}; figures from scripts/reference-r.R)`, fu
       });
       close(a.residualTests!.durbinWatson, b.residualTests!.durbinWatson!, 1e-10, 'Durbin–Watson on the expanded residuals');
       close(a.residualTests!.normality!.statistic, b.residualTests!.normality!.statistic, 1e-8, 'normality statistic');
+      assert.deepEqual(a.residualTests!.runs, b.residualTests!.runs, 'runs test on x positions');
     }
     const f1 = counted.comparison!.fTests[0];
     const f2 = expanded.comparison!.fTests[0];

@@ -352,7 +352,8 @@ export function analyzeModel(input: ModelAnalysisInput): ModelReport {
   const rRows = count ? expandByCount(rObs, identityOrder(n), count) : r;
   const allZero = rOrdered.every((v) => Math.abs(v) <= 1e-14 * (Math.abs(y[0]) + 1));
   // replicates at the same x form one position (the sign of their mean residual); exact p for small counts
-  const runs = allZero ? null : runsByPosition(r, X, order);
+  // (with data.count the sign of Σ count·rObs over a position is the sign of the expanded observations' mean)
+  const runs = allZero ? null : runsByPosition(count ? Float64Array.from(rObs, (v, i) => v * count[i]) : r, X, order);
   const normality = allZero ? null : normalityTest(rOrdered);
   const tests: ResidualTests = {
     runs: runs ? { runs: runs.runs, expected: runs.expected, z: runs.z, p: runs.p } : null,

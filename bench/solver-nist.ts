@@ -11,7 +11,20 @@ import { solveNonlinear } from '../src/engine/solve';
 import { solveNonlinearWithScaling } from '../src/engine/solve/lm';
 import { lre, readStrd, strdDir, StrdProblem } from '../test/reference/strd';
 import { NIST_MODELS } from '../test/reference/nist-models';
-import { lsqFromFormula } from '../test/reference/nist-run';
+import type { LsqProblem } from '../src/engine/solve/types';
+
+/** the least-squares problem of a compiled formula on columns X and observations y (solver level, for the bench) */
+function lsqFromFormula(compiled: CompiledFormula, X: Float64Array[], y: Float64Array): LsqProblem {
+  return {
+    n: y.length,
+    p: compiled.params.length,
+    y,
+    model(theta, f, J) {
+      if (J) compiled.evaluateWithJacobian(theta, X, f, J);
+      else compiled.evaluate(theta, X, f);
+    },
+  };
+}
 
 // the peer ships as an ES module whose types need moduleResolution node16; tsx loads it through require
 type PeerFn = (
@@ -92,7 +105,7 @@ function main(): void {
     const m = NIST_MODELS[prob.name];
     const c = compileFormula(m.formula, { variables: m.variables, params: prob.params });
     const X = prob.x.map((a) => Float64Array.from(a));
-    const y = Float64Array.from(prob.y.map(m.transformY ?? ((v) => v)));
+    const y = Float64Array.from(prob.y.map(m.y === 'log(y)' ? Math.log : (v: number) => v)); // Nelson is fitted on log(y)
     const lsq = lsqFromFormula(c, X, y);
     for (const start of [0, 1]) {
       const ours = timed(() => solveNonlinear(lsq, { theta0: prob.starts[start] }));

@@ -116,7 +116,8 @@ export function fitspecSchema(): Schema {
       },
       y: str('Column name or expression over columns, e.g. "od600" or "log(od600)".', { minLength: 1 }),
       sigma: str('Column or expression of the standard deviations of y; the weights are 1/sigma². Not together with "weight".', { minLength: 1 }),
-      weight: str('Expression of weights over columns, x and y, e.g. "1/y^2". Not together with "sigma".', { minLength: 1 }),
+      weight: str('Expression of inverse-variance (precision) weights over columns, x and y, e.g. "1/y^2": weight w means y has variance σ²/w. Not together with "sigma". For replicate counts use "count".', { minLength: 1 }),
+      count: str('Column or expression of frequency weights: each row stands for that many identical observations (a whole number ≥ 1); dof, standard errors, likelihood and intervals are those of the expanded data. Combines with sigma or weight.', { minLength: 1 }),
       sigmaMode: {
         type: 'string',
         description:
@@ -197,6 +198,7 @@ export function fitspecSchema(): Schema {
         ],
       }),
       solveFor: arr('y values to read x off the curve at (inverse prediction, single x variable).', num('A y value.')),
+      predictWeight: num('Weight of a new observation in the prediction intervals of predict, solveFor and the band (on the scale of data.weight, or 1/σ² with data.sigma). Default: the weight of the observation nearest in x.', { exclusiveMinimum: 0 }),
       output: str(
         'Results file (FitReport JSON), relative to this spec file. Must stay inside the workspace and may not be the data or spec file.',
         { minLength: 1 },
@@ -320,7 +322,8 @@ export function fitreportSchema(): Schema {
     standardized: numbers('Standardized residuals.'),
     leverage: numbers('Hat values.'),
     cooks: numbers("Cook's distances."),
-    weight: numbers('Weights used (omitted when unweighted).'),
+    weight: numbers('Weights used (omitted when unweighted): precision weights, data.count not included.'),
+    count: numbers('data.count of each row: identical observations it stands for (omitted without data.count).'),
   }, ['row', 'x', 'y', 'fitted', 'residual', 'standardized', 'leverage', 'cooks']);
   const band = {
     description: 'Fitted curve with confidence and prediction bands (single-variable models), or null.',
@@ -344,6 +347,10 @@ export function fitreportSchema(): Schema {
     ci: nullableInterval('Confidence interval of the mean.'),
     pi: nullableInterval('Prediction interval of a new observation.'),
     extrapolated: bool('x lies outside the fitted range.'),
+    weight: obj('Weight of the new observation in pi (weighted fits, or spec predictWeight).', {
+      value: num('The weight.'),
+      from: { enum: ['spec', 'nearest'], description: '"spec": predictWeight; "nearest": the weight of the observation nearest in x.' },
+    }, ['value', 'from']),
   }, ['x', 'y', 'ci', 'pi', 'extrapolated']);
   const inverse = obj('x values read off the curve at one y.', {
     y: num('The y value.'),
@@ -385,10 +392,12 @@ export function fitreportSchema(): Schema {
     weight: nnum('Akaike weight.'),
     cvRmse: nnum('Cross-validated RMSE.'),
   }, ['name', 'aicc', 'deltaAicc', 'weight', 'cvRmse']));
-  const fTests = arr('Extra-sum-of-squares F-tests of nested pairs.', obj('One test.', {
+  const fTests = arr('Tests of nested pairs: the extra-sum-of-squares F-test, or with known σ (sigmaMode "absolute") the χ² difference test.', obj('One test.', {
     simpler: str('Simpler model.'),
     richer: str('Richer model.'),
-    F: num('F statistic.'),
+    test: { enum: ['chi2'], description: 'Present ("chi2") for the χ² difference test with known σ; absent for the F-test.' },
+    chi2: num('Δχ² of the χ² difference test (test "chi2").'),
+    F: num('F statistic (for the χ² test: Δχ²/df1).'),
     df1: num('Numerator degrees of freedom.'),
     df2: num('Denominator degrees of freedom.'),
     p: num('p-value.'),

@@ -989,6 +989,14 @@ export class ReportView {
           h('td', { class: 'num' }, fmtInterval(p.ci, v => fmtNum(v, 5))),
           h('td', { class: 'num' }, fmtInterval(p.pi, v => fmtNum(v, 5))),
           h('td', null, p.extrapolated ? extrapolatedBadge() : null)))))));
+      // the weight of the new observation in the prediction intervals (weighted fits, or spec predictWeight)
+      const weighted = m.predictions.filter(p => p.weight);
+      if (weighted.length) {
+        const fromSpec = weighted[0].weight!.from === 'spec';
+        sections.push(h('p', { class: 'cw-muted cw-note' }, fromSpec
+          ? `Prediction intervals use the weight ${fmtNum(weighted[0].weight!.value, 4)} for a new observation (predictWeight in the spec).`
+          : `Prediction intervals use, for a new observation, the weight of the observation nearest in x (${weighted.map(p => fmtNum(p.weight!.value, 4)).join(', ')}); set predictWeight in the spec to give it explicitly.`));
+      }
     }
     if (m.inverse.length) {
       const rows: Child[] = [];

@@ -42,7 +42,13 @@ export interface DataSpec {
   x: string | Record<string, string>;
   y: string;
   sigma?: string;
+  /** inverse-variance (precision) weights: weight w means the row's y has variance σ²/w */
   weight?: string;
+  /**
+   * frequency weights: each row stands for this many identical observations (a whole number ≥ 1); dof, standard
+   * errors, likelihood and intervals are those of the expanded data. Combines with sigma or weight.
+   */
+  count?: string;
   sigmaMode?: 'relative' | 'absolute';
   where?: string;
   exclude?: ExcludeSpec[];
@@ -62,6 +68,11 @@ export interface FitSpec {
   confidence?: number;
   predict?: (number | Record<string, number>)[];
   solveFor?: number[];
+  /**
+   * weight of a new observation in the prediction intervals of `predict` and `solveFor` (on the scale of data.weight,
+   * or 1/σ² with data.sigma); without it the weight of the observation nearest in x is used
+   */
+  predictWeight?: number;
   output?: string;
   /** where the results file keeps the per-point arrays and the band: "inline" (default), "sidecar" (a separate
    *  <output>.points.json beside it, named by the report's pointsFile) or "omit" */
@@ -189,6 +200,7 @@ export interface FitStats {
 export interface ResidualTests {
   runs: { runs: number; expected: number; z: number; p: number } | null;
   normality: { test: 'shapiro-wilk' | 'dagostino-pearson'; statistic: number; p: number } | null;
+  /** Durbin–Watson d of the weighted residuals in data row order (the order of the observations) */
   durbinWatson: number | null;
 }
 
@@ -202,8 +214,10 @@ export interface PointsReport {
   standardized: number[];
   leverage: number[];
   cooks: number[];
-  /** weights used (omitted when unweighted) */
+  /** weights used (omitted when unweighted): precision weights, data.count not included */
   weight?: number[];
+  /** data.count of each row (omitted without data.count) */
+  count?: number[];
 }
 
 export interface BandReport {
@@ -224,6 +238,11 @@ export interface PredictionReport {
   ci: [number, number] | null;
   pi: [number, number] | null;
   extrapolated: boolean;
+  /**
+   * weighted fits, or spec predictWeight given: the weight of the new observation in `pi` ("spec": predictWeight;
+   * "nearest": the weight of the observation nearest in x)
+   */
+  weight?: { value: number; from: 'spec' | 'nearest' };
 }
 
 export interface InverseReport {
@@ -265,7 +284,11 @@ export interface ModelReport {
 
 export interface ComparisonReport {
   ranking: { name: string; aicc: number | null; deltaAicc: number | null; weight: number | null; cvRmse: number | null }[];
-  fTests: { simpler: string; richer: string; F: number; df1: number; df2: number; p: number }[];
+  /**
+   * nested pairs: the extra-sum-of-squares F-test, or with known σ (sigmaMode "absolute") the χ² difference test
+   * (test: "chi2", chi2 = Δχ², p from χ²(df1); F = Δχ²/df1)
+   */
+  fTests: { simpler: string; richer: string; F: number; df1: number; df2: number; p: number; test?: 'chi2'; chi2?: number }[];
   best: string | null;
   reason: string;
   /** with data.groupBy: the usual comparison within each group, by group id */

@@ -26,13 +26,14 @@ import { FormulaError } from './formula/types';
 import { formulaIdentifiers, suggest } from './formula';
 import { parseSpecText, validateSpec, locatePath } from './spec';
 import type { NormalizedSpec } from './spec/types';
-import { DataError, prepareData, readHeader, readTable, whereTextColumns } from './data';
+import { DataError, columnPaths, columnsNeeded, prepareData, readHeader, readTable, whereTextColumns } from './data';
 import type { Table } from './data/types';
 import { buildModel, fitModel } from './models';
 import { analyzeModel, compareModels, dataCorrelation, resolveThresholds } from './stats';
 import type { AnalysisOptions, ModelAnalysisInput } from './stats/api';
 import { sidecarPath, splitReport, type OutputPoints } from './pointsFile';
 import { derivedFor } from './stats/derived';
+import { DEFAULTS } from './spec/defaults';
 
 export interface RunOptions {
   /** spec text to use instead of the file on disk (e.g. unsaved editor text) */
@@ -51,7 +52,7 @@ export interface RunOptions {
  * Time budgets of profiling and cross-validation per model. Generous on purpose: a budget that runs out makes the
  * result depend on the machine's speed, and the same spec and data must give byte-identical reports.
  */
-export const ANALYSIS_DEFAULTS: AnalysisOptions = { profileSeconds: 10, cvSeconds: 10 };
+export const ANALYSIS_DEFAULTS: AnalysisOptions = { profileSeconds: DEFAULTS.analysis.profileSeconds, cvSeconds: DEFAULTS.analysis.cvSeconds };
 
 /** Seed of every randomised step (multi-start); fixed so that the same spec and data give the same report. */
 export const RUN_SEED = 1;
@@ -101,28 +102,6 @@ function internalMessage(e: unknown, doing: string): string {
 }
 
 // ------------------------------------------------------------------ columns
-
-/** Columns of the CSV the spec reads: identifiers of data.x, y, sigma, weight and where that name a header column. */
-export function columnsNeeded(spec: NormalizedSpec, header: string[]): string[] {
-  const wanted = new Set<string>();
-  const texts: { text: string; logic: boolean }[] = [];
-  for (const expr of Object.values(spec.data.x)) texts.push({ text: expr, logic: false });
-  texts.push({ text: spec.data.y, logic: false });
-  if (spec.data.sigma) texts.push({ text: spec.data.sigma, logic: false });
-  if (spec.data.weight) texts.push({ text: spec.data.weight, logic: false });
-  if (spec.data.where) texts.push({ text: spec.data.where, logic: true });
-  const columns = new Set(header);
-  // columns a where filter compares with quoted text are read as text (textColumnsNeeded), not as numbers
-  const textInWhere = new Set(whereTextColumns(spec.data.where));
-  for (const { text, logic } of texts) {
-    if (columns.has(text)) {
-      wanted.add(text);
-      continue;
-    }
-    for (const id of formulaIdentifiers(text, { logic })) if (columns.has(id.name) && !(logic && textInWhere.has(id.name))) wanted.add(id.name);
-  }
-  return header.filter(c => wanted.has(c));
-}
 
 /** Columns of the CSV read as text: those a where filter compares with quoted text, and the groupBy columns. */
 export function textColumnsNeeded(spec: NormalizedSpec, header: string[]): string[] {
@@ -235,11 +214,16 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
 
   // 3. data
   progress(`reading ${spec.data.fileGiven}`);
-  const table = await readTable(spec.data.file, { columns: columnsNeeded(spec, header), textColumns: textColumnsNeeded(spec, header), ...readOpts, badRows: spec.data.badRows });
+  // the columns the spec reads (those the header has; validateSpec has reported any other), and for each the data key
+  // that reads it, so that a bad cell points at that key (e.g. ["data","y"]) rather than at the file
+  const columns = columnsNeeded(spec, header).filter(c => header.includes(c));
+  const table = await readTable(spec.data.file, { columns, columnPaths: columnPaths(spec, header), textColumns: textColumnsNeeded(spec, header), ...readOpts, badRows: spec.data.badRows });
   const prepared = prepareData(spec, table);
   const dataProblems = dedupe([...table.problems, ...prepared.problems]);
   if (dataProblems.some(p => p.severity === 'error')) return fromProblems(name, [...specProblems, ...dataProblems]);
-  const data = { X: prepared.X, y: prepared.y, w: prepared.w };
+  // the weights the fit minimises with: precision weights (sigma or weight) times frequency weights (data.count)
+  const wFit = fitWeights(prepared.w, prepared.count);
+  const data = { X: prepared.X, y: prepared.y, w: wFit };
   const thresholds: Thresholds = resolveThresholds(spec.thresholds);
   // Pearson r of y with each x, and the hint to try a straight line when |r| is high (common practice)
   const correlated = dataCorrelation(prepared.variables, prepared.X, prepared.y, thresholds);
@@ -250,7 +234,7 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
 
   // 4. models (with data.groupBy: every model on every group, group by group, in the groups' order)
   type Fitted = { models: ModelReport[]; analysed: { input: ModelAnalysisInput; report: ModelReport }[] };
-  const fitAll = (sub: { X: Float64Array[]; y: Float64Array; w: Float64Array | null; rows: Int32Array }, group?: string): Fitted | ErrorReport => {
+  const fitAll = (sub: Subset, group?: string): Fitted | ErrorReport => {
     const models: ModelReport[] = [];
     const analysed: Fitted['analysed'] = [];
     const inGroup = group !== undefined ? ` in group '${group}'` : '';
@@ -299,6 +283,8 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
           X: sub.X,
           y: sub.y,
           w: sub.w,
+          count: sub.count,
+          precision: sub.precision,
           rows: sub.rows,
           sigmaMode: spec.data.sigmaMode,
           result,
@@ -307,6 +293,7 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
           confidence: spec.confidence,
           predict: spec.predict,
           solveFor: spec.solveFor,
+          predictWeight: spec.predictWeight,
           thresholds,
           solverOptions: { maxIterations: m.solver.maxIterations, seconds: m.solver.seconds },
           shouldStop: opts.shouldStop,
@@ -337,7 +324,7 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
   let comparison: FitReport['comparison'] = null;
   let groups: GroupReport[] | undefined;
   if (!prepared.groups) {
-    const fitted = fitAll({ ...data, rows: prepared.rows });
+    const fitted = fitAll({ ...data, count: prepared.count, precision: prepared.w, rows: prepared.rows });
     if ('error' in fitted) return fitted;
     models.push(...fitted.models);
     comparison = compare(fitted.analysed, '');
@@ -418,6 +405,12 @@ function asWritten(m: NormalizedSpec['models'][number], raw: unknown): Normalize
   return m;
 }
 
+/** Precision weights times frequency weights (data.count); null when neither is given. */
+function fitWeights(w: Float64Array | null, count: Float64Array | null): Float64Array | null {
+  if (!count) return w;
+  return Float64Array.from(count, (c, i) => c * (w ? w[i] : 1));
+}
+
 /** Errors thrown by buildModel with a user message (not a bug): plain Errors whose name says so. */
 function isUserError(e: unknown): boolean {
   return e instanceof Error && (e.name === 'SpecError' || e.name === 'ModelError' || (e as { user?: boolean }).user === true);
@@ -490,17 +483,24 @@ function withGroup(report: ModelReport, group: string | undefined): ModelReport 
 }
 
 /** The points of `members` (indices into the prepared arrays) as data of their own. */
-function subset(prepared: ReturnType<typeof prepareData>, members: number[]): { X: Float64Array[]; y: Float64Array; w: Float64Array | null; rows: Int32Array } {
+/** The rows one fit uses: x, y, the weights the fit minimises with (w), frequency weights and precision weights. */
+interface Subset { X: Float64Array[]; y: Float64Array; w: Float64Array | null; count: Float64Array | null; precision: Float64Array | null; rows: Int32Array }
+
+function subset(prepared: ReturnType<typeof prepareData>, members: number[]): Subset {
   const pick = <T extends Float64Array | Int32Array>(a: T, make: (n: number) => T): T => {
     const out = make(members.length);
     for (let k = 0; k < members.length; k++) out[k] = a[members[k]];
     return out;
   };
   const f64 = (n: number) => new Float64Array(n);
+  const precision = prepared.w ? pick(prepared.w, f64) : null;
+  const count = prepared.count ? pick(prepared.count, f64) : null;
   return {
     X: prepared.X.map(x => pick(x, f64)),
     y: pick(prepared.y, f64),
-    w: prepared.w ? pick(prepared.w, f64) : null,
+    w: fitWeights(precision, count),
+    count,
+    precision,
     rows: pick(prepared.rows, n => new Int32Array(n)),
   };
 }

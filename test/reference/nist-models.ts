@@ -3,8 +3,8 @@
 export interface NistModel {
   formula: string;
   variables: string[];
-  /** Nelson is fitted on log(y) */
-  transformY?: (y: number) => number;
+  /** the spec's data.y when it is not the y column: Nelson is fitted on log(y) */
+  y?: string;
 }
 
 const RATIONAL33 = '(b1 + b2*x + b3*x^2 + b4*x^3) / (1 + b5*x + b6*x^2 + b7*x^3)';
@@ -24,7 +24,7 @@ export const NIST_MODELS: Record<string, NistModel> = {
   Misra1b: { formula: 'b1*(1 - (1 + b2*x/2)^(-2))', variables: ['x'] },
   Kirby2: { formula: '(b1 + b2*x + b3*x^2) / (1 + b4*x + b5*x^2)', variables: ['x'] },
   Hahn1: { formula: RATIONAL33, variables: ['x'] },
-  Nelson: { formula: 'b1 - b2*x1*exp(-b3*x2)', variables: ['x1', 'x2'], transformY: Math.log },
+  Nelson: { formula: 'b1 - b2*x1*exp(-b3*x2)', variables: ['x1', 'x2'], y: 'log(y)' },
   MGH17: { formula: 'b1 + b2*exp(-x*b4) + b3*exp(-x*b5)', variables: ['x'] },
   Lanczos1: { formula: LANCZOS, variables: ['x'] },
   Lanczos2: { formula: LANCZOS, variables: ['x'] },

@@ -1,14 +1,16 @@
-// NIST StRD nonlinear regression problems fitted with NO starting values: every parameter is declared without start
-// or bounds and the generic multi-start (src/engine/solve/multistart.ts) must find the certified solution.
+// NIST StRD nonlinear regression problems fitted with NO starting values: each written as a fit spec whose parameters
+// have no start or bounds (and no solver key) and a CSV, run by runSpecFile (the function the CLI calls); the generic
+// multi-start (src/engine/solve/multistart.ts) must find the certified solution.
 // Reference: NIST ITL Statistical Reference Datasets, nonlinear regression, certified values in each .dat file.
-// Score: min LRE over the parameters (NIST's accuracy measure), target ≥ 6 digits in at least 24 of the 27 problems.
+// Score: min LRE over the parameters (NIST's accuracy measure), ≥ 6 digits; one test per problem. The problems the
+// search does not solve today are listed in NOT_YET with their measured LRE: they must not silently start passing
+// (the list is then shortened) nor the others regress. No time is measured: the search is bounded by work counts.
 import { strict as assert } from 'assert';
 import * as fs from 'fs';
 import * as path from 'path';
-import { buildModel, fitModel } from '../../src/engine/models';
 import { itRequiresStrdFolder, lre, readStrd, strdFolderOrNotice, type StrdProblem } from './strd';
 import { NIST_MODELS } from './nist-models';
-import { DEFAULTS } from '../../src/engine/spec/defaults';
+import { runStrdSpec } from './nist-run';
 
 /**
  * Relabellings under which a NIST model gives the same fitted values at every x; the certified values are one of the
@@ -77,44 +79,48 @@ function minLre(prob: StrdProblem, theta: number[]): number {
   return best;
 }
 
-describe('reference: NIST StRD nonlinear problems without starting values (generic multi-start)', function () {
-  this.timeout(30 * 60 * 1000);
+/** problems the multi-start does not solve to 6 digits with the spec defaults (at most 3 of 27, the suite's target) */
+const NOT_YET = new Set<string>([]);
+
+describe('reference: NIST StRD nonlinear problems without starting values (generic multi-start, through the spec)', function () {
+  this.timeout(10 * 60 * 1000);
   const dir = strdFolderOrNotice('nonlinear');
   if (!dir) {
     itRequiresStrdFolder();
     return;
   }
   const files = fs.readdirSync(dir).filter((f) => f.endsWith('.dat')).sort();
-  const rows: { name: string; seconds: number; lre: number; pass: boolean; sseRatio: number; source: string }[] = [];
+  const rows: { name: string; lre: number; sseRatio: number; source: string }[] = [];
 
-  it('finds at least 24 of the 27 certified solutions to ≥ 6 digits, each within 20 s', () => {
+  it('has the 27 NIST nonlinear files, each with a formula', () => {
     assert.equal(files.length, 27, `expected the 27 NIST nonlinear files in ${dir}`);
-    for (const f of files) {
+    assert.ok(NOT_YET.size <= 3, 'at least 24 of the 27 problems must be solved without starts');
+  });
+
+  for (const f of files) {
+    const name = f.replace(/\.dat$/, '');
+    it(`${name} without starting values${NOT_YET.has(name) ? ' (known miss: checks it still runs and stays a miss)' : ' reaches ≥ 6 digits'}`, async () => {
       const prob = readStrd(path.join(dir, f));
       const nm = NIST_MODELS[prob.name];
       assert.ok(nm, `no formula for ${prob.name}`);
       if (prob.name === 'ENSO') assert.ok(prob.x[0].every(Number.isInteger), 'ENSO months are whole numbers (aliasing rule)');
-      const X = prob.x.map((col) => Float64Array.from(col));
-      const y = Float64Array.from(prob.y, (v) => (nm.transformY ? nm.transformY(v) : v));
-      const params = Object.fromEntries(prob.params.map((p) => [p, {}]));
-      const t0 = Date.now();
-      const model = buildModel({ name: prob.name, formula: nm.formula, params }, nm.variables, { X, y });
-      assert.deepEqual(model.params, prob.params, `${prob.name}: parameter order`);
-      // the solver settings a spec gets by default (seconds, multiStart) and the run seed 1
-      const r = fitModel(model, { X, y, w: null }, { seconds: DEFAULTS.solver.seconds, multiStart: DEFAULTS.solver.multiStart, seed: 1 });
-      const seconds = (Date.now() - t0) / 1000;
-      const m = minLre(prob, Array.from(r.theta));
-      rows.push({ name: prob.name, seconds, lre: m, pass: m >= 6 && seconds <= 20, sseRatio: r.sse / prob.certified.rss, source: r.startSource });
-    }
+      const { model } = await runStrdSpec(prob, { formula: nm.formula, y: nm.y });
+      assert.deepEqual(model.paramOrder, prob.params, `${prob.name}: parameter order`);
+      const theta = prob.params.map((p) => model.params[p].value);
+      const m = minLre(prob, theta);
+      const source = model.start?.source ?? '';
+      rows.push({ name: prob.name, lre: m, sseRatio: model.stats.sse / prob.certified.rss, source });
+      assert.equal(source, 'multi-start', `${name} must come from the multi-start`);
+      if (NOT_YET.has(name)) assert.ok(m < 6, `${name} now reaches ${m.toFixed(1)} digits: remove it from NOT_YET`);
+      else assert.ok(m >= 6, `${name}: min LRE ${m.toFixed(1)} < 6 (SSE/certified ${(model.stats.sse / prob.certified.rss).toPrecision(6)})`);
+    });
+  }
+
+  after(() => {
+    if (!rows.length) return;
     const pad = (s: string, k: number) => s.padEnd(k);
-    console.log(`\n  ${pad('problem', 10)} ${pad('seconds', 8)} ${pad('min LRE', 8)} ${pad('SSE/cert', 12)} pass`);
-    for (const r of rows) {
-      console.log(`  ${pad(r.name, 10)} ${pad(r.seconds.toFixed(2), 8)} ${pad(r.lre.toFixed(1), 8)} ${pad(r.sseRatio.toPrecision(6), 12)} ${r.pass ? 'yes' : 'NO'}`);
-    }
-    const passed = rows.filter((r) => r.pass).length;
-    const times = rows.map((r) => r.seconds).sort((a, b) => a - b);
-    console.log(`  passed ${passed}/${rows.length}; median ${times[Math.floor(times.length / 2)].toFixed(2)} s, total ${times.reduce((a, b) => a + b, 0).toFixed(1)} s\n`);
-    for (const r of rows) assert.equal(r.source, 'multi-start', `${r.name} must come from the multi-start`);
-    assert.ok(passed >= 24, `only ${passed}/27 problems reached 6 digits without starts`);
+    console.log(`\n  ${pad('problem', 10)} ${pad('min LRE', 8)} ${pad('SSE/cert', 12)} pass`);
+    for (const r of rows) console.log(`  ${pad(r.name, 10)} ${pad(r.lre.toFixed(1), 8)} ${pad(r.sseRatio.toPrecision(6), 12)} ${r.lre >= 6 ? 'yes' : 'NO'}`);
+    console.log(`  passed ${rows.filter((r) => r.lre >= 6).length}/${rows.length}\n`);
   });
 });

@@ -35,7 +35,6 @@ describe('host worker pool', function () {
 
   it('terminates a worker that does not answer a cancel in time and runs the newer fit on a fresh one', async () => {
     pool = new WorkerPool({ workerPath: fake, size: () => 1, cancelTimeoutMs: () => 200 });
-    const t0 = Date.now();
     const first = run(pool, 'a', 'stubborn:4000');
     await new Promise(r => setTimeout(r, 100));
     const second = run(pool, 'a', 'quick:5');
@@ -44,7 +43,8 @@ describe('host worker pool', function () {
     assert.strictEqual(o.kind, 'result');
     assert.strictEqual(pool.stats.terminated, 1);
     assert.strictEqual(pool.stats.started, 2);
-    assert.ok(Date.now() - t0 < 3500, 'the newer fit did not wait for the stubborn one to finish');
+    // behaviour, not a clock: the stubborn worker was terminated (it cannot finish), and the answer is the newer fit's
+    if (o.kind === 'result') assert.strictEqual(o.message.result.spec, 'quick:5', 'the newer fit ran on the fresh worker');
   });
 
   it('keeps different specs independent', async () => {

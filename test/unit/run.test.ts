@@ -234,6 +234,20 @@ describe('run: bad input becomes an ErrorReport, never an exception', function (
     assert.equal(r.data.used, 23);
     assert.ok(r.problems.some(p => p.code === 'bad-cell' && /NaN/.test(p.message)));
   });
+  it('a bad cell points at the data key that reads its column (data.y, data.x), not at the file', async () => {
+    const badY = csv.replace(/\n([^,\n]+),[^\n]+\n/, '\n$1,NaN\n');
+    const dirY = workspace({ 'rate.csv': badY, 's.fitspec.json': base('') });
+    const ry = asReport(await runSpecFile(path.join(dirY, 's.fitspec.json'), { workspaceRoot: dirY }));
+    const py = ry.problems.find(p => p.code === 'bad-cell');
+    assert.ok(py, 'a bad-cell problem');
+    assert.deepEqual(py!.path, ['data', 'y']);
+    const badX = csv.replace(/\n[^,\n]+,([^\n]+)\n/, '\nOL,$1\n');
+    const dirX = workspace({ 'rate.csv': badX, 's.fitspec.json': base('') });
+    const rx = asReport(await runSpecFile(path.join(dirX, 's.fitspec.json'), { workspaceRoot: dirX }));
+    const px = rx.problems.find(p => p.code === 'bad-cell');
+    assert.ok(px, 'a bad-cell problem');
+    assert.deepEqual(px!.path, ['data', 'x']);
+  });
   it('empty CSV', async () => {
     const e = await errorOf(base(''), { 'rate.csv': '' });
     assert.match(e.error.message, /rate\.csv is empty/);

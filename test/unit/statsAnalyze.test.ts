@@ -9,6 +9,8 @@ import { cvFolds } from '../../src/engine/stats/crossval';
 import { bandGrid } from '../../src/engine/stats/predict';
 import { makeInput, noise, PUROMYCIN } from './statsHelpers';
 import { readStrd, strdDir, lre } from '../reference/strd';
+// eslint-disable-next-line @typescript-eslint/no-require-imports
+const RREF = require('../fixtures/reference/r-stats.json');
 
 const close = (a: number | null | undefined, b: number, tol: number, what: string) =>
   assert.ok(a !== null && a !== undefined && Math.abs(a - b) <= tol, `${what}: got ${a}, expected ${b} ± ${tol}`);
@@ -144,19 +146,20 @@ describe('stats analyzeModel', () => {
     assert.equal(weight[2], null);
   });
 
-  it('Puromycin (treated) Michaelis–Menten: estimates, SE and profile-t intervals of Bates & Watts (1988) / R confint (from memory)', () => {
+  it(`Puromycin (treated) Michaelis–Menten: estimates, SE and exact profile-t intervals as R computes them (datasets::Puromycin, nls; ${RREF.R})`, () => {
+    const c = RREF.puromycin;
     const r = analyzeModel(makeInput({ formula: 'Vm*x/(K + x)', x: PUROMYCIN.conc, y: PUROMYCIN.rate, start: { Vm: 200, K: 0.1 } }));
     // Bates & Watts (1988) §2.2.1 / R nls: Vm = 212.7 (SE 6.947), K = 0.06412 (SE 0.008281), s = 10.93 on 10 df
-    close(r.params.Vm.value, 212.68, 0.01, 'Vm');
-    close(r.params.K.value, 0.06412, 0.00001, 'K');
-    close(r.params.Vm.se, 6.947, 0.001, 'se Vm');
-    close(r.params.K.se, 0.008281, 0.000001, 'se K');
-    close(r.stats.sigma, 10.93, 0.005, 's');
-    // profile intervals (R's confint on the nls fit, which interpolates the profile by splines: ≈3 decimals; from memory)
-    close(r.params.Vm.profileCi![0], 197.302, 0.002, 'Vm profile low');
-    close(r.params.Vm.profileCi![1], 229.290, 0.002, 'Vm profile high');
-    close(r.params.K.profileCi![0], 0.046925, 0.00001, 'K profile low');
-    close(r.params.K.profileCi![1], 0.086160, 0.00001, 'K profile high');
+    close(r.params.Vm.value, c.Vm, 1e-6 * c.Vm, 'Vm');
+    close(r.params.K.value, c.K, 1e-6 * c.K, 'K');
+    close(r.params.Vm.se, c.se_Vm, 1e-5 * c.se_Vm, 'se Vm');
+    close(r.params.K.se, c.se_K, 1e-5 * c.se_K, 'se K');
+    close(r.stats.sigma, c.sigma, 1e-6 * c.sigma, 's');
+    // profile-t limits: R's exact profile (nls with the parameter held, uniroot on τ = ±t; scripts/reference-r.R)
+    close(r.params.Vm.profileCi![0], c.profile_Vm[0], 1e-6 * c.Vm, 'Vm profile low');
+    close(r.params.Vm.profileCi![1], c.profile_Vm[1], 1e-6 * c.Vm, 'Vm profile high');
+    close(r.params.K.profileCi![0], c.profile_K[0], 1e-5 * c.K, 'K profile low');
+    close(r.params.K.profileCi![1], c.profile_K[1], 1e-5 * c.K, 'K profile high');
     // the profile interval is asymmetric while the Wald one is symmetric (the point of Bates & Watts ch. 6)
     const [lo, hi] = r.params.K.profileCi! as [number, number];
     assert.ok(hi - r.params.K.value > r.params.K.value - lo);

@@ -4,6 +4,8 @@ import {
   betaInc, betaQuantile, chi2Cdf, chi2Quantile, chi2Sf, fQuantile, fSf, gammaIncBoth, logGamma, normalCdf, normalQuantile,
   normalSf, tCdf, tQuantile, tTwoSidedP,
 } from '../../src/engine/stats/distributions';
+// eslint-disable-next-line @typescript-eslint/no-require-imports
+const RREF = require('../fixtures/reference/r-stats.json');
 
 const close = (a: number, b: number, tol: number, what: string) =>
   assert.ok(Math.abs(a - b) <= tol, `${what}: got ${a}, expected ${b} ± ${tol}`);
@@ -68,11 +70,12 @@ describe('stats distributions', () => {
     }
   });
 
-  it('normal quantiles match the test values of Wichura (1988) AS 241 (from memory)', () => {
-    rel(normalQuantile(0.25), -0.6744897501960817, 1e-14, 'PPND16(0.25)');
-    rel(normalQuantile(0.001), -3.090232306167814, 1e-14, 'PPND16(0.001)');
-    rel(normalQuantile(1e-20), -9.262340089798408, 1e-14, 'PPND16(1e-20)');
-    rel(normalQuantile(0.975), 1.959963984540054, 1e-14, 'z0.975 (standard tables 1.960)');
+  it(`normal quantiles match R's qnorm (${RREF.R}, scripts/reference-r.R; AS 241 as in R)`, () => {
+    const d = RREF.distributions;
+    rel(normalQuantile(0.25), d['qnorm_0.25'], 1e-14, 'qnorm(0.25)');
+    rel(normalQuantile(0.001), d['qnorm_0.001'], 1e-14, 'qnorm(0.001)');
+    rel(normalQuantile(1e-20), d.qnorm_1e_20, 1e-14, 'qnorm(1e-20)');
+    rel(normalQuantile(0.975), d['qnorm_0.975'], 1e-14, 'qnorm(0.975) (standard tables 1.960)');
     assert.equal(normalQuantile(0.5), 0);
     assert.equal(normalQuantile(0), -Infinity);
     assert.ok(Number.isNaN(normalQuantile(1.5)));
@@ -81,8 +84,8 @@ describe('stats distributions', () => {
   it('normal cdf: table values and tails (Abramowitz & Stegun, Table 26.1: Φ(1.96) = 0.9750021048518)', () => {
     close(normalCdf(1.96), 0.9750021048518, 1e-12, 'Φ(1.96)');
     close(normalCdf(0), 0.5, 0, 'Φ(0)');
-    // erfc-based tail keeps relative precision far out: Φ(−8) = 6.22096057427178e-16 (A&S 26.2.12 asymptotics; from memory)
-    rel(normalSf(8), 6.22096057427178e-16, 1e-10, 'Φ(−8)');
+    // erfc-based tail keeps relative precision far out: Φ(−8) from R's pnorm(-8) (scripts/reference-r.R)
+    rel(normalSf(8), RREF.distributions.pnorm_minus8, 1e-12, 'Φ(−8)');
     for (const p of [1e-300, 1e-12, 0.01, 0.4, 0.9, 1 - 1e-9]) rel(normalCdf(normalQuantile(p)), p, 1e-11, `round trip ${p}`);
   });
 

@@ -4,6 +4,8 @@ import {
   dagostinoPearson, durbinWatson, kurtosisZ, normalityTest, runsTest, shapiroWilk, shapiroWilkCoefficients, skewnessZ,
 } from '../../src/engine/stats/residualTests';
 import { normalQuantile } from '../../src/engine/stats/distributions';
+// eslint-disable-next-line @typescript-eslint/no-require-imports
+const RREF = require('../fixtures/reference/r-stats.json');
 
 const close = (a: number, b: number, tol: number, what: string) =>
   assert.ok(Math.abs(a - b) <= tol, `${what}: got ${a}, expected ${b} ± ${tol}`);
@@ -62,10 +64,11 @@ describe('stats residual tests', () => {
     close(even.statistic, 1, 1e-14, 'W of equally spaced triple');
   });
 
-  it('Shapiro–Wilk on the example of Shapiro & Wilk (1965), weights of 11 men: W ≈ 0.79, significant at 1% (from memory)', () => {
-    const r = shapiroWilk([148, 154, 158, 160, 161, 162, 166, 170, 182, 195, 236])!;
-    close(r.statistic, 0.79, 0.005, 'W');
-    assert.ok(r.p < 0.01 && r.p > 0.001, `p = ${r.p}`);
+  it(`Shapiro–Wilk on the example of Shapiro & Wilk (1965), weights of 11 men: W and p as R's shapiro.test (${RREF.R})`, () => {
+    const c = RREF.shapiro_men;
+    const r = shapiroWilk(c.x)!;
+    close(r.statistic, c.W, 1e-6, 'W (R shapiro.test)');
+    close(r.p, c.p, 1e-4 * c.p, 'p (R shapiro.test)');
   });
 
   it('Shapiro–Wilk separates normal from skewed samples and is invariant to location and scale', () => {

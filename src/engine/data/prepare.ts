@@ -11,8 +11,10 @@ export interface PreparedData {
   /** one column per variable, length n */
   X: Float64Array[];
   y: Float64Array;
-  /** weights (1/σ² or data.weight), or null when unweighted */
+  /** weights (1/σ² or data.weight), or null when unweighted; precision weights only (data.count is not in them) */
   w: Float64Array | null;
+  /** data.count: how many identical observations each row stands for, or null (one each) */
+  count: Float64Array | null;
   /** 1-based data row of each used point */
   rows: Int32Array;
   /** 1-based file line of each used point */
@@ -188,7 +190,10 @@ export function columnsNeeded(spec: NormalizedSpec, header?: readonly string[]):
   add(expressionColumns(d.y, false, header, []));
   if (d.sigma !== undefined) add(expressionColumns(d.sigma, false, header, []));
   if (d.weight !== undefined) add(expressionColumns(d.weight, false, header, extra));
-  if (d.where !== undefined) add(expressionColumns(d.where, true, header, extra));
+  if (d.count !== undefined) add(expressionColumns(d.count, false, header, extra));
+  // columns a where filter compares with quoted text are read as text (textColumns), not as numbers
+  const textInWhere = new Set(whereTextColumns(d.where));
+  if (d.where !== undefined) add(expressionColumns(d.where, true, header, extra).filter(c => !textInWhere.has(c)));
   return all;
 }
 
@@ -208,6 +213,7 @@ export function columnPaths(spec: NormalizedSpec, header?: readonly string[]): R
   add(expressionColumns(d.y, false, header, []), ['data', 'y']);
   if (d.sigma !== undefined) add(expressionColumns(d.sigma, false, header, []), ['data', 'sigma']);
   if (d.weight !== undefined) add(expressionColumns(d.weight, false, header, extra), ['data', 'weight']);
+  if (d.count !== undefined) add(expressionColumns(d.count, false, header, extra), ['data', 'count']);
   if (d.where !== undefined) add(expressionColumns(d.where, true, header, extra), ['data', 'where']);
   return out;
 }
@@ -298,12 +304,14 @@ export function prepareData(spec: NormalizedSpec, table: Table): PreparedData {
       });
   }
   const whereAll = whereText !== undefined ? evaluate(whereText, true, ['data', 'where'], 'data.where') : null;
+  const countAll = d.count !== undefined ? evaluate(d.count, false, ['data', 'count'], 'data.count') : null;
 
   const empty = (): PreparedData => ({
     variables,
     X: variables.map(() => new Float64Array(0)),
     y: new Float64Array(0),
     w: null,
+    count: null,
     rows: new Int32Array(0),
     lines: new Int32Array(0),
     excluded: [],
@@ -311,7 +319,7 @@ export function prepareData(spec: NormalizedSpec, table: Table): PreparedData {
     dropped: [...table.dropped],
     problems,
   });
-  if (Xall.some((c) => c === null) || !yAll || (d.sigma !== undefined && !sigmaAll) || (d.weight !== undefined && !weightAll) || (d.where !== undefined && !whereAll))
+  if (Xall.some((c) => c === null) || !yAll || (d.sigma !== undefined && !sigmaAll) || (d.weight !== undefined && !weightAll) || (d.where !== undefined && !whereAll) || (d.count !== undefined && !countAll))
     return empty();
 
   // exclusions by data row
@@ -454,6 +462,13 @@ export function prepareData(spec: NormalizedSpec, table: Table): PreparedData {
         reason = { column: d.weight as string, reason: `weight = ${w} (must be a positive number)` };
       }
     }
+    if (!reason && countAll) {
+      const k = countAll[i];
+      if (!(Number.isInteger(k) && k >= 1)) {
+        badEntry('data.count', d.count as string, ['data', 'count'], 'bad-count', 'is not a whole number ≥ 1').note(row);
+        reason = { column: d.count as string, reason: `count = ${k} (must be a whole number of observations, at least 1)` };
+      }
+    }
     if (reason) {
       droppedHere++;
       if (newlyDropped.length < MAX_DROPPED_LISTED) newlyDropped.push({ row, line: table.line[i], column: reason.column, reason: reason.reason });
@@ -465,7 +480,9 @@ export function prepareData(spec: NormalizedSpec, table: Table): PreparedData {
     const fix =
       b.code === 'non-finite-value'
         ? 'they were left out; check the expression, or leave such rows out with data.where'
-        : 'they were left out; standard deviations and weights must be positive';
+        : b.code === 'bad-count'
+          ? 'they were left out; a count is how many identical observations the row stands for (a row with none has no place in the data)'
+          : 'they were left out; standard deviations and weights must be positive';
     problems.push({
       code: b.code,
       severity: 'warning',
@@ -482,6 +499,7 @@ export function prepareData(spec: NormalizedSpec, table: Table): PreparedData {
   const X = variables.map(() => new Float64Array(n));
   const y = new Float64Array(n);
   const w = sigmaAll || weightAll ? new Float64Array(n) : null;
+  const count = countAll ? new Float64Array(n) : null;
   const rows = new Int32Array(n);
   const lines = new Int32Array(n);
   const of = new Int32Array(groupCols.length ? n : 0);
@@ -491,6 +509,7 @@ export function prepareData(spec: NormalizedSpec, table: Table): PreparedData {
     for (let k = 0; k < variables.length; k++) X[k][j] = (Xall[k] as Float64Array)[i];
     y[j] = yAll[i];
     if (w) w[j] = sigmaAll ? 1 / (sigmaAll[i] * sigmaAll[i]) : (weightAll as Float64Array)[i];
+    if (count) count[j] = countAll![i];
     rows[j] = table.row[i];
     lines[j] = table.line[i];
     j++;
@@ -504,5 +523,5 @@ export function prepareData(spec: NormalizedSpec, table: Table): PreparedData {
     });
   const dropped = [...table.dropped, ...newlyDropped].sort((a, b) => a.row - b.row);
   const groups = groupCols.length ? { groups: { ids: groupIds, keys: groupKeys, rows: groupRows, of } } : {};
-  return { variables, X, y, w, rows, lines, excluded, filtered, dropped, problems, ...groups };
+  return { variables, X, y, w, count, rows, lines, excluded, filtered, dropped, problems, ...groups };
 }

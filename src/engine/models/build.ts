@@ -9,6 +9,7 @@ import { solveLinear, solveNonlinear } from '../solve';
 import { multiStart } from '../solve/multistart';
 import { BUILTINS } from './catalogue';
 import { polynomialFormula } from './polynomial';
+import { DEFAULTS } from '../spec/defaults';
 
 export type StartSource = 'spec' | 'self-start' | 'multi-start' | 'linear';
 
@@ -243,7 +244,7 @@ export function fitModel(model: BuiltModel, data: FitData, opts: FitOptions = {}
 function fitModelRaw(model: BuiltModel, data: FitData, opts: FitOptions): FitResult {
   const problem = modelProblem(model, data);
   const p = model.params.length;
-  const seconds = opts.seconds ?? 20;
+  const seconds = opts.seconds ?? DEFAULTS.solver.seconds;
   const t0 = Date.now();
   const remaining = (): number => Math.max(0.05, seconds - (Date.now() - t0) / 1000);
   const base = { lower: model.lower, upper: model.upper, fixed: model.fixed, maxIterations: opts.maxIterations, shouldStop: opts.shouldStop };

@@ -20,9 +20,10 @@ import type { LsqProblem, SolveOptions, SolveResult } from './types';
 import type { Termination } from '../report';
 import { EPS, norm2, qrFactor, applyQt, rankTolerance, dotAt, diffOfSquares } from './linalg';
 import { CONVERGED, Prepared, evaluate, prepare, solutionInfo, stopReason } from './problem';
+import { DEFAULTS } from '../spec/defaults';
 
 /** default cap on LM iterations (accepted steps, each with a new Jacobian) per scaling strategy */
-export const DEFAULT_MAX_ITERATIONS = 2000;
+export const DEFAULT_MAX_ITERATIONS: number = DEFAULTS.solver.maxIterations;
 /** relative tolerances of the convergence tests (ftol, xtol, gtol of MINPACK), near machine precision */
 export const FTOL = 1e-15;
 export const XTOL = 1e-15;

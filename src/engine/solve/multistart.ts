@@ -20,6 +20,7 @@
 // 7. the full LM (analytic derivatives, bounds, no guard) from the best point polishes the answer.
 import type { LsqProblem, SolveOptions, SolveResult } from './types';
 import { solveNonlinear } from './index';
+import { DEFAULTS } from '../spec/defaults';
 
 export interface MultiStartOptions {
   lower?: ArrayLike<number>;
@@ -364,7 +365,7 @@ function coord(v: number): number {
 /** Multi-start least squares (see the file header). Never throws for a model that evaluates to NaN/Inf. */
 export function multiStart(problem: LsqProblem, opts: MultiStartOptions): MultiStartResult {
   const t0 = Date.now();
-  const budget = (opts.seconds ?? 20) * 1000;
+  const budget = (opts.seconds ?? DEFAULTS.solver.seconds) * 1000;
   const deadline = t0 + budget;
   const { n, p } = problem;
   const lower = Float64Array.from({ length: p }, (_, j) => (opts.lower && opts.lower[j] !== undefined ? opts.lower[j] : -Infinity));

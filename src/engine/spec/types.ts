@@ -41,6 +41,8 @@ export interface NormalizedSpec extends FitSpec {
   confidence: number;
   predict: (number | Record<string, number>)[];
   solveFor: number[];
+  /** weight of a new observation in prediction intervals; absent: the weight of the nearest observed x */
+  predictWeight?: number;
   /** absolute path of the results file, when `output` is set */
   output?: string;
   /** output exactly as written in the spec */

@@ -32,8 +32,8 @@ export interface ValidateResult {
   data?: { file: string; fileGiven: string; delimiter: NormalizedData['delimiter']; decimal: NormalizedData['decimal'] };
 }
 
-const TOP_KEYS = ['$schema', 'title', 'data', 'models', 'confidence', 'predict', 'solveFor', 'output', 'outputPoints', 'expect', 'thresholds', 'derived'];
-const DATA_KEYS = ['file', 'x', 'y', 'sigma', 'weight', 'sigmaMode', 'where', 'exclude', 'delimiter', 'decimal', 'badRows', 'groupBy'];
+const TOP_KEYS = ['$schema', 'title', 'data', 'models', 'confidence', 'predict', 'solveFor', 'predictWeight', 'output', 'outputPoints', 'expect', 'thresholds', 'derived'];
+const DATA_KEYS = ['file', 'x', 'y', 'sigma', 'weight', 'count', 'sigmaMode', 'where', 'exclude', 'delimiter', 'decimal', 'badRows', 'groupBy'];
 const MODEL_KEYS = ['name', 'builtin', 'polynomial', 'formula', 'params', 'solver'];
 const PARAM_KEYS = ['start', 'min', 'max', 'fixed'];
 const SOLVER_KEYS = ['maxIterations', 'multiStart', 'seconds'];
@@ -323,6 +323,13 @@ export function validateSpec(raw: unknown, ctx: ValidateContext): ValidateResult
       });
     }
   }
+  // the weight of a new observation in prediction intervals (predict and solveFor); default: nearest observed x
+  let predictWeight: number | undefined;
+  if (raw.predictWeight !== undefined) {
+    if (!isNum(raw.predictWeight)) c.type(['predictWeight'], 'a positive number (the weight of a new observation, on the scale of data.weight or 1/σ²)', raw.predictWeight);
+    else if (!(raw.predictWeight > 0) || !Number.isFinite(raw.predictWeight)) c.add('spec-range', ['predictWeight'], `predictWeight must be a positive number, not ${raw.predictWeight} — e.g. 1`);
+    else predictWeight = raw.predictWeight;
+  }
 
   // ------------------------------------------------------------------ output
   let output: string | undefined;
@@ -463,6 +470,7 @@ export function validateSpec(raw: unknown, ctx: ValidateContext): ValidateResult
     confidence,
     predict,
     solveFor,
+    ...(predictWeight !== undefined ? { predictWeight } : {}),
     expect,
     thresholds,
   };
@@ -510,6 +518,7 @@ function checkData(c: Checker, ctx: ValidateContext, d: Obj, specDir: string, se
   const y = c.str(d, 'y', P, { required: 'the y column or expression, e.g. "od600"', nonEmpty: true });
   const sigma = c.str(d, 'sigma', P, { nonEmpty: true });
   const weight = c.str(d, 'weight', P, { nonEmpty: true });
+  const count = c.str(d, 'count', P, { nonEmpty: true });
   if (d.sigma !== undefined && d.weight !== undefined)
     c.add('spec-sigma-weight', ['data', 'weight'], 'data gives both "sigma" and "weight" — keep one: sigma (standard deviations, weights 1/σ²) or weight (weights directly)');
   const where = c.str(d, 'where', P, { nonEmpty: true });
@@ -593,6 +602,7 @@ function checkData(c: Checker, ctx: ValidateContext, d: Obj, specDir: string, se
   const extra = [...variables, 'y'];
   const nweight = weight !== undefined ? checkExpression(c, ectx, weight, ['data', 'weight'], 'data.weight', { extra }) : undefined;
   const nwhere = where !== undefined ? checkExpression(c, ectx, where, ['data', 'where'], 'data.where', { extra, logic: true }) : undefined;
+  const ncount = count !== undefined ? checkExpression(c, ectx, count, ['data', 'count'], 'data.count', { extra }) : undefined;
 
   if (c.errors > errorsBefore || file === undefined || ny === undefined) return undefined;
   const out: NormalizedData = {
@@ -610,6 +620,7 @@ function checkData(c: Checker, ctx: ValidateContext, d: Obj, specDir: string, se
   if (nweight !== undefined) out.weight = nweight;
   if (nwhere !== undefined) out.where = nwhere;
   if (groupBy !== undefined) out.groupBy = groupBy;
+  if (ncount !== undefined) out.count = ncount;
   return out;
 }
 

@@ -6,7 +6,7 @@ import type { LsqProblem } from '../solve/types';
 import type { ModelAnalysisInput } from './api';
 import { covarianceFromJacobian, leverage } from './covariance';
 import { chi2Sf, normalQuantile, tQuantile, tTwoSidedP, normalSf } from './distributions';
-import { informationCriteria } from './information';
+import { informationCriteria, informationCriteriaKnownSigma } from './information';
 import { durbinWatson, normalityTest } from './residualTests';
 import { runsByPosition, type PositionRuns } from './runs';
 import { profileIntervals } from './profile';
@@ -14,6 +14,7 @@ import { crossValidate, sortedOrder } from './crossval';
 import { computeBand, computeInverse, computePrediction, predictionPoint, variableRange, type PredictionContext } from './predict';
 import { fmt } from './format';
 import { roleOf } from '../models/roles';
+import { DEFAULTS } from '../spec/defaults';
 
 /** LsqProblem over the given data for a compiled formula. */
 export function lsqProblem(input: Pick<ModelAnalysisInput, 'compiled' | 'X' | 'y' | 'w' | 'params'>): LsqProblem {
@@ -67,8 +68,8 @@ export function hasConstantColumn(J: Float64Array, n: number, p: number, free: b
   return Math.sqrt(r) < 1e-8;
 }
 
-const PROFILE_SECONDS = 2;
-const CV_SECONDS = 2;
+const PROFILE_SECONDS: number = DEFAULTS.analysis.profileSeconds;
+const CV_SECONDS: number = DEFAULTS.analysis.cvSeconds;
 
 function emptyStats(n: number, dof: number, sse: number): FitStats {
   return {
@@ -89,6 +90,30 @@ export function orderByX(X: Float64Array[], n: number): Int32Array {
   return idx;
 }
 
+/** max observations the residual tests expand data.count rows into (beyond it they use one residual per row) */
+const MAX_EXPANDED = 1_000_000;
+
+function identityOrder(n: number): Int32Array {
+  const idx = new Int32Array(n);
+  for (let i = 0; i < n; i++) idx[i] = i;
+  return idx;
+}
+
+/** v in the given order, each row repeated count[i] times (the expanded observations), or once without counts */
+function expandByCount(v: Float64Array, order: ArrayLike<number>, count: Float64Array | null): Float64Array {
+  let total = 0;
+  if (count) for (let t = 0; t < order.length; t++) total += count[order[t]];
+  const expand = count !== null && total <= MAX_EXPANDED;
+  const out = new Float64Array(expand ? total : order.length);
+  let k = 0;
+  for (let t = 0; t < order.length; t++) {
+    const i = order[t];
+    const m = expand ? count![i] : 1;
+    for (let c = 0; c < m; c++) out[k++] = v[i];
+  }
+  return out;
+}
+
 function finiteOrNull(v: number): number | null {
   return Number.isFinite(v) ? v : null;
 }
@@ -106,20 +131,36 @@ export function analyzeModel(input: ModelAnalysisInput): ModelReport {
   const theta = Float64Array.from(res.theta);
   const f = res.f;
   const J = res.J;
-  const weighted = w !== null;
+  // data.count (frequency weights): each row stands for count[i] identical observations; w then already includes the
+  // counts (w = count × precision weight), wPrec is the precision weight of one observation, nObs the observations
+  const count = input.count ?? null;
+  const wPrec: Float64Array | null = count ? (input.precision ?? null) : w;
+  let nObs = n;
+  if (count) {
+    nObs = 0;
+    for (let i = 0; i < n; i++) nObs += count[i];
+  }
+  const weighted = wPrec !== null;
   const absolute = input.sigmaMode === 'absolute' && weighted;
 
-  // residuals e = y − f and weighted residuals r = √w e
+  // residuals e = y − f, weighted residuals r = √w e (w with the counts: their squares sum to the expanded SSE) and
+  // rObs = √wPrec e, the weighted residual of one observation
   const e = new Float64Array(n);
   const r = new Float64Array(n);
+  const rObs = count ? new Float64Array(n) : r;
   let sse = 0;
   const badRows: number[] = [];
   for (let i = 0; i < n; i++) {
     e[i] = y[i] - f[i];
-    r[i] = (weighted ? Math.sqrt(w![i]) : 1) * e[i];
+    r[i] = (w ? Math.sqrt(w[i]) : 1) * e[i];
+    if (count) rObs[i] = (wPrec ? Math.sqrt(wPrec[i]) : 1) * e[i];
     if (!Number.isFinite(f[i])) badRows.push(input.rows[i]);
     sse += r[i] * r[i];
   }
+  // a model linear in θ: the solver's SSE comes from the iteratively refined residual of the linear system, which is
+  // more accurate than y − f(θ) summed term by term (NIST StRD Longley: 15 digits against 12); a fit whose residuals
+  // are exactly zero stays exact
+  if (input.linear && sse > 0 && Number.isFinite(res.sse) && res.sse >= 0) sse = res.sse;
 
   const report: ModelReport = {
     name: input.name,
@@ -133,7 +174,7 @@ export function analyzeModel(input: ModelAnalysisInput): ModelReport {
     params: {},
     covariance: null,
     correlation: null,
-    stats: emptyStats(n, n - pFree, sse),
+    stats: emptyStats(nObs, nObs - pFree, sse),
     residualTests: null,
     band: null,
     predictions: [],
@@ -155,7 +196,8 @@ export function analyzeModel(input: ModelAnalysisInput): ModelReport {
     leverage: new Array(n).fill(NaN),
     cooks: new Array(n).fill(NaN),
   };
-  if (weighted) points.weight = Array.from(w!);
+  if (weighted) points.weight = Array.from(wPrec!);
+  if (count) points.count = Array.from(count);
   report.points = points;
 
   // ------------------------------------------------------------ failure: report what we have, no inference
@@ -201,10 +243,15 @@ export function analyzeModel(input: ModelAnalysisInput): ModelReport {
     return report;
   }
 
+  // a model linear in θ with a parameter on its bound: the profile is not the Wald quadratic any more (the bound is
+  // kept while profiling), so it is computed like a nonlinear model's; otherwise profile-t equals Wald exactly
+  const boundActive = params.some((_, j) => !input.fixed[j] && (res.atBound[j] ?? null) !== null);
+  const waldIsProfile = input.linear && !boundActive;
+
   // ------------------------------------------------------------ covariance and parameters
   const covInfo0 = covarianceFromJacobian(J, n, p, w, free, 1);
   const rank = covInfo0.rank;
-  const dof = n - rank;
+  const dof = nObs - rank;
   const s2 = dof > 0 ? sse / dof : NaN;
   const scale = absolute ? 1 : s2;
   const cov = new Float64Array(p * p);
@@ -212,7 +259,7 @@ export function analyzeModel(input: ModelAnalysisInput): ModelReport {
   const unidentifiable = covInfo0.unidentifiable;
   const level = input.confidence;
   const qWald = absolute ? normalQuantile((1 + level) / 2) : dof > 0 ? tQuantile((1 + level) / 2, dof) : NaN;
-  report.stats = emptyStats(n, dof, sse);
+  report.stats = emptyStats(nObs, dof, sse);
 
   const se = new Float64Array(p).fill(NaN);
   for (let j = 0; j < p; j++) {
@@ -229,7 +276,7 @@ export function analyzeModel(input: ModelAnalysisInput): ModelReport {
       }
       if (Number.isFinite(qWald)) {
         pr.ci = [theta[j] - qWald * se[j], theta[j] + qWald * se[j]];
-        if (input.linear) pr.profileCi = pr.ci.slice() as [number, number]; // linear models: profile-t equals Wald exactly
+        if (waldIsProfile) pr.profileCi = pr.ci.slice() as [number, number]; // linear models: profile-t equals Wald exactly
       }
     }
     report.params[name] = pr;
@@ -256,23 +303,24 @@ export function analyzeModel(input: ModelAnalysisInput): ModelReport {
   let nPos = 0;
   let sumLogW = 0;
   for (let i = 0; i < n; i++) {
-    const wi = weighted ? w![i] : 1;
+    const wi = w ? w[i] : 1;
+    const ci = count ? count[i] : 1;
     sw += wi;
     swy += wi * y[i];
     swy2 += wi * y[i] * y[i];
     if (wi > 0) {
-      nPos++;
-      if (weighted) sumLogW += Math.log(wi);
+      nPos += ci;
+      if (weighted) sumLogW += ci * Math.log(wPrec![i]);
     }
   }
   const uncentred = input.linear && !hasConstantColumn(J, n, p, free);
   const ybar = sw > 0 ? swy / sw : NaN;
   let sst = 0;
-  for (let i = 0; i < n; i++) sst += (weighted ? w![i] : 1) * (y[i] - ybar) ** 2;
+  for (let i = 0; i < n; i++) sst += (w ? w[i] : 1) * (y[i] - ybar) ** 2;
   const denom = uncentred ? swy2 : sst;
   if (denom > 0) {
     stats.r2 = 1 - sse / denom;
-    if (dof > 0) stats.adjR2 = 1 - ((1 - stats.r2) * (n - (uncentred ? 0 : 1))) / dof;
+    if (dof > 0) stats.adjR2 = 1 - ((1 - stats.r2) * (nObs - (uncentred ? 0 : 1))) / dof;
   }
   if (uncentred) stats.r2Uncentred = true;
   if (weighted) {
@@ -280,34 +328,39 @@ export function analyzeModel(input: ModelAnalysisInput): ModelReport {
     stats.reducedChi2 = dof > 0 ? sse / dof : null;
     stats.chi2P = absolute && dof > 0 ? chi2Sf(sse, dof) : null;
   }
-  const ic = informationCriteria(sse, nPos, pFree, sumLogW);
+  const ic = absolute ? informationCriteriaKnownSigma(sse, nPos, pFree, sumLogW) : informationCriteria(sse, nPos, pFree, sumLogW);
   stats.logLik = ic.logLik;
   stats.aic = ic.aic;
   stats.aicc = ic.aicc;
   stats.bic = ic.bic;
 
   // ------------------------------------------------------------ points: leverage, standardized residuals, Cook's D
+  // (with counts: the leverage of one of the row's identical observations, h/count, as in the expanded data)
   const h = leverage(J, n, p, w, free);
+  if (count) for (let i = 0; i < n; i++) h[i] /= count[i];
   for (let i = 0; i < n; i++) {
     const hi = h[i];
     points.leverage[i] = hi;
     const denomS = Math.sqrt(scale * (1 - hi));
-    points.standardized[i] = 1 - hi > 1e-12 && denomS > 0 ? r[i] / denomS : NaN;
-    points.cooks[i] = 1 - hi > 1e-12 && scale > 0 && rank > 0 ? (r[i] * r[i] * hi) / (rank * scale * (1 - hi) * (1 - hi)) : NaN;
+    points.standardized[i] = 1 - hi > 1e-12 && denomS > 0 ? rObs[i] / denomS : NaN;
+    points.cooks[i] = 1 - hi > 1e-12 && scale > 0 && rank > 0 ? (rObs[i] * rObs[i] * hi) / (rank * scale * (1 - hi) * (1 - hi)) : NaN;
   }
 
   // ------------------------------------------------------------ residual tests (weighted residuals, ordered by x)
   const order = orderByX(X, n);
-  const rOrdered = new Float64Array(n);
-  for (let t = 0; t < n; t++) rOrdered[t] = r[order[t]];
+  const rOrdered = expandByCount(rObs, order, count);
+  const rRows = count ? expandByCount(rObs, identityOrder(n), count) : r;
   const allZero = rOrdered.every((v) => Math.abs(v) <= 1e-14 * (Math.abs(y[0]) + 1));
   // replicates at the same x form one position (the sign of their mean residual); exact p for small counts
-  const runs = allZero ? null : runsByPosition(r, X, order);
+  // (with data.count the sign of Σ count·rObs over a position is the sign of the expanded observations' mean)
+  const runs = allZero ? null : runsByPosition(count ? Float64Array.from(rObs, (v, i) => v * count[i]) : r, X, order);
   const normality = allZero ? null : normalityTest(rOrdered);
   const tests: ResidualTests = {
     runs: runs ? { runs: runs.runs, expected: runs.expected, z: runs.z, p: runs.p } : null,
     normality: normality ? { test: normality.test, statistic: normality.statistic, p: normality.p } : null,
-    durbinWatson: allZero ? null : durbinWatson(rOrdered),
+    // Durbin–Watson is defined on the observations in the order they were taken: data row order (Durbin & Watson
+    // 1950); patterns along x are the runs test's job
+    durbinWatson: allZero ? null : durbinWatson(rRows),
   };
   report.residualTests = tests;
 
@@ -330,16 +383,16 @@ export function analyzeModel(input: ModelAnalysisInput): ModelReport {
     }
   }
 
-  // ------------------------------------------------------------ profile-likelihood intervals (nonlinear only)
+  // ------------------------------------------------------------ profile-likelihood intervals (nonlinear, or bound active)
   const openProfile = new Set<number>();
   /** parameters whose profile interval was computed to the end (both sides found or shown not to exist) */
   const profiled = new Set<number>();
   // (an exact fit, s = 0, has no profile to walk: its intervals are degenerate and profileCi stays null)
-  if (!input.linear && opts.profile !== false && dof > 0 && Number.isFinite(qWald) && scale > 0) {
+  if (!waldIsProfile && opts.profile !== false && dof > 0 && Number.isFinite(qWald) && scale > 0) {
     const seconds = opts.profileSeconds ?? PROFILE_SECONDS;
     const prof = profileIntervals({
       problem: lsqProblem(input), theta, lower: input.lower, upper: input.upper, fixed: input.fixed,
-      sseHat: sse, scale, q: qWald, se, maxIterations: input.solverOptions?.maxIterations,
+      sseHat: sse, scale, q: qWald, se, maxIterations: DEFAULTS.analysis.profileIterations,
       deadline: Date.now() + 1000 * seconds, shouldStop: input.shouldStop,
     });
     const timedOut: string[] = [];
@@ -365,8 +418,8 @@ export function analyzeModel(input: ModelAnalysisInput): ModelReport {
   }
 
   // ------------------------------------------------------------ band, predictions, inverse
-  const pctx: PredictionContext = { compiled, theta, cov, free, q: qWald, scale, X, w };
-  if (input.variables.length === 1) report.band = computeBand(pctx, input.variables[0], opts.bandPoints ?? 200);
+  const pctx: PredictionContext = { compiled, theta, cov, free, q: qWald, scale, X, w: wPrec, predictWeight: input.predictWeight };
+  if (input.variables.length === 1) report.band = computeBand(pctx, input.variables[0], opts.bandPoints ?? DEFAULTS.analysis.bandPoints);
   const ranges = variableRange(X);
   input.predict.forEach((entry, k) => {
     const pt = predictionPoint(entry, input.variables);
@@ -416,7 +469,21 @@ export function analyzeModel(input: ModelAnalysisInput): ModelReport {
           `Check that the value is inside the range of the curve (fitted ${fmt(minOf(f))} to ${fmt(maxOf(f))}) and in the same units as y.`,
         path: ['solveFor', k],
       });
-    } else if (inv.extrapolated) {
+    }
+    const open = inv.roots.filter((rt) => rt.interval[0] === null || rt.interval[1] === null);
+    if (open.length > 0 && Number.isFinite(qWald)) {
+      const sides = open.map((rt) => `${input.variables[0]} = ${fmt(rt.x)}: ${rt.interval[0] === null && rt.interval[1] === null ? 'both limits' : rt.interval[0] === null ? 'the lower limit' : 'the upper limit'}`);
+      problems.push({
+        code: 'inverse-unbounded',
+        severity: 'warning',
+        message:
+          `${input.name}: the ${Math.round(100 * input.confidence)}% interval for x at y = ${fmt(yv)} does not close (${sides.join('; ')} does not exist, so it is null): ` +
+          `the prediction interval contains y = ${fmt(yv)} however far x goes on that side, because the curve changes too little there compared with the scatter ` +
+          `(for a straight line: the slope is not significantly different from 0 at this confidence). More data, less scatter or standards further out make the interval finite.`,
+        path: ['solveFor', k],
+      });
+    }
+    if (inv.roots.length > 0 && inv.extrapolated) {
       problems.push({
         code: 'inverse-extrapolation',
         severity: 'warning',

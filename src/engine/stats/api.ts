@@ -49,6 +49,12 @@ export interface ModelAnalysisInput {
   predict: (number | Record<string, number>)[];
   /** y values to invert the curve at */
   solveFor: number[];
+  /** data.count: identical observations per row (w then includes it: w = count × precision weight), or null */
+  count?: Float64Array | null;
+  /** with count: the precision weights alone (1/σ² or data.weight), or null when none were given */
+  precision?: Float64Array | null;
+  /** weight of a new observation in prediction intervals (spec predictWeight); absent: nearest observed x's weight */
+  predictWeight?: number;
   /** effective thresholds (DEFAULT_THRESHOLDS merged with the spec's overrides; see resolveThresholds) */
   thresholds: Thresholds;
   /** options for refits (profile likelihood, cross-validation) */
@@ -62,11 +68,11 @@ export interface ModelAnalysisInput {
 export interface AnalysisOptions {
   /** profile-likelihood intervals (nonlinear models only; for linear models they equal Wald exactly) */
   profile?: boolean;
-  /** time budget of profiling one model, seconds (default 2) */
+  /** wall-clock guard of profiling one model, seconds (default DEFAULTS.analysis.profileSeconds) */
   profileSeconds?: number;
   /** k-fold cross-validation */
   crossValidate?: boolean;
-  /** time budget of cross-validating one model, seconds (default 2) */
+  /** wall-clock guard of cross-validating one model, seconds (default DEFAULTS.analysis.cvSeconds) */
   cvSeconds?: number;
   /** number of points of the plotting band (default 200) */
   bandPoints?: number;

@@ -4,7 +4,7 @@
 import type { ComparisonReport, ModelReport, Problem, Thresholds } from '../report';
 import type { ModelAnalysisInput } from './api';
 import { NESTED } from '../models';
-import { fSf } from './distributions';
+import { chi2Sf, fSf } from './distributions';
 import { akaikeWeights } from './information';
 import { fmt } from './format';
 
@@ -88,6 +88,32 @@ export interface FTest {
   df1: number;
   df2: number;
   p: number;
+  /** 'chi2' when σ is known (sigmaMode "absolute"): the χ² difference test; absent for the F-test */
+  test?: 'chi2';
+  /** Δχ² of the χ² difference test */
+  chi2?: number;
+}
+
+/** the test as the messages name it */
+function testName(ft: FTest): string {
+  return ft.test === 'chi2' ? 'χ² difference test (σ known)' : 'extra-sum-of-squares F-test';
+}
+function testFigures(ft: FTest, alpha: number): string {
+  return ft.test === 'chi2'
+    ? `Δχ² = ${fmt(ft.chi2!)}, df = ${ft.df1}, p = ${fmt(ft.p, 3)} ≥ ${alpha}`
+    : `F = ${fmt(ft.F)}, df = ${ft.df1}, ${ft.df2}, p = ${fmt(ft.p, 3)} ≥ ${alpha}`;
+}
+
+/**
+ * With known σ (sigmaMode "absolute"): the χ² difference test Δχ² = χ²_s − χ²_r on ν_s − ν_r degrees of freedom
+ * (the likelihood-ratio test of nested Gaussian models with known variances); F is reported as Δχ²/df1, the F
+ * statistic's limit as σ is known. Null when undefined.
+ */
+export function chi2DifferenceTest(chi2S: number, dofS: number, chi2R: number, dofR: number): { F: number; df1: number; df2: number; p: number; test: 'chi2'; chi2: number } | null {
+  const df1 = dofS - dofR;
+  if (!(df1 > 0) || !Number.isFinite(chi2S) || !Number.isFinite(chi2R)) return null;
+  const chi2 = Math.max(0, chi2S - chi2R);
+  return { F: chi2 / df1, df1, df2: dofR, p: chi2 === 0 ? 1 : chi2Sf(chi2, df1), test: 'chi2', chi2 };
 }
 
 /** Extra-sum-of-squares F-test of a simpler model against a richer one; null when undefined. */
@@ -123,7 +149,10 @@ export function compareModels(inputs: ModelAnalysisInput[], reports: ModelReport
     for (let r = 0; r < m; r++) {
       if (s === r || reports[s].status !== 'converged' || reports[r].status !== 'converged') continue;
       if (!nestedRelation(inputs[s], inputs[r], s, r)) continue;
-      const t = extraSumOfSquaresF(reports[s].stats.sse, reports[s].stats.dof, reports[r].stats.sse, reports[r].stats.dof);
+      const knownSigma = inputs[s].sigmaMode === 'absolute' && inputs[s].w !== null;
+      const t = knownSigma
+        ? chi2DifferenceTest(reports[s].stats.sse, reports[s].stats.dof, reports[r].stats.sse, reports[r].stats.dof)
+        : extraSumOfSquaresF(reports[s].stats.sse, reports[s].stats.dof, reports[r].stats.sse, reports[r].stats.dof);
       if (!t) continue;
       const ft: FTest = { simpler: reports[s].name, richer: reports[r].name, ...t };
       fTests.push(ft);
@@ -140,8 +169,8 @@ export function compareModels(inputs: ModelAnalysisInput[], reports: ModelReport
         code: 'overfit-nested',
         severity: 'warning',
         message:
-          `${reports[r].name} has a lower AICc than ${reports[s].name}, but the extra-sum-of-squares F-test does not reject the simpler ${reports[s].name} ` +
-          `(F = ${fmt(ft.F)}, df = ${ft.df1}, ${ft.df2}, p = ${fmt(ft.p, 3)} ≥ ${alpha}): the extra parameter${ft.df1 > 1 ? 's do' : ' does'} not improve the fit by more than noise would. ` +
+          `${reports[r].name} has a lower AICc than ${reports[s].name}, but the ${testName(ft)} does not reject the simpler ${reports[s].name} ` +
+          `(${testFigures(ft, alpha)}): the extra parameter${ft.df1 > 1 ? 's do' : ' does'} not improve the fit by more than noise would. ` +
           `Prefer ${reports[s].name} unless there is a reason for the richer form.`,
         path: ['models', inputs[r].index],
       };
@@ -174,7 +203,7 @@ export function compareModels(inputs: ModelAnalysisInput[], reports: ModelReport
       const s = notRejected[0];
       const ft = fByPair.get(`${s}:${cur}`)!;
       reasons.push(
-        `The simpler nested ${nameOf(s)} is not rejected against ${nameOf(cur)} by the F-test (F = ${fmt(ft.F)}, p = ${fmt(ft.p, 3)} ≥ ${alpha}), so ${nameOf(s)} is preferred.`,
+        `The simpler nested ${nameOf(s)} is not rejected against ${nameOf(cur)} by the ${ft.test === 'chi2' ? 'χ² difference test' : 'F-test'} (${ft.test === 'chi2' ? `Δχ² = ${fmt(ft.chi2!)}` : `F = ${fmt(ft.F)}`}, p = ${fmt(ft.p, 3)} ≥ ${alpha}), so ${nameOf(s)} is preferred.`,
       );
       cur = s;
       visited.add(s);

@@ -4,6 +4,7 @@
 // iterative refinement (their estimates are not reported, only their predictions of the held-out rows).
 import type { CompiledFormula } from '../formula/types';
 import { solve } from '../solve';
+import { DEFAULTS } from '../spec/defaults';
 
 /**
  * Row indices in ascending order of x, ties by row order: a stable bottom-up merge sort on an index array (no
@@ -98,7 +99,7 @@ function gather(src: ArrayLike<number>, idx: Int32Array): Float64Array {
 }
 
 /** iteration cap of a nonlinear refit: warm-started from the full-data estimate it needs few (common practice) */
-const CV_MAX_ITERATIONS = 50;
+const CV_MAX_ITERATIONS: number = DEFAULTS.analysis.cvIterations;
 
 export interface CvContext {
   compiled: CompiledFormula;

@@ -19,6 +19,8 @@ export interface PredictionContext {
   /** data, for the range and the weight of the nearest observed x */
   X: Float64Array[];
   w: Float64Array | null;
+  /** weight of a new observation (spec predictWeight); absent: the weight of the nearest observed x */
+  predictWeight?: number;
 }
 
 export interface PointPrediction {
@@ -44,7 +46,8 @@ export function variableRange(X: Float64Array[]): [number, number][] {
 /** 1/w of the observation nearest to x0 (in the first variable, or standardised Euclidean for several). */
 function nearestInverseWeight(ctx: PredictionContext, x0: ArrayLike<number>, ranges: [number, number][]): number {
   const w = ctx.w;
-  if (!w) return 1;
+  if (!w) return ctx.predictWeight !== undefined ? 1 / ctx.predictWeight : 1;
+  if (ctx.predictWeight !== undefined) return 1 / ctx.predictWeight;
   const n = w.length;
   let best = -1;
   let bestD = Infinity;
@@ -144,13 +147,16 @@ export function computePrediction(ctx: PredictionContext, entry: number | Record
   for (let v = 0; v < x0.length; v++) if (x0[v] < ranges[v][0] || x0[v] > ranges[v][1]) extrapolated = true;
   const pr = makePredictor(ctx)(x0);
   const y = Number.isFinite(pr.y) ? pr.y : null;
-  return {
+  const out: PredictionReport = {
     x: entry,
     y,
     ci: y !== null && Number.isFinite(pr.seFit) ? [y - ctx.q * pr.seFit, y + ctx.q * pr.seFit] : null,
     pi: y !== null && Number.isFinite(pr.sePred) ? [y - ctx.q * pr.sePred, y + ctx.q * pr.sePred] : null,
     extrapolated,
   };
+  if (ctx.predictWeight !== undefined) out.weight = { value: ctx.predictWeight, from: 'spec' };
+  else if (ctx.w) out.weight = { value: 1 / nearestInverseWeight(ctx, x0, ranges), from: 'nearest' };
+  return out;
 }
 
 const INVERSE_GRID = 1000;
@@ -159,7 +165,9 @@ const INVERSE_GRID = 1000;
  * Every x where the fitted curve equals y0: sign changes of f − y0 on a fine grid over the data range, refined by
  * Brent. When there is none inside the range, the search extends one range-width beyond each end (log-spaced, or all x ≥ 0: not below lo/10)
  * and such roots are extrapolated. Each root's interval is the connected set of x around it whose prediction
- * interval contains y0 (searched within the extended range; a bound not reached there is null).
+ * interval contains y0 — the classical (Fieller) limits for a straight line, Draper & Smith §3.2: walked on a grid
+ * over the extended range and then, if still inside, outward in doubling steps up to 2^40 range-widths, stopping where
+ * the curve is undefined; a limit that does not exist there is null (e.g. a slope not significantly different from 0).
  */
 export function computeInverse(ctx: PredictionContext, y0: number): InverseReport {
   const out: InverseReport = { y: y0, roots: [], extrapolated: false };
@@ -212,6 +220,21 @@ export function computeInverse(ctx: PredictionContext, y0: number): InverseRepor
     return Number.isFinite(v) ? v : Infinity;
   };
   const searchGrid = bandGrid(extLo, extHi, 2 * INVERSE_GRID);
+  const width = hi - lo;
+  /** beyond the grid: from `from` (inside the band) outward in doubling steps until outside; null when never */
+  const expand = (from: number, dir: -1 | 1): number | null => {
+    let inside = from;
+    for (let k = 0; k <= 40; k++) {
+      const x = from + dir * width * 2 ** k;
+      xv[0] = x;
+      const pr = predict(xv);
+      const v = Math.abs(pr.y - y0) - ctx.q * pr.sePred;
+      if (!Number.isFinite(v)) return null; // the curve is not defined out there: no limit on this side
+      if (v >= 0) return bisectBoundary(h, inside, x);
+      inside = x;
+    }
+    return null;
+  };
   for (const r of roots) {
     let low: number | null = null;
     let high: number | null = null;
@@ -232,12 +255,16 @@ export function computeInverse(ctx: PredictionContext, y0: number): InverseRepor
           break;
         }
       }
+      if (low === null && h(searchGrid[0]) < 0) low = expand(Math.min(searchGrid[0], r), -1);
+      let highFound = false;
       for (let i = k; i < searchGrid.length; i++) {
         if (h(searchGrid[i]) >= 0) {
           high = bisectBoundary(h, i - 1 >= 0 && searchGrid[i - 1] > r ? searchGrid[i - 1] : r, searchGrid[i]);
+          highFound = true;
           break;
         }
       }
+      if (!highFound && h(searchGrid[searchGrid.length - 1]) < 0) high = expand(Math.max(searchGrid[searchGrid.length - 1], r), 1);
     }
     out.roots.push({ x: r, interval: [low, high] });
   }

@@ -3,6 +3,7 @@
 // the bounds are where |τ| reaches the t quantile. Walk outwards from the estimate, then refine by the Illinois method.
 import type { LsqProblem } from '../solve/types';
 import { solve } from '../solve';
+import { DEFAULTS } from '../spec/defaults';
 
 export interface ProfileContext {
   problem: LsqProblem;
@@ -73,7 +74,7 @@ export function profileIntervals(ctx: ProfileContext): ProfileResult {
         const r = solve(ctx.problem, {
           // no Gauss–Newton polish: LM's own tolerances (relative SSE reduction 1e-15) already fix S far below the 1e-6·q tolerance on τ
           theta0: start, lower: ctx.lower, upper: ctx.upper, fixed: mask, refine: false,
-          maxIterations: ctx.maxIterations ?? 200, seconds: remaining, shouldStop: ctx.shouldStop,
+          maxIterations: ctx.maxIterations ?? DEFAULTS.analysis.profileIterations, seconds: remaining, shouldStop: ctx.shouldStop,
         });
         if (r.termination === 'cancelled' || r.termination === 'time-limit') throw TIMEOUT;
         return { S: r.sse, theta: r.theta, ok: r.converged && Number.isFinite(r.sse) };

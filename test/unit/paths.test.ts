@@ -4,6 +4,7 @@ import * as assert from 'assert';
 import * as fs from 'fs';
 import * as os from 'os';
 import * as path from 'path';
+import { mayWriteResults } from '../../src/host/trust';
 import { cleanStaleTemps, inputRefusal, isInside, outputRefusal, REPORT_MARKER, tmpName } from '../../src/engine/paths';
 
 describe('workspace boundary (engine paths)', () => {
@@ -88,5 +89,14 @@ describe('workspace boundary (engine paths)', () => {
     assert.ok(fs.existsSync(live));
     assert.ok(!fs.existsSync(dead));
     assert.ok(fs.existsSync(path.join(ws, '.other.curvewright-tmp-999999999-c')), 'other files\' temporaries are not touched');
+  });
+});
+
+describe('Workspace Trust decision (src/host/trust.ts)', () => {
+  it('writes results only in a trusted workspace, with the setting on and the spec saved', () => {
+    assert.strictEqual(mayWriteResults({ trusted: true, setting: true, dirty: false }), true);
+    assert.strictEqual(mayWriteResults({ trusted: false, setting: true, dirty: false }), false);
+    assert.strictEqual(mayWriteResults({ trusted: true, setting: false, dirty: false }), false);
+    assert.strictEqual(mayWriteResults({ trusted: true, setting: true, dirty: true }), false);
   });
 });

@@ -5,6 +5,7 @@ import * as fs from 'fs';
 import * as os from 'os';
 import * as path from 'path';
 import { mayWriteResults } from '../../src/host/trust';
+import { escapeMarkdown } from '../../src/host/markdownText';
 import { cleanStaleTemps, inputRefusal, isInside, outputRefusal, REPORT_MARKER, tmpName } from '../../src/engine/paths';
 
 describe('workspace boundary (engine paths)', () => {
@@ -98,5 +99,15 @@ describe('Workspace Trust decision (src/host/trust.ts)', () => {
     assert.strictEqual(mayWriteResults({ trusted: false, setting: true, dirty: false }), false);
     assert.strictEqual(mayWriteResults({ trusted: true, setting: false, dirty: false }), false);
     assert.strictEqual(mayWriteResults({ trusted: true, setting: true, dirty: true }), false);
+  });
+});
+
+describe('hover Markdown escaping (src/host/markdownText.ts)', () => {
+  it('a name cannot add links, images, HTML, icons or new lines', () => {
+    const e = escapeMarkdown('[x](command:evil) ![i](http://h/p.png) <b>$(gear)\n# H `c`');
+    assert.ok(!/(^|[^\\])[[\]()<>`$#]/.test(e), e);
+    assert.ok(!e.includes('\n'));
+    assert.strictEqual(escapeMarkdown('K'), 'K');
+    assert.strictEqual(escapeMarkdown('a'.repeat(300)).length, 201);
   });
 });

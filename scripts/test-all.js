@@ -28,6 +28,7 @@ const stages = [
   { name: 'reference', cmd: [bin('mocha'), '--config', '.mocharc.json', '--reporter', reporter, 'test/reference/**/*.test.ts'] },
   { name: 'node-versions', cmd: [process.execPath, 'scripts/test-node.js', '--install', '--others'] }, // CLI + library tests on the other supported Node majors
   { name: 'build', cmd: [process.execPath, 'esbuild.js'], counts: 'exit' },
+  { name: 'bad-input', cmd: [bin('mocha'), '--config', '.mocharc.json', '--reporter', reporter, 'test/bad-input/**/*.test.ts'] }, // the real CLI on bad input (needs the build)
   // README images are relative links to docs/ in the repository; the VSIX ships no docs images, so links stay as written
   { name: 'package', cmd: [bin('vsce'), 'package', '--no-dependencies', '--allow-missing-repository', '--no-rewrite-relative-links', '-o', vsix], counts: 'exit', after: () => {
     const kb = fs.statSync(vsix).size / 1024;

@@ -2,7 +2,9 @@
 // started by the CLI itself it runs specs instead (src/cli/pool.ts). Every failure ends in a message and an exit
 // code, never a stack trace: 2 for bad arguments, 3 for a bug (with a hint to report it).
 import { UsageError } from './cli/args';
-import { processIo } from './cli/io';
+import { ioReason, processIo } from './cli/io';
+
+const USER_IO = new Set(['EACCES', 'EPERM', 'EROFS', 'ENOSPC', 'ENOTDIR', 'EISDIR', 'ENOENT', 'EEXIST']);
 import { main } from './cli/main';
 import { InternalError, isCliWorker, startCliWorker } from './cli/pool';
 
@@ -35,8 +37,13 @@ if (isCliWorker()) {
       process.exitCode = code;
     },
     e => {
+      const io = e as NodeJS.ErrnoException;
       if (e instanceof UsageError) {
         process.stderr.write(`curvewright: ${e.message}\n`);
+        process.exitCode = 2;
+      } else if (io && typeof io.code === 'string' && USER_IO.has(io.code)) {
+        // a user's I/O mistake (folder, permission, full disk), not a bug: exit 2 with the path and the fix
+        process.stderr.write(`curvewright: cannot write or read ${io.path ?? 'a file'}: ${ioReason(e)} — check the path, its permissions and the free space\n`);
         process.exitCode = 2;
       } else internal(e);
     },

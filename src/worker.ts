@@ -1,6 +1,7 @@
 // worker_threads entry: runs the engine off the extension host thread. Receives 'run' / 'cancel' / 'suggest'
 // (src/protocol.ts), calls runSpecFile with a shouldStop that sees cancels through a shared Int32Array
 // (synchronous solver loops never yield to this thread's event loop), and posts the result.
+import * as path from 'path';
 import { parentPort, workerData } from 'worker_threads';
 import { runSpecFile, writeResults } from './engine/run';
 import { suggestSpec } from './engine/starter';
@@ -42,7 +43,7 @@ async function runOne(req: RunRequest): Promise<void> {
   try {
     const result = await runSpecFile(req.specPath, {
       specText: req.specText,
-      workspaceRoot: req.workspaceRoot,
+      workspaceRoot: req.workspaceRoot ?? path.dirname(req.specPath), // no workspace folder: the spec's own folder
       shouldStop: () => isCancelled(req.id),
       onProgress: message => post({ type: 'progress', inReplyTo: req.id, message }),
     });
@@ -50,7 +51,7 @@ async function runOne(req: RunRequest): Promise<void> {
     let written: string | null = null;
     let writeError: string | undefined;
     if (req.writeResults && !isErrorReport(result)) {
-      try { written = await writeResults(result, req.specPath, { workspaceRoot: req.workspaceRoot }); }
+      try { written = await writeResults(result, req.specPath, { workspaceRoot: req.workspaceRoot ?? path.dirname(req.specPath) }); }
       catch (e) { writeError = (e as Error).message; }
     }
     const transfer = isErrorReport(result) ? [] : packPoints(result);

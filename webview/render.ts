@@ -124,7 +124,9 @@ const SEVERITY_RANK: Record<Problem['severity'], number> = { error: 0, warning: 
 
 function csvCell(v: unknown): string {
   if (v === null || v === undefined) return '';
-  const s = String(v);
+  // spreadsheet formula injection (common practice): a text cell starting with = + - @ tab or CR gets a leading '
+  // so that a spreadsheet shows it as text; numbers (also negative ones) stay numbers
+  const s = typeof v === 'number' ? String(v) : /^[=+\-@\t\r]/.test(String(v)) ? `'${String(v)}` : String(v);
   return /[",\n\r]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
 }
 

@@ -9,7 +9,7 @@ import { findingSeverity, githubAnnotations, placeFindings, type Finding } from 
 import { UsageError, type Parsed } from './args';
 import { errorText, expectText, problemLine, allProblems } from './format';
 import { inOrder, specsOf } from './fit';
-import { shown, writeAtomic, type Io } from './io';
+import { ioReason, shown, writeAtomic, type Io } from './io';
 import { parseShard, shardSpecs } from './shard';
 import { updateExpectText } from './update';
 
@@ -89,7 +89,8 @@ export function verdictOf(report: FitReport, specShown: string, strict: boolean)
 }
 
 export async function checkCommand(parsed: Parsed, io: Io): Promise<number> {
-  const { specs: given, jobs } = specsOf(parsed, io, 'check');
+  const { specs: given, jobs, boundary } = specsOf(parsed, io, 'check');
+  const bound = { workspaceRoot: boundary.root, trustPaths: boundary.trustPaths };
   const strict = parsed.options.strict === true;
   const update = parsed.options.update === true;
   const json = parsed.options.json === true;
@@ -136,18 +137,31 @@ export async function checkCommand(parsed: Parsed, io: Io): Promise<number> {
     if (update) {
       const text = await fsp.readFile(specAbs, 'utf8');
       const upd = updateExpectText(text, result.expect);
-      if (upd.changed.length) {
-        await writeAtomic(specAbs, upd.text);
-        for (const c of upd.changed) notes.push(`updated expect ${c.model}.${c.param}: ${c.from} → ${c.to}`);
-        result = await runSpecFile(specAbs, { workspaceRoot: io.cwd });
+      // transactional: the new spec text is fitted in memory, the results file written first; the spec is written
+      // only when that succeeded, and the old results are put back when the spec cannot be written (both or neither)
+      const newText = upd.changed.length ? upd.text : undefined;
+      if (newText !== undefined) {
+        result = await runSpecFile(specAbs, { ...bound, specText: newText });
         if (isErrorReport(result)) return couldNotRun(result, specAbs, specShown);
       }
+      const { output } = await specFiles(specAbs, newText);
+      const before = output ? await fsp.readFile(output, 'utf8').catch(() => null) : null;
       try {
-        const written = await writeResults(result, specAbs, { workspaceRoot: io.cwd });
+        const written = await writeResults(result, specAbs, { ...bound, ...(newText !== undefined ? { specText: newText } : {}) });
+        if (newText !== undefined) {
+          try {
+            await writeAtomic(specAbs, newText);
+          } catch (e) {
+            if (written) await (before === null ? fsp.unlink(written) : writeAtomic(written, before)).catch(() => undefined);
+            throw new OutputError(`cannot rewrite the spec ${specShown}: ${ioReason(e)} — nothing was changed (the results file was restored)`);
+          }
+          for (const c of upd.changed) notes.push(`updated expect ${c.model}.${c.param}: ${c.from} → ${c.to}`);
+        }
         if (written) notes.push(`wrote ${shown(written, io.cwd)}`);
       } catch (e) {
         failures.push(e instanceof OutputError ? e.message : String((e as Error).message));
         findings.push({ code: 'output-failed', severity: 'error', message: failures[failures.length - 1], path: ['output'] });
+        code = Math.max(code, 2);
       }
     } else {
       const { output } = await specFiles(specAbs);
@@ -173,7 +187,7 @@ export async function checkCommand(parsed: Parsed, io: Io): Promise<number> {
     say(lines.join('\n'));
     const check = await verdictBlock(specAbs, specShown, findings, ok);
     if (json) io.out(serializeReport({ ...result, check }));
-  });
+  }, boundary);
   const total = `check${shardText ? ` (shard ${shardText})` : ''}: ${passed} passed, ${failed} failed${bad ? `, ${bad} could not run` : ''}`;
   say(total);
   return code;

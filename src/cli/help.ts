@@ -10,6 +10,9 @@ export interface CommandDef {
 }
 
 const HELP: OptionDef = { name: 'help', short: 'h', help: 'show this help' };
+// the workspace boundary (src/engine/paths.ts): specs read and write only inside the root unless --trust-paths
+const ROOT: OptionDef = { name: 'root', value: true, meta: 'DIR', help: 'workspace root: data files and outputs must resolve (after links) inside it (default: the current folder)' };
+const TRUST: OptionDef = { name: 'trust-paths', help: 'allow data files and outputs outside the root (only for specs you trust); hidden folders, non-.json outputs and inputs stay refused' };
 
 export const EXIT_CODES = [
   '0  everything ran (fit) / every check passed (check)',
@@ -33,6 +36,8 @@ export const COMMANDS: CommandDef[] = [
       { name: 'json', help: 'print one FitReport per line (JSON), in the order the specs were given, instead of the summary (which lists specs in natural order: chick2 before chick10)' },
       { name: 'verbose', help: 'list the info notes in the summary too (by default only their count is shown)' },
       { name: 'jobs', short: 'j', value: true, meta: 'N', help: 'run up to N specs at once on worker threads (default: number of CPUs)' },
+      ROOT,
+      TRUST,
       HELP,
     ],
   },
@@ -53,6 +58,8 @@ export const COMMANDS: CommandDef[] = [
       { name: 'format', value: true, meta: 'github', help: 'also print a GitHub Actions annotation (::error file=…,line=…,col=…::…) per failure and warning' },
       { name: 'shard', value: true, meta: 'K/N', help: 'check only the K-th of N shards of the specs (for a CI matrix; combine with `curvewright merge`)' },
       { name: 'jobs', short: 'j', value: true, meta: 'N', help: 'run up to N specs at once on worker threads (default: number of CPUs)' },
+      ROOT,
+      TRUST,
       HELP,
     ],
   },
@@ -89,6 +96,8 @@ export const COMMANDS: CommandDef[] = [
     options: [
       { name: 'output', short: 'o', value: true, meta: 'FILE', help: 'HTML file to write (default: report.html)' },
       { name: 'jobs', short: 'j', value: true, meta: 'N', help: 'run up to N specs at once on worker threads (default: number of CPUs)' },
+      ROOT,
+      TRUST,
       HELP,
     ],
   },

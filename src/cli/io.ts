@@ -2,6 +2,7 @@
 import { promises as fsp } from 'fs';
 import * as path from 'path';
 import { randomBytes } from 'crypto';
+import { cleanStaleTemps, realOrSelf, tmpName } from '../engine/paths';
 
 export interface Io {
   out(text: string): void;
@@ -15,14 +16,31 @@ export const processIo: Io = {
   cwd: process.cwd(),
 };
 
-/** Writes a file atomically: a temporary file in the same folder, then rename. */
+/** A user's I/O mistake in words (permission, full disk, a file where a folder should be). */
+export function ioReason(e: unknown): string {
+  const code = (e as NodeJS.ErrnoException).code;
+  if (code === 'EACCES' || code === 'EPERM' || code === 'EROFS') return 'permission denied';
+  if (code === 'ENOSPC') return 'the disk is full';
+  if (code === 'ENOTDIR') return 'a part of the path is a file, not a folder';
+  if (code === 'EISDIR') return 'it is a folder';
+  return (e as Error).message;
+}
+
+/**
+ * Writes a file atomically: a temporary file (.<name>.curvewright-tmp-<pid>-<random>) in the same folder, then
+ * rename. A symlink is written through (its target replaced, the link kept); the file's mode is kept.
+ */
 export async function writeAtomic(file: string, text: string): Promise<void> {
-  const dir = path.dirname(file);
-  const tmp = path.join(dir, `.${path.basename(file)}.${process.pid}.${randomBytes(4).toString('hex')}.tmp`);
+  const target = await realOrSelf(file);
+  const dir = path.dirname(target);
+  const tmp = tmpName(target, randomBytes(4).toString('hex'));
   await fsp.mkdir(dir, { recursive: true });
+  await cleanStaleTemps(target);
+  const mode = await fsp.stat(target).then(st => st.mode & 0o7777, () => undefined);
   try {
-    await fsp.writeFile(tmp, text, 'utf8');
-    await fsp.rename(tmp, file);
+    await fsp.writeFile(tmp, text, { encoding: 'utf8', ...(mode !== undefined ? { mode } : {}) });
+    if (mode !== undefined) await fsp.chmod(tmp, mode);
+    await fsp.rename(tmp, target);
   } catch (e) {
     await fsp.unlink(tmp).catch(() => undefined);
     throw e;

@@ -6,7 +6,7 @@ import { Worker, isMainThread, parentPort, workerData } from 'worker_threads';
 import { runSpecFile } from '../engine/run';
 import type { RunResult } from '../engine/report';
 
-interface JobMessage { id: number; specPath: string; workspaceRoot: string }
+interface JobMessage { id: number; specPath: string; workspaceRoot: string; trustPaths?: boolean }
 type ReplyMessage = { id: number; result: RunResult } | { id: number; failure: string };
 
 export const WORKER_FLAG = 'curvewrightCliWorker';
@@ -26,7 +26,7 @@ export function startCliWorker(): void {
   port.on('message', async (job: JobMessage) => {
     let reply: ReplyMessage;
     try {
-      reply = { id: job.id, result: await runSpecFile(job.specPath, { workspaceRoot: job.workspaceRoot }) };
+      reply = { id: job.id, result: await runSpecFile(job.specPath, { workspaceRoot: job.workspaceRoot, trustPaths: job.trustPaths === true }) };
     } catch (e) {
       reply = { id: job.id, failure: e instanceof Error ? e.stack ?? e.message : String(e) };
     }
@@ -47,7 +47,7 @@ export class InternalError extends Error {
  */
 export async function runAll(
   specs: string[],
-  opts: { jobs: number; workspaceRoot: string },
+  opts: { jobs: number; workspaceRoot: string; trustPaths?: boolean },
   onResult: (index: number, result: RunResult) => void = () => undefined,
 ): Promise<RunResult[]> {
   const results: RunResult[] = new Array(specs.length);
@@ -55,7 +55,7 @@ export async function runAll(
   const jobs = Math.min(opts.jobs, specs.length);
   if (!bundled || jobs <= 1) {
     for (let i = 0; i < specs.length; i++) {
-      results[i] = await runSpecFile(specs[i], { workspaceRoot: opts.workspaceRoot });
+      results[i] = await runSpecFile(specs[i], { workspaceRoot: opts.workspaceRoot, trustPaths: opts.trustPaths === true });
       onResult(i, results[i]);
     }
     return results;
@@ -68,7 +68,7 @@ export async function runAll(
       const feed = (w: Worker) => {
         if (next >= specs.length) return;
         const id = next++;
-        w.postMessage({ id, specPath: specs[id], workspaceRoot: opts.workspaceRoot } satisfies JobMessage);
+        w.postMessage({ id, specPath: specs[id], workspaceRoot: opts.workspaceRoot, trustPaths: opts.trustPaths === true } satisfies JobMessage);
       };
       for (let k = 0; k < jobs; k++) {
         const w = new Worker(__filename, { workerData: { [WORKER_FLAG]: true } });

@@ -5,9 +5,10 @@ import * as path from 'path';
 import { buildReportHtml } from '../../webview/html';
 import { isErrorReport, type RunResult } from '../engine/report';
 import { UsageError, type Parsed } from './args';
-import { inOrder, specsOf } from './fit';
+import { inOrder, runInputs, specsOf } from './fit';
+import { outputRefusal, REPORT_MARKER } from '../engine/paths';
 import { errorText } from './format';
-import { shown, writeAtomic, type Io } from './io';
+import { ioReason, shown, writeAtomic, type Io } from './io';
 
 /** The installed package's root folder (holds package.json with name "curvewright"). */
 export function packageRoot(from = __dirname): string {
@@ -43,11 +44,12 @@ export function readAssets(root = packageRoot()): { js: string; css: string } {
 }
 
 export async function reportCommand(parsed: Parsed, io: Io): Promise<number> {
-  const { specs, jobs } = specsOf(parsed, io, 'report');
+  const { specs, jobs, boundary } = specsOf(parsed, io, 'report');
   const outGiven = typeof parsed.options.output === 'string' ? parsed.options.output : 'report.html';
   const out = path.resolve(io.cwd, outGiven);
-  if (/\.(csv|tsv|txt)$/i.test(out) || out.endsWith('.fitspec.json') || specs.some(s => path.resolve(io.cwd, s) === out))
-    throw new UsageError(`-o ${outGiven} looks like an input file — write the report to an .html file, e.g. -o report.html`);
+  // -o is checked like a spec's output (boundary, .html, not an input of the run, not someone else's file) before any fit
+  const refusal = await outputRefusal('-o', out, 'report', { root: boundary.root, trustOutside: boundary.trustPaths, inputs: await runInputs(specs.map(s => path.resolve(io.cwd, s))) });
+  if (refusal) throw new UsageError(refusal);
   const assets = readAssets();
   const results: RunResult[] = [];
   let code = 0;
@@ -57,9 +59,13 @@ export async function reportCommand(parsed: Parsed, io: Io): Promise<number> {
       code = 2;
       io.err(errorText(r, shown(specs[i], io.cwd)));
     }
-  });
-  const html = buildReportHtml(results, assets);
-  await writeAtomic(out, html);
+  }, boundary);
+  const html = buildReportHtml(results, assets).replace('<head>', `<head>\n${REPORT_MARKER}`);
+  try {
+    await writeAtomic(out, html);
+  } catch (e) {
+    throw new UsageError(`cannot write the report ${shown(out, io.cwd)}: ${ioReason(e)} — check that its folder exists, is writable and has space`);
+  }
   const fitted = results.filter(r => !isErrorReport(r)).length;
   io.out(`wrote ${shown(out, io.cwd)} (${fitted} of ${results.length} spec${results.length === 1 ? '' : 's'} fitted)`);
   return code;

@@ -34,12 +34,15 @@ import type { AnalysisOptions, ModelAnalysisInput } from './stats/api';
 import { sidecarPath, splitReport, type OutputPoints } from './pointsFile';
 import { derivedFor } from './stats/derived';
 import { DEFAULTS } from './spec/defaults';
+import { cleanStaleTemps, inputRefusal, outputRefusal as pathOutputRefusal, realOrSelf, tmpName } from './paths';
 
 export interface RunOptions {
   /** spec text to use instead of the file on disk (e.g. unsaved editor text) */
   specText?: string;
-  /** folder outputs must stay inside (default: the current directory) */
+  /** folder inputs and outputs must stay inside (default: the current directory) */
   workspaceRoot?: string;
+  /** files outside workspaceRoot allowed (the CLI's --trust-paths) */
+  trustPaths?: boolean;
   /** polled during the fits; true cancels */
   shouldStop?: () => boolean;
   /** short progress notes ("fitting model 2 of 3: gompertz") */
@@ -111,47 +114,18 @@ export function textColumnsNeeded(spec: NormalizedSpec, header: string[]): strin
 
 // ------------------------------------------------------------------ output path checks
 
-function isInside(root: string, file: string): boolean {
-  const rel = path.relative(root, file);
-  return rel === '' || (!rel.startsWith('..') && !path.isAbsolute(rel));
-}
-
-async function realOrSelf(p: string): Promise<string> {
-  // resolve symlinks of the deepest existing ancestor, so that a link cannot smuggle the output elsewhere
-  let head = p;
-  const tail: string[] = [];
-  for (;;) {
-    try {
-      const real = await fsp.realpath(head);
-      return path.join(real, ...tail.reverse());
-    } catch {
-      const parent = path.dirname(head);
-      if (parent === head) return p;
-      tail.push(path.basename(head));
-      head = parent;
-    }
-  }
-}
-
-/** Why `output` may not be written, or null when it may. */
+/** Why `output` may not be written, or null when it may (the workspace boundary of src/engine/paths.ts). */
 export async function outputRefusal(
   outputAbs: string,
   inputs: { spec: string; data: string },
   workspaceRoot: string | undefined,
+  trustPaths = false,
 ): Promise<string | null> {
-  const out = await realOrSelf(path.resolve(outputAbs));
-  if (workspaceRoot !== undefined) {
-    const root = await realOrSelf(path.resolve(workspaceRoot));
-    if (!isInside(root, out))
-      return `the results file ${outputAbs} is outside the workspace ${workspaceRoot} — give "output" a path inside it, e.g. "results/<name>.fitresult.json"`;
-  }
-  for (const [what, file] of [['spec', inputs.spec], ['data', inputs.data]] as const) {
-    if ((await realOrSelf(path.resolve(file))) === out)
-      return `"output" names the ${what} file ${file} itself — it would be overwritten; write results to a separate file such as "results/<name>.fitresult.json"`;
-  }
-  if (/\.(csv|tsv|txt)$/i.test(out) || /\.fitspec\.json$/i.test(out))
-    return `"output" ${outputAbs} looks like an input file (data or spec) — results go to a .json file such as "results/<name>.fitresult.json"`;
-  return null;
+  return pathOutputRefusal('output', outputAbs, 'results', {
+    root: workspaceRoot ?? process.cwd(),
+    trustOutside: trustPaths,
+    inputs: [inputs.spec, inputs.data],
+  });
 }
 
 // ------------------------------------------------------------------ the run
@@ -196,19 +170,27 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
 
   // 2. shape, without and then with the data file's columns
   const workspaceRoot = opts.workspaceRoot ?? process.cwd();
-  const first = validateSpec(parsed.raw, { file: specPath, text, workspaceRoot });
+  const trustPaths = opts.trustPaths === true;
+  const first = validateSpec(parsed.raw, { file: specPath, text, workspaceRoot, trustPaths });
   if (!first.spec || first.problems.some(p => p.severity === 'error')) return fromProblems(name, [...parsed.problems, ...first.problems]);
   const dataFile = first.spec.data.file;
   const dataLabel = first.spec.data.fileGiven;
   const readOpts = { delimiter: first.spec.data.delimiter, decimal: first.spec.data.decimal, label: dataLabel };
+  // the workspace boundary: nothing outside the root is read (after following symlinks) unless trusted
+  const dataRefusal = await inputRefusal('data.file', dataFile, { root: workspaceRoot, trustOutside: trustPaths });
+  if (dataRefusal) return errorReport(name, dataRefusal, { path: ['data', 'file'], location: locationOf(text, name, ['data', 'file']) });
+  if (first.spec.output) {
+    const early = await outputRefusal(first.spec.output, { spec: specPath, data: dataFile }, workspaceRoot, trustPaths);
+    if (early) return errorReport(name, early, { path: ['output'], location: locationOf(text, name, ['output']) });
+  }
   const header = await readHeader(dataFile, readOpts);
-  const checked = validateSpec(parsed.raw, { file: specPath, text, columns: header, workspaceRoot, dataLabel });
+  const checked = validateSpec(parsed.raw, { file: specPath, text, columns: header, workspaceRoot, dataLabel, trustPaths });
   const specProblems = [...parsed.problems, ...checked.problems];
   if (!checked.spec || specProblems.some(p => p.severity === 'error')) return fromProblems(name, specProblems);
   const spec = checked.spec;
 
   if (spec.output) {
-    const refusal = await outputRefusal(spec.output, { spec: specPath, data: spec.data.file }, workspaceRoot);
+    const refusal = await outputRefusal(spec.output, { spec: specPath, data: spec.data.file }, workspaceRoot, trustPaths);
     if (refusal) return errorReport(name, refusal, { path: ['output'], location: locationOf(text, name, ['output']) });
   }
 
@@ -695,13 +677,18 @@ export async function specFiles(specPath: string, specText?: string): Promise<{ 
 export async function writeResults(
   report: FitReport,
   specPath: string,
-  opts: { workspaceRoot?: string; specText?: string } = {},
+  opts: { workspaceRoot?: string; specText?: string; trustPaths?: boolean; claimed?: Set<string>; inputs?: string[] } = {},
 ): Promise<string | null> {
   const { output, data, outputPoints } = await specFiles(specPath, opts.specText);
   if (!output) return null;
   const side = sidecarPath(output);
   for (const file of outputPoints === 'sidecar' ? [output, side] : [output]) {
-    const refusal = await outputRefusal(file, { spec: specPath, data: data ?? specPath }, opts.workspaceRoot ?? process.cwd());
+    const refusal = await pathOutputRefusal('output', file, 'results', {
+      root: opts.workspaceRoot ?? process.cwd(),
+      trustOutside: opts.trustPaths === true,
+      inputs: [specPath, data ?? specPath, ...(opts.inputs ?? [])],
+      claimed: opts.claimed,
+    });
     if (refusal) throw new OutputError(refusal);
   }
   const { main, sidecar } = splitReport(reportForFile(report), outputPoints, path.basename(side));
@@ -715,11 +702,15 @@ export async function writeResults(
       } catch {
         /* not there yet */
       }
-      const dir = path.dirname(file);
-      const tmp = path.join(dir, `.${path.basename(file)}.${process.pid}.${randomBytes(4).toString('hex')}.tmp`);
+      const target = await realOrSelf(file); // a symlinked results file is written through, the link kept
+      const dir = path.dirname(target);
+      const tmp = tmpName(target, randomBytes(4).toString('hex'));
       await fsp.mkdir(dir, { recursive: true });
-      pending.push({ file, tmp });
-      await fsp.writeFile(tmp, text, 'utf8');
+      await cleanStaleTemps(target);
+      const mode = await fsp.stat(target).then(st => st.mode & 0o7777, () => undefined);
+      pending.push({ file: target, tmp });
+      await fsp.writeFile(tmp, text, { encoding: 'utf8', ...(mode !== undefined ? { mode } : {}) });
+      if (mode !== undefined) await fsp.chmod(tmp, mode);
     }
     while (pending.length) {
       await fsp.rename(pending[0].tmp, pending[0].file);
@@ -727,7 +718,9 @@ export async function writeResults(
     }
   } catch (e) {
     await Promise.all(pending.map(p => fsp.unlink(p.tmp).catch(() => undefined)));
-    throw new OutputError(`cannot write the results file ${output}: ${(e as Error).message} — check that its folder is writable`);
+    const code = (e as NodeJS.ErrnoException).code;
+    const why = code === 'EACCES' || code === 'EPERM' ? 'permission denied' : code === 'ENOSPC' ? 'the disk is full' : code === 'ENOTDIR' ? 'a part of the path is a file, not a folder' : code === 'EISDIR' ? 'it is a folder' : (e as Error).message;
+    throw new OutputError(`cannot write the results file ${path.basename(output)}: ${why} — check that its folder exists, is writable and has space`);
   }
   return output;
 }

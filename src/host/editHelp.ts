@@ -1,5 +1,6 @@
 // Edit help in a spec: hover on a parameter (name in `params` or in the formula) shows its current estimate ± SE;
 // a CodeLens above each model shows its status and key figures (R², AICc) and opens the panel.
+import { escapeMarkdown } from './markdownText';
 import * as vscode from 'vscode';
 import * as jsonc from 'jsonc-parser';
 import type { FitService } from './fitService';
@@ -31,7 +32,7 @@ export class ParamHover implements vscode.HoverProvider {
 export function paramMarkdown(model: ModelReport, name: string, confidence: number): vscode.MarkdownString {
   const pr = model.params[name];
   const md = new vscode.MarkdownString();
-  md.appendMarkdown(`**${name}** = ${fmt(pr.value, 6)}`);
+  md.appendMarkdown(`**${escapeMarkdown(name)}** = ${fmt(pr.value, 6)}`);
   if (pr.fixed) md.appendMarkdown(' (fixed)');
   else if (pr.se !== null) md.appendMarkdown(` ± ${fmt(pr.se)} (standard error)`);
   md.appendMarkdown('\n\n');
@@ -39,7 +40,7 @@ export function paramMarkdown(model: ModelReport, name: string, confidence: numb
   if (pr.profileCi) md.appendMarkdown(` · profile [${fmt(pr.profileCi[0])}, ${fmt(pr.profileCi[1])}]`);
   if (pr.p !== null) md.appendMarkdown(` · p = ${fmt(pr.p, 2)}`);
   if (pr.atBound) md.appendMarkdown(`\n\n$(warning) at its ${pr.atBound} bound`);
-  md.appendMarkdown(`\n\nmodel \`${model.name}\`: ${model.status}${model.status !== 'converged' ? ` (${model.termination})` : ''}`);
+  md.appendMarkdown(`\n\nmodel ${escapeMarkdown(model.name)}: ${model.status}${model.status !== 'converged' ? ` (${model.termination})` : ''}`);
   md.supportThemeIcons = true;
   return md;
 }

@@ -1,5 +1,6 @@
 // Keeps every live spec fitted: debounced refits on editor changes (live, unsaved text), on saves, and on CSV
 // changes on disk; latest-wins cancellation through the worker pool; progress with cancel for long fits.
+import { mayWriteResults } from './trust';
 import * as vscode from 'vscode';
 import * as path from 'path';
 import { Disposable } from './disposable';
@@ -138,7 +139,7 @@ export class FitService extends Disposable {
       specPath: uri.fsPath,
       specText: doc ? text : undefined,
       workspaceRoot: folder?.uri.fsPath,
-      writeResults: cfg.writeResults && !doc?.isDirty,
+      writeResults: mayWriteResults({ trusted: vscode.workspace.isTrusted, setting: cfg.writeResults, dirty: !!doc?.isDirty }),
     }, m => { progressReport?.(m); this._onDidChangeState.fire({ uri, state: 'fitting', message: m }); });
     clearTimeout(progressTimer);
     finish();

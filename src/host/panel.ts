@@ -259,6 +259,8 @@ export function plainArrays(_k: string, v: unknown): unknown {
 
 function csvCell(v: unknown): string {
   if (v === null || v === undefined) return '';
-  const s = String(v);
-  return /[",\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
+  // spreadsheet formula injection (common practice): a text cell starting with = + - @ tab or CR gets a leading '
+  // so that a spreadsheet shows it as text; numbers (also negative ones) stay numbers
+  const s = typeof v === 'number' ? String(v) : /^[=+\-@\t\r]/.test(String(v)) ? `'${String(v)}` : String(v);
+  return /[",\n\r]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
 }

@@ -342,7 +342,8 @@ describe('cli', function () {
       assert.ok(fs.existsSync(path.join(dir, 'both.html')));
       const input = cw(['report', 'a.fitspec.json', '-o', 'rate.csv'], dir);
       assert.equal(input.code, 2);
-      assert.match(input.err, /looks like an input file/);
+      assert.match(input.err, /"-o" rate.csv is not a .html file/);
+      assert.equal(fs.readFileSync(path.join(dir, 'rate.csv'), 'utf8'), saturatingCsv(11), 'the data file is untouched');
     });
   });
 });

@@ -129,7 +129,7 @@ describe('run: runSpecFile', function () {
       (fsp as { writeFile: unknown }).writeFile = original;
     }
     assert.equal(fs.readFileSync(out, 'utf8'), good, 'the previous results file is intact');
-    assert.deepEqual(fs.readdirSync(path.dirname(out)).filter(f => f.endsWith('.tmp')), [], 'no temporary file left');
+    assert.deepEqual(fs.readdirSync(path.dirname(out)).filter(f => f.includes('curvewright-tmp')), [], 'no temporary file left');
     await writeResults(changed, spec, { workspaceRoot: dir });
     assert.equal(JSON.parse(fs.readFileSync(out, 'utf8')).title, 'changed');
     assert.equal(fileHash(data), before, 'the data file is untouched');

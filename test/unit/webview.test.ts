@@ -234,6 +234,20 @@ describe('webview exports and helpers', function () {
     assert.strictEqual(Number(k[3]), r.models[0]!.params.K!.se);
   });
 
+  it('CSV export neutralises spreadsheet formulas in text cells (= + - @ tab CR), keeps negative numbers numeric', function () {
+    const r = sampleReport();
+    const m = r.models[0]!;
+    const bad = { ...r, models: [{ ...m, name: '=HYPERLINK("x")', params: { ...m.params, [m.paramOrder[0]!]: { ...m.params[m.paramOrder[0]!]!, value: -1.5 } } }] };
+    const csv = parametersCsv(bad as typeof r).trim().split('\n');
+    const row = csv[1]!;
+    assert.ok(row.startsWith(`"'=HYPERLINK(""x"")",`), row);
+    assert.ok(row.includes(',-1.5,'), `negative numbers stay numbers: ${row}`);
+    for (const lead of ['+', '-', '@', '\t', '\r']) {
+      const one = parametersCsv({ ...bad, models: [{ ...bad.models[0]!, name: `${lead}cmd` }] } as typeof r).split('\n')[1]!;
+      assert.ok(one.startsWith(`'${lead}`) || one.startsWith(`"'${lead}`), JSON.stringify(one));
+    }
+  });
+
   it('exports JSON that parses back to the report', function () {
     const r = sampleReport();
     assert.deepStrictEqual(JSON.parse(reportJson(r)), r);

@@ -17,6 +17,8 @@ export interface ValidateContext {
   columns?: string[];
   /** root that `output` must stay inside; default: the current directory */
   workspaceRoot?: string;
+  /** outputs outside workspaceRoot allowed (the CLI's --trust-paths) */
+  trustPaths?: boolean;
   /** display name of the data file in messages (default: data.file as written) */
   dataLabel?: string;
 }
@@ -341,7 +343,7 @@ export function validateSpec(raw: unknown, ctx: ValidateContext): ValidateResult
       const root = path.resolve(ctx.workspaceRoot ?? process.cwd());
       const rel = path.relative(root, abs);
       const same = (a: string, b: string) => (process.platform === 'win32' || process.platform === 'darwin' ? a.toLowerCase() === b.toLowerCase() : a === b);
-      if (rel === '' || rel.startsWith('..') || path.isAbsolute(rel))
+      if (!ctx.trustPaths && (rel === '' || rel.startsWith('..') || path.isAbsolute(rel)))
         c.add('spec-output', ['output'], `output ${JSON.stringify(o)} points outside the workspace folder — write a path inside it, relative to the spec file, e.g. "results/fit.json"`);
       else if (same(abs, specFile)) c.add('spec-output', ['output'], `output ${JSON.stringify(o)} is the spec file itself — results would overwrite it; choose another file, e.g. "results/fit.json"`);
       else if (data && same(abs, data.file)) c.add('spec-output', ['output'], `output ${JSON.stringify(o)} is the data file — results would overwrite it; choose another file, e.g. "results/fit.json"`);

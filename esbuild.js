@@ -15,9 +15,11 @@ const builds = [
 ];
 const fs = require('fs');
 (async () => {
-  const present = builds.filter(b => fs.existsSync(b.entryPoints[0]));
-  if (watch) { for (const b of present) (await esbuild.context(b)).watch(); return; }
-  await Promise.all(present.map(b => esbuild.build(b)));
+  // a missing entry point is an error (a renamed file must not silently drop a bundle from dist/)
+  const missing = builds.map(b => b.entryPoints[0]).filter(e => !fs.existsSync(e));
+  if (missing.length) throw new Error(`esbuild.js: entry point${missing.length > 1 ? 's' : ''} not found: ${missing.join(', ')} (rename it here too)`);
+  if (watch) { for (const b of builds) (await esbuild.context(b)).watch(); return; }
+  await Promise.all(builds.map(b => esbuild.build(b)));
   if (fs.existsSync('tsconfig.lib.json')) {
     fs.rmSync('dist/types', { recursive: true, force: true }); // no declarations of deleted files
     const tsc = require('child_process').spawnSync(process.execPath, [require.resolve('typescript/bin/tsc'), '-p', 'tsconfig.lib.json'], { encoding: 'utf8' });

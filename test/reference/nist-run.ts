@@ -1,5 +1,4 @@
 // Runs one NIST StRD problem through the real path: compileFormula → LsqProblem → solver → covarianceFromJacobian, and scores it by LRE.
-import { compileFormula } from '../../src/engine/formula';
 import type { CompiledFormula } from '../../src/engine/formula/types';
 import { solveLinear, solveNonlinear } from '../../src/engine/solve';
 import type { LsqProblem, SolveResult } from '../../src/engine/solve/types';

@@ -44,7 +44,7 @@ describe('cli in CI: check verdicts, annotations, shards, merge', function () {
   const specs: string[] = [];
 
   before(function () {
-    // eslint-disable-next-line @typescript-eslint/no-var-requires
+    // eslint-disable-next-line @typescript-eslint/no-require-imports
     const esbuild = require('esbuild') as typeof import('esbuild');
     esbuild.buildSync({
       entryPoints: [path.join(ROOT, 'src', 'cli.ts')], outfile: CLI, bundle: true, platform: 'node', format: 'cjs',

@@ -94,10 +94,9 @@ function finiteOrNull(v: number): number | null {
 }
 
 export function analyzeModel(input: ModelAnalysisInput): ModelReport {
-  const { result: res, params, compiled, X, y, w, thresholds: th } = input;
+  const { result: res, params, compiled, X, y, w } = input;
   const opts = input.options ?? {};
   const base: (string | number)[] = ['models', input.index];
-  const paramPath = (name: string) => [...base, 'params', name];
   const problems: Problem[] = [];
   const n = y.length;
   const p = params.length;

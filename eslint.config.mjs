@@ -68,11 +68,6 @@ export default tseslint.config(
     },
   },
   {
-    // webview/html.ts is the HTML template, which runs in Node (the host and the CLI), not in the browser
-    files: ['webview/html.ts'],
-    rules: { 'no-restricted-imports': ['error', { paths: [vscode] }] },
-  },
-  {
     // src/shared: code on both sides of a process boundary, so neither vscode, nor Node, nor the DOM
     files: ['src/shared/**/*.ts'],
     rules: {

@@ -2,7 +2,7 @@
 // with the bundled panel script dist/webview.js and media/panel.css inlined).
 import * as fs from 'fs';
 import * as path from 'path';
-import { buildReportHtml } from '../../webview/html';
+import { buildReportHtml } from '../shared/html';
 import { isErrorReport, type RunResult } from '../engine/report';
 import { UsageError, type Parsed } from './args';
 import { inOrder, specsOf } from './fit';

@@ -5,7 +5,7 @@ import * as vscode from 'vscode';
 import * as path from 'path';
 import { starterSpecText } from '../engine/starter';
 import type { ModelSpec } from '../engine/report';
-import type { SpecSuggestion } from '../protocol';
+import type { SpecSuggestion } from '../shared/protocol';
 import type { WorkerPool } from './workerPool';
 import type { OwnWrites } from './ownWrites';
 import type { PanelController } from './panel';

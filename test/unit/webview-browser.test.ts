@@ -8,7 +8,7 @@ import * as os from 'os';
 import * as path from 'path';
 import type { Browser, BrowserContext, Page } from 'playwright-core';
 import type { ErrorReport, FitReport, RunResult } from '../../src/engine/report';
-import { buildReportHtml, panelHtml } from '../../webview/html';
+import { buildReportHtml, panelHtml } from '../../src/shared/html';
 import { panelCss, repoRoot, sampleReport, webviewBundle } from './webview-helpers';
 
 const CHROMIUM = process.env.CHROMIUM_PATH || '/usr/bin/chromium';

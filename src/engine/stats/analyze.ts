@@ -12,7 +12,7 @@ import { runsByPosition, type PositionRuns } from './runs';
 import { profileIntervals } from './profile';
 import { crossValidate, sortedOrder } from './crossval';
 import { computeBand, computeInverse, computePrediction, predictionPoint, variableRange, type PredictionContext } from './predict';
-import { fmt } from './format';
+import { fmtMessage as fmt } from '../../shared/numberFormat';
 import { roleOf } from '../models/roles';
 
 /** LsqProblem over the given data for a compiled formula. */

@@ -41,19 +41,29 @@ export default tseslint.config(
       '@typescript-eslint/no-require-imports': 'error',
     },
   },
-  {
-    // the engine: pure TypeScript, runs in the worker, the CLI and the library
-    files: ['src/engine/**/*.ts'],
+  // the engine: pure TypeScript, runs in the worker, the CLI and the library; inside it, the folders form layers
+  // (formula, solve → data, spec → models → stats → run): a folder never imports one above it
+  ...[
+    ['src/engine/**/*.ts', []],
+    ['src/engine/formula/**/*.ts', ['solve', 'data', 'spec', 'models', 'stats']],
+    ['src/engine/solve/**/*.ts', ['data', 'spec', 'models', 'stats']],
+    ['src/engine/{data,spec}/**/*.ts', ['models', 'stats']],
+    ['src/engine/models/**/*.ts', ['stats']],
+    ['src/engine/stats/**/*.ts', []],
+  ].map(([glob, above]) => ({
+    files: [glob],
     rules: {
       'no-restricted-imports': ['error', {
         paths: [vscode, ...domOnly],
         patterns: [
           { group: ['**/host', '**/host/**'], message: 'The engine must not import the VS Code host (src/host).' },
           { group: ['**/webview', '**/webview/**'], message: 'The engine must not import the webview.' },
+          ...(glob !== 'src/engine/**/*.ts' ? [{ group: ['../run', '../index', '../starter'], message: 'run.ts, starter.ts and index.ts sit above the engine folders.' }] : []),
+          ...above.map(folder => ({ group: [`../${folder}`, `../${folder}/**`], message: `${glob.split('/')[2]} sits below ${folder}/ (docs/architecture.md): move the shared piece down instead.` })),
         ],
       }],
     },
-  },
+  })),
   {
     // the webview: browser code only; it draws a FitReport and never solves
     files: ['webview/**/*.ts'],

@@ -244,7 +244,7 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
     progress(`fitting model ${i + 1} of ${spec.models.length}: ${m.name}`);
     let built: ReturnType<typeof buildModel>;
     try {
-      built = buildModel(asWritten(m, parsed.raw), prepared.variables, { X: prepared.X, y: prepared.y });
+      built = buildModel(m, prepared.variables, { X: prepared.X, y: prepared.y });
     } catch (e) {
       if (e instanceof FormulaError || e instanceof DataError || isUserError(e)) {
         const sub = (e as { path?: unknown }).path;
@@ -336,19 +336,6 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
   report.problems = relativeProblems(report.problems, specDir);
   for (const m of report.models) m.problems = relativeProblems(m.problems, specDir);
   return report;
-}
-
-/**
- * The model entry for buildModel with `params` as the user wrote it: validateSpec fills a missing `params` with {},
- * but for a formula "no params" means "every other identifier is a parameter", while {} would declare none.
- */
-function asWritten(m: NormalizedSpec['models'][number], raw: unknown): NormalizedSpec['models'][number] {
-  const entry = (raw as { models?: unknown[] } | undefined)?.models?.[m.index] as { params?: unknown } | undefined;
-  if (entry && typeof entry === 'object' && entry.params === undefined) {
-    const { params: _filled, ...rest } = m;
-    return rest as NormalizedSpec['models'][number];
-  }
-  return m;
 }
 
 /** Errors thrown by buildModel with a user message (not a bug): plain Errors whose name says so. */

@@ -3,8 +3,8 @@
 // Every message is a plain JSON-able object with a `type` discriminant. Requests carry an `id` and are
 // answered by a message with `inReplyTo` = that id. The webview and both kinds of worker begin with a Ready
 // handshake carrying PROTOCOL_VERSION; the host sends nothing to a webview before its 'ready'.
-// Owned by the host side (H6); the webview (H7) imports the types only (`import type`), so this file must
-// stay free of runtime imports of vscode, the engine or node modules.
+// The webview imports it as types plus the constants below, so this file must stay free of runtime imports of
+// vscode, the engine or Node modules (src/shared; eslint.config.mjs enforces it).
 import type { JsonPath, ModelSpec, RunResult } from '../engine/report';
 
 /** Bump when a message changes shape incompatibly; both ends compare it in the Ready handshake. */
@@ -279,7 +279,7 @@ export interface CliJobFailureMessage {
 export type CliPoolToWorker = CliJobRequest;
 export type CliWorkerToPool = CliWorkerReadyMessage | CliJobResultMessage | CliJobFailureMessage;
 
-// ------------------------------------------------------------------ webview HTML shell (contract with H7)
+// ------------------------------------------------------------------ webview HTML shell
 
 /** The element id the host's HTML gives the webview to render into: `<div id="curvewright-root"></div>`.
  *  The host loads dist/webview.js (with a CSP nonce) and, when present, media/panel.css. The CSP allows

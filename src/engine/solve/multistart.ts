@@ -37,7 +37,7 @@ export interface MultiStartOptions {
   seconds?: number;
   /** number of short local solver runs from the best distinct candidates (default 8) */
   localRuns?: number;
-  /** number of candidates screened (default: chosen from the cost of one evaluation, 256 … 16384) */
+  /** number of candidates screened (default 256·2^min(d,4), at most TUNING.maxCandidates = 4096; d = parameters sampled) */
   candidates?: number;
   maxIterations?: number;
   shouldStop?: () => boolean;

@@ -62,11 +62,11 @@ export interface ModelAnalysisInput {
 export interface AnalysisOptions {
   /** profile-likelihood intervals (nonlinear models only; for linear models they equal Wald exactly) */
   profile?: boolean;
-  /** time budget of profiling one model, seconds (default 2) */
+  /** time budget of profiling one model, seconds (2 when analyzeModel is called directly; runs of a spec use ANALYSIS_DEFAULTS in run.ts, 10) */
   profileSeconds?: number;
   /** k-fold cross-validation */
   crossValidate?: boolean;
-  /** time budget of cross-validating one model, seconds (default 2) */
+  /** time budget of cross-validating one model, seconds (2 when analyzeModel is called directly; runs of a spec use ANALYSIS_DEFAULTS in run.ts, 10) */
   cvSeconds?: number;
   /** number of points of the plotting band (default 200) */
   bandPoints?: number;

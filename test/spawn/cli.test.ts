@@ -6,7 +6,7 @@ import { spawnSync } from 'child_process';
 import * as fs from 'fs';
 import * as os from 'os';
 import * as path from 'path';
-import { saturatingCsv } from './seededData';
+import { saturatingCsv } from '../unit/seededData';
 
 const ROOT = path.resolve(__dirname, '..', '..');
 /** A private build of src/cli.ts, so parallel rebuilds of dist/ by others cannot change the bundle under test. */

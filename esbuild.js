@@ -6,7 +6,7 @@ const common = { bundle: true, sourcemap: true, logLevel: 'warning', minify: fal
 // node bundles prefer a package's ES module build: jsonc-parser's UMD main requires './impl/*' at run time, which a bundle cannot resolve
 const node = { ...common, platform: 'node', format: 'cjs', target: 'node20', mainFields: ['module', 'main'] };
 const builds = [
-  { ...node, entryPoints: ['src/host/extension.ts'], outfile: 'dist/extension.js', external: ['vscode'] },
+  { ...node, entryPoints: ['src/host/extension.ts'], outfile: 'dist/extension.js', external: ['vscode'], metafile: true },
   { ...node, entryPoints: ['src/worker.ts'], outfile: 'dist/worker.js' },
   { ...node, entryPoints: ['src/cli.ts'], outfile: 'dist/cli.js' },
   // the library has no `vscode` on its path: marking it external would hide an import; bundling it would fail loudly
@@ -15,9 +15,15 @@ const builds = [
 ];
 const fs = require('fs');
 (async () => {
-  const present = builds.filter(b => fs.existsSync(b.entryPoints[0]));
-  if (watch) { for (const b of present) (await esbuild.context(b)).watch(); return; }
-  await Promise.all(present.map(b => esbuild.build(b)));
+  // a missing entry point is an error (a renamed file must not silently drop a bundle from dist/)
+  const missing = builds.map(b => b.entryPoints[0]).filter(e => !fs.existsSync(e));
+  if (missing.length) throw new Error(`esbuild.js: entry point${missing.length > 1 ? 's' : ''} not found: ${missing.join(', ')} (rename it here too)`);
+  if (watch) { for (const b of builds) (await esbuild.context(b)).watch(); return; }
+  const results = await Promise.all(builds.map(b => esbuild.build(b)));
+  // the host is thin: CSV reading and fitting run in the worker, so no CSV parser may reach dist/extension.js
+  const hostInputs = Object.keys(results[0].metafile.inputs);
+  const heavy = hostInputs.filter(f => /node_modules[\\/](papaparse|chart\.js)[\\/]/.test(f));
+  if (heavy.length) throw new Error(`dist/extension.js must not bundle ${heavy.join(', ')}: import it in the worker, not the host`);
   if (fs.existsSync('tsconfig.lib.json')) {
     fs.rmSync('dist/types', { recursive: true, force: true }); // no declarations of deleted files
     const tsc = require('child_process').spawnSync(process.execPath, [require.resolve('typescript/bin/tsc'), '-p', 'tsconfig.lib.json'], { encoding: 'utf8' });

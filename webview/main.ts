@@ -1,14 +1,14 @@
 // Entry of the browser code (bundled to dist/webview.js as an IIFE). Two modes:
 // - inside a VS Code webview (acquireVsCodeApi exists): Ready handshake, report messages, state persistence,
-//   exports and reveals sent to the host (protocol in src/protocol.ts);
+//   exports and reveals sent to the host (protocol in src/shared/protocol.ts);
 // - a standalone HTML report: reads the reports embedded in <script type="application/json" id="curvewright-data">,
 //   draws one section per spec, and exports by download links in the page.
 import type { JsonPath, RunResult } from '../src/engine/report';
-import type { ExportRequest, HostToWebview, WebviewState, WebviewToHost } from '../src/protocol';
-import { PROTOCOL_VERSION } from '../src/protocol';
+import type { ExportRequest, HostToWebview, WebviewState, WebviewToHost } from '../src/shared/protocol';
+import { PROTOCOL_VERSION } from '../src/shared/protocol';
 import { renderReport, type ExportPayload, type ReportView, type ViewState } from './render';
 import { readTheme, watchTheme } from './theme';
-import { DATA_ELEMENT_ID, ROOT_ID } from './ids';
+import { DATA_ELEMENT_ID, ROOT_ID } from '../src/shared/ids';
 
 interface VsCodeApi {
   postMessage(msg: WebviewToHost): void;

@@ -21,10 +21,10 @@ import type {
   Problem,
   RunResult,
 } from '../src/engine/report';
-import type { ExportFormat } from '../src/protocol';
+import type { ExportFormat } from '../src/shared/protocol';
 import { decimateLine, decimateScatter } from './decimate';
 import { boxSwatch, h, lineSwatch, setChildren, type Child } from './dom';
-import { MISSING, fmtEstimate, fmtInt, fmtInterval, fmtNum, fmtP, fmtPct, fmtR2 } from './format';
+import { MISSING, fmtEstimate, fmtInt, fmtInterval, fmtNum, fmtP, fmtPct, fmtR2 } from '../src/shared/numberFormat';
 import { dashFor, withAlpha, type ThemeColors } from './theme';
 
 Chart.register(ScatterController, LineElement, PointElement, LinearScale, LogarithmicScale, Tooltip, Filler);

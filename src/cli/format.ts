@@ -1,24 +1,9 @@
 // Human-readable text of run results: the per-spec summary table of `fit`, problem lines, and check verdicts.
 // Numbers are rounded here for reading only; the JSON never is.
 import * as path from 'path';
+import { allProblems, pathText } from '../shared/reportText';
+import { fmtCli as num } from '../shared/numberFormat';
 import type { ErrorReport, FitReport, ModelReport, Problem } from '../engine/report';
-
-/** A number to `digits` significant digits, in exponent form when very large or small. */
-export function num(v: number | null | undefined, digits = 4): string {
-  if (v === null || v === undefined || !Number.isFinite(v)) return '—';
-  if (v === 0) return '0';
-  const a = Math.abs(v);
-  if (a >= 10 ** digits && a < 1e9) return String(Math.round(v));
-  if (a >= 1e9 || a < 1e-3) {
-    const [m, e] = v.toExponential(digits - 1).split('e');
-    return `${trimZeros(m)}e${e.replace('+', '')}`;
-  }
-  return trimZeros(v.toPrecision(digits));
-}
-
-function trimZeros(s: string): string {
-  return s.includes('.') && !s.includes('e') ? s.replace(/0+$/, '').replace(/\.$/, '') : s;
-}
 
 function table(rows: string[][], indent = '  '): string[] {
   const widths = rows[0].map((_, j) => Math.max(...rows.map(r => (r[j] ?? '').length)));
@@ -76,21 +61,13 @@ export function where(p: { location?: Problem['location'] }, specShown: string):
   return file;
 }
 
-export function pathText(p: (string | number)[]): string {
-  let s = '';
-  for (const k of p) s += typeof k === 'number' ? `[${k}]` : s === '' ? k : `.${k}`;
-  return s;
-}
 
 export function problemLine(p: Problem, specShown: string): string {
   const at = p.path && p.path.length ? ` [${pathText(p.path)}]` : '';
   return `${where(p, specShown)}: ${p.severity}${at}: ${p.message} (${p.code})`;
 }
 
-/** Every problem of a report: the spec/data ones, then each model's (with the model named). */
-export function allProblems(r: FitReport): { problem: Problem; model?: string }[] {
-  return [...r.problems.map(problem => ({ problem })), ...r.models.flatMap(m => m.problems.map(problem => ({ problem, model: m.name })))];
-}
+export { allProblems, num };
 
 /** Text of an ErrorReport: the spec's place, the message, and every problem found. */
 export function errorText(r: ErrorReport, specShown: string): string {

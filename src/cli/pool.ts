@@ -5,9 +5,7 @@ import * as os from 'os';
 import { Worker, isMainThread, parentPort, workerData } from 'worker_threads';
 import { runSpecFile } from '../engine/run';
 import type { RunResult } from '../engine/report';
-
-interface JobMessage { id: number; specPath: string; workspaceRoot: string; trustPaths?: boolean }
-type ReplyMessage = { id: number; result: RunResult } | { id: number; failure: string };
+import { PROTOCOL_VERSION, type CliJobRequest, type CliWorkerToPool } from '../shared/protocol';
 
 export const WORKER_FLAG = 'curvewrightCliWorker';
 
@@ -23,15 +21,16 @@ export function isCliWorker(): boolean {
 /** The worker side: answer each job with its RunResult. */
 export function startCliWorker(): void {
   const port = parentPort!;
-  port.on('message', async (job: JobMessage) => {
-    let reply: ReplyMessage;
+  port.on('message', async (job: CliJobRequest) => {
+    let reply: CliWorkerToPool;
     try {
-      reply = { id: job.id, result: await runSpecFile(job.specPath, { workspaceRoot: job.workspaceRoot, trustPaths: job.trustPaths === true }) };
+      reply = { type: 'result', inReplyTo: job.id, result: await runSpecFile(job.specPath, { workspaceRoot: job.workspaceRoot, trustPaths: job.trustPaths === true }) };
     } catch (e) {
-      reply = { id: job.id, failure: e instanceof Error ? e.stack ?? e.message : String(e) };
+      reply = { type: 'failure', inReplyTo: job.id, message: e instanceof Error ? e.stack ?? e.message : String(e) };
     }
     port.postMessage(reply);
   });
+  port.postMessage({ type: 'ready', version: PROTOCOL_VERSION } satisfies CliWorkerToPool);
 }
 
 export class InternalError extends Error {
@@ -68,18 +67,24 @@ export async function runAll(
       const feed = (w: Worker) => {
         if (next >= specs.length) return;
         const id = next++;
-        w.postMessage({ id, specPath: specs[id], workspaceRoot: opts.workspaceRoot, trustPaths: opts.trustPaths === true } satisfies JobMessage);
+        w.postMessage({ type: 'job', id, specPath: specs[id], workspaceRoot: opts.workspaceRoot, trustPaths: opts.trustPaths === true } satisfies CliJobRequest);
       };
       for (let k = 0; k < jobs; k++) {
         const w = new Worker(__filename, { workerData: { [WORKER_FLAG]: true } });
         workers.push(w);
-        w.on('message', (m: ReplyMessage) => {
-          if ('failure' in m) {
-            reject(new InternalError(`a worker failed on ${specs[m.id]}`, m.failure));
+        w.on('message', (m: CliWorkerToPool) => {
+          if (m.type === 'ready') {
+            // the workers run this same bundle, so a mismatch means a broken build, not a user error
+            if (m.version !== PROTOCOL_VERSION) reject(new InternalError(`a worker speaks protocol ${m.version}, this CLI ${PROTOCOL_VERSION}`));
+            else feed(w);
             return;
           }
-          results[m.id] = m.result;
-          onResult(m.id, m.result);
+          if (m.type === 'failure') {
+            reject(new InternalError(`a worker failed on ${specs[m.inReplyTo]}`, m.message));
+            return;
+          }
+          results[m.inReplyTo] = m.result;
+          onResult(m.inReplyTo, m.result);
           if (++done === specs.length) resolve();
           else feed(w);
         });
@@ -87,7 +92,6 @@ export async function runAll(
         w.on('exit', code => {
           if (done < specs.length && code !== 0) reject(new InternalError(`a worker thread exited with code ${code}`));
         });
-        feed(w);
       }
     });
   } finally {

@@ -1,8 +1,8 @@
-// `curvewright report <spec...> -o report.html`: one self-contained HTML page for the specs (H7's buildReportHtml
+// `curvewright report <spec...> -o report.html`: one self-contained HTML page for the specs (buildReportHtml of src/shared/html.ts
 // with the bundled panel script dist/webview.js and media/panel.css inlined).
 import * as fs from 'fs';
 import * as path from 'path';
-import { buildReportHtml } from '../../webview/html';
+import { buildReportHtml } from '../shared/html';
 import { isErrorReport, type RunResult } from '../engine/report';
 import { UsageError, type Parsed } from './args';
 import { inOrder, runInputs, specsOf } from './fit';

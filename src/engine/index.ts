@@ -1,4 +1,6 @@
-// Public API of the engine (pure TypeScript: no vscode, no DOM). Host, worker and CLI import from here.
+// A summary of the engine's public surface (pure TypeScript: no vscode, no DOM). The host, the worker and the CLI
+// import the modules they need directly (so each bundle takes only what it uses: the host must not bundle papaparse);
+// this file is for tests and readers.
 export { runSpecFile, runSpec, writeResults, serializeReport, reportForFile, OutputError, sha256, RUN_SEED, MAX_POINTS_IN_FILE } from './run';
 export { columnsNeeded } from './data';
 export type { RunOptions, SerializeOptions } from './run';

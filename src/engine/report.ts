@@ -122,8 +122,10 @@ export interface Thresholds {
 
 // ---------------------------------------------------------------- FitReport
 
+/** How much a problem matters: `error` fails `check`, `warning` fails it only with --strict, `info` never does. */
 export type Severity = 'error' | 'warning' | 'info';
 
+/** A place in a file the user can open: the spec (line, column) or a data file (line, row, column name). */
 export interface FileLocation {
   file: string;
   /** 1-based line in the file */
@@ -134,6 +136,7 @@ export interface FileLocation {
   row?: number;
 }
 
+/** One finding about the spec, the data or a fit, with a stable code (docs/problems.md) and a place. */
 export interface Problem {
   /** stable code, documented in docs/problems.md */
   code: string;
@@ -150,6 +153,7 @@ export interface Problem {
   group?: string;
 }
 
+/** Why the solver stopped; `relative-reduction`, `step-size`, `gradient` and `exact` count as converged. */
 export type Termination =
   | 'relative-reduction'
   | 'step-size'
@@ -161,9 +165,12 @@ export type Termination =
   | 'cancelled'
   | 'time-limit';
 
+/** One parameter's estimate and uncertainty (se, t, p and intervals are null where they do not exist). */
 export interface ParamReport {
   value: number;
+  /** standard error */
   se: number | null;
+  /** value/se and its two-sided p-value on dof degrees of freedom */
   t: number | null;
   p: number | null;
   /** Wald interval at the spec's confidence */
@@ -175,11 +182,17 @@ export interface ParamReport {
   atBound: 'min' | 'max' | null;
 }
 
+/** Goodness of fit and information criteria of one model (null where undefined, e.g. no residual degrees of freedom). */
 export interface FitStats {
+  /** rows used */
   n: number;
+  /** residual degrees of freedom: n minus the rank of the free parameters */
   dof: number;
+  /** (weighted) sum of squared residuals */
   sse: number;
+  /** residual standard error, sqrt(sse/dof) */
   sigma: number | null;
+  /** sqrt(sse/n) */
   rmse: number;
   r2: number | null;
   adjR2: number | null;
@@ -193,10 +206,12 @@ export interface FitStats {
   aic: number | null;
   aicc: number | null;
   bic: number | null;
+  /** cross-validated RMSE and the number of folds it used */
   cvRmse: number | null;
   cvFolds: number | null;
 }
 
+/** Tests on the residuals in row order: runs (pattern), normality and Durbin–Watson (autocorrelation); each null when it cannot be computed. */
 export interface ResidualTests {
   runs: { runs: number; expected: number; z: number; p: number } | null;
   normality: { test: 'shapiro-wilk' | 'dagostino-pearson'; statistic: number; p: number } | null;
@@ -204,6 +219,7 @@ export interface ResidualTests {
   durbinWatson: number | null;
 }
 
+/** Per-row diagnostics of one model, in data order (the rows used in the fit). */
 export interface PointsReport {
   row: number[];
   /** one array per x variable */
@@ -220,6 +236,7 @@ export interface PointsReport {
   count?: number[];
 }
 
+/** Fitted curve with confidence (ciLow/ciHigh) and prediction (piLow/piHigh) bands on a grid of x. */
 export interface BandReport {
   /** the x variable the band runs along (single-variable models only) */
   variable?: string;
@@ -231,6 +248,7 @@ export interface BandReport {
   piHigh: number[];
 }
 
+/** The model evaluated at one x from the spec's `predict`, with its intervals. */
 export interface PredictionReport {
   /** a number for a single x variable, an object for several */
   x: number | Record<string, number>;
@@ -245,12 +263,14 @@ export interface PredictionReport {
   weight?: { value: number; from: 'spec' | 'nearest' };
 }
 
+/** The x values at which the model reaches one y from the spec's `solveFor`, each with its interval. */
 export interface InverseReport {
   y: number;
   roots: { x: number; interval: [number | null, number | null] }[];
   extrapolated: boolean;
 }
 
+/** Everything known about one fitted model: how the solver ended, parameters, statistics, diagnostics and problems. */
 export interface ModelReport {
   name: string;
   /** with data.groupBy: the id of the group this fit belongs to */
@@ -282,6 +302,7 @@ export interface ModelReport {
   problems: Problem[];
 }
 
+/** The models ranked by AICc (Akaike weights), F-tests between nested pairs, and the pick with its reason. */
 export interface ComparisonReport {
   ranking: { name: string; aicc: number | null; deltaAicc: number | null; weight: number | null; cvRmse: number | null }[];
   /**
@@ -313,6 +334,7 @@ export interface GroupReport {
   used: number;
 }
 
+/** What was read from the data file: rows read, used, dropped (bad cells) and excluded (by the spec), and the ranges. */
 export interface DataReport {
   file: string;
   rows: number;
@@ -330,6 +352,7 @@ export interface DataReport {
   labels?: { x: Record<string, string>; y: string };
 }
 
+/** One `expect` entry of the spec checked against the fitted value (`ok` false fails `check`). */
 export interface ExpectResult {
   model: string;
   /** with data.groupBy: the group checked */
@@ -342,10 +365,14 @@ export interface ExpectResult {
   ok: boolean;
 }
 
+/** What the results depend on: engine version, hashes of the spec and the data, and the random seed. */
 export interface ReportMeta {
+  /** ENGINE_VERSION */
   engine: string;
+  /** hash of the spec's content and of the data file's bytes: `check` reports results older than either as stale */
   specHash: string;
   dataHash: string;
+  /** seed of the engine's random draws (the same for every run, so results do not depend on the machine) */
   seed: number;
 }
 
@@ -380,7 +407,9 @@ export interface CheckVerdict {
   shard?: string;
 }
 
+/** The results of one spec: the contract between the engine, the results file, the panel, the report and the CLI. */
 export interface FitReport {
+  /** format version of this object; a change that breaks readers raises it */
   version: 1;
   /** spec file name as given (relative path) */
   spec: string;
@@ -393,6 +422,7 @@ export interface FitReport {
   comparison: ComparisonReport | null;
   /** the best model overall; null with data.groupBy (see comparison.byGroup[id].best) */
   best: string | null;
+  /** problems of the spec and the data (each model's are in its own ModelReport) */
   problems: Problem[];
   expect: ExpectResult[];
   /** with spec.derived: each derived quantity for each model (and group) that has its parameters */
@@ -405,6 +435,7 @@ export interface FitReport {
   check?: CheckVerdict;
 }
 
+/** The results of a spec that could not be fitted at all (unreadable spec or data): what failed and where. */
 export interface ErrorReport {
   version: 1;
   spec: string;
@@ -413,10 +444,13 @@ export interface ErrorReport {
   check?: CheckVerdict;
 }
 
+/** What running a spec produces: a FitReport, or an ErrorReport when nothing could be fitted. */
 export type RunResult = FitReport | ErrorReport;
 
+/** True when the run produced no fit (narrows a RunResult). */
 export function isErrorReport(r: RunResult): r is ErrorReport {
   return (r as ErrorReport).error !== undefined;
 }
 
+/** Written into every results file's meta.engine. */
 export const ENGINE_VERSION = 'curvewright 0.1.0';

@@ -23,7 +23,7 @@ import {
   type Thresholds,
 } from './report';
 import { FormulaError } from './formula/types';
-import { formulaIdentifiers, suggest } from './formula';
+import { suggest } from './formula';
 import { parseSpecText, validateSpec, locatePath } from './spec';
 import type { NormalizedSpec } from './spec/types';
 import { DataError, columnPaths, columnsNeeded, prepareData, readHeader, readTable, whereTextColumns } from './data';
@@ -225,7 +225,7 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
       progress(`fitting model ${i + 1} of ${spec.models.length}: ${m.name}${inGroup}`);
       let built: ReturnType<typeof buildModel>;
       try {
-        built = buildModel(asWritten(m, parsed.raw), prepared.variables, { X: sub.X, y: sub.y });
+        built = buildModel(m, prepared.variables, { X: sub.X, y: sub.y });
       } catch (e) {
         if (e instanceof FormulaError || e instanceof DataError || isUserError(e)) {
           const subPath = (e as { path?: unknown }).path;
@@ -372,19 +372,6 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
   report.problems = relativeProblems(report.problems, specDir);
   for (const m of report.models) m.problems = relativeProblems(m.problems, specDir);
   return report;
-}
-
-/**
- * The model entry for buildModel with `params` as the user wrote it: validateSpec fills a missing `params` with {},
- * but for a formula "no params" means "every other identifier is a parameter", while {} would declare none.
- */
-function asWritten(m: NormalizedSpec['models'][number], raw: unknown): NormalizedSpec['models'][number] {
-  const entry = (raw as { models?: unknown[] } | undefined)?.models?.[m.index] as { params?: unknown } | undefined;
-  if (entry && typeof entry === 'object' && entry.params === undefined) {
-    const { params: _filled, ...rest } = m;
-    return rest as NormalizedSpec['models'][number];
-  }
-  return m;
 }
 
 /** Precision weights times frequency weights (data.count); null when neither is given. */

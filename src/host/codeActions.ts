@@ -6,7 +6,7 @@ import { DIAGNOSTIC_SOURCE } from './diagnostics';
 import type { FitService } from './fitService';
 import type { JsonPath, ModelReport } from '../engine/report';
 import { isErrorReport } from '../engine/report';
-import { fmt } from './format';
+import { fmtLabel as fmt } from '../shared/numberFormat';
 
 const DID_YOU_MEAN = /'([^']+)'[^']*?did you mean '([^']+)'/i;
 

@@ -1,6 +1,7 @@
 // Problems of a run result -> diagnostics on the exact JSON ranges of the live spec text (jsonc-parser), plus CSV
 // problems on the data file's lines, with related information pointing at the CSV rows concerned.
 import * as vscode from 'vscode';
+import { allProblems as reportProblems, type ReportProblem } from '../shared/reportText';
 import * as path from 'path';
 import * as fs from 'fs';
 import { Disposable } from './disposable';
@@ -21,7 +22,7 @@ export class FitDiagnostic extends vscode.Diagnostic {
   modelIndex = -1;
 }
 
-export interface PlacedProblem { problem: Problem; modelIndex: number }
+export type PlacedProblem = ReportProblem;
 
 /** Every problem of a result: report-level, each model's, and an ErrorReport's error (+ its problems). */
 export function allProblems(r: RunResult): PlacedProblem[] {
@@ -34,9 +35,7 @@ export function allProblems(r: RunResult): PlacedProblem[] {
     for (const p of inner) out.push({ problem: p, modelIndex: modelIndexOf(p) });
     return out;
   }
-  const out: PlacedProblem[] = r.problems.map(p => ({ problem: p, modelIndex: modelIndexOf(p) }));
-  r.models.forEach((m, i) => { for (const p of m.problems) out.push({ problem: p, modelIndex: i }); });
-  return out;
+  return reportProblems(r);
 }
 
 function modelIndexOf(p: Problem): number {

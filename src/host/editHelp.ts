@@ -6,7 +6,7 @@ import * as jsonc from 'jsonc-parser';
 import type { FitService } from './fitService';
 import type { FitReport, ModelReport } from '../engine/report';
 import { isErrorReport } from '../engine/report';
-import { fmt } from './format';
+import { fmtLabel as fmt } from '../shared/numberFormat';
 
 export class ParamHover implements vscode.HoverProvider {
   constructor(private readonly fits: FitService) {}

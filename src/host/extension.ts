@@ -13,7 +13,7 @@ import { FitCodeActions } from './codeActions';
 import { ModelLenses, ParamHover } from './editHelp';
 import { FitCsvCommand, type FitCsvResult } from './fitCsvCommand';
 import type { RunResult } from '../engine/report';
-import type { SnapshotMessage } from '../protocol';
+import type { SnapshotMessage } from '../shared/protocol';
 
 export interface CurvewrightApi {
   /** the last run result of a spec, if any */

@@ -3,9 +3,9 @@
 // Tests drive it without quick picks by passing an options object.
 import * as vscode from 'vscode';
 import * as path from 'path';
-import { starterSpecText } from '../engine/starter';
+import { starterSpecText } from '../engine/starterText';
 import type { ModelSpec } from '../engine/report';
-import type { SpecSuggestion } from '../protocol';
+import type { SpecSuggestion } from '../shared/protocol';
 import type { WorkerPool } from './workerPool';
 import type { OwnWrites } from './ownWrites';
 import type { PanelController } from './panel';

@@ -4,6 +4,5 @@
 
 export function escapeMarkdown(text: string, max = 200): string {
   const short = text.length > max ? text.slice(0, max) + '…' : text;
-  // eslint-disable-next-line no-control-regex
   return short.replace(/[\u0000-\u001f\u007f-\u009f]/g, ' ').replace(/[\\`*_{}[\]()#+\-.!|<>~$&:]/g, c => '\\' + c);
 }

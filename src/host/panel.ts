@@ -10,9 +10,9 @@ import type { FitEvent, FitService } from './fitService';
 import { locateInText } from './jsonText';
 import { log } from './log';
 import { dataFileOf } from './diagnostics';
-import type { ExportRequest, HostToWebview, SnapshotMessage, ThemeKind, WebviewState, WebviewToHost } from '../protocol';
-import { PROTOCOL_VERSION } from '../protocol';
-import { panelHtml } from '../../webview/html';
+import type { ExportRequest, HostToWebview, SnapshotMessage, ThemeKind, WebviewState, WebviewToHost } from '../shared/protocol';
+import { PROTOCOL_VERSION } from '../shared/protocol';
+import { panelHtml } from '../shared/html';
 import type { FitReport, RunResult } from '../engine/report';
 import { isErrorReport } from '../engine/report';
 
@@ -118,7 +118,7 @@ export class PanelController extends Disposable implements vscode.WebviewPanelSe
     if (!this.fits.last(specUri)) this.fits.schedule(specUri, 0);
   }
 
-  /** One template with the standalone report (webview/html.ts): nonce CSP, no inline style or script without it. */
+  /** One template with the standalone report (src/shared/html.ts): nonce CSP, no inline style or script without it. */
   private html(webview: vscode.Webview): string {
     const uri = (...p: string[]) => webview.asWebviewUri(vscode.Uri.joinPath(this.extensionUri, ...p)).toString();
     return panelHtml({

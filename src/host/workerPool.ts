@@ -1,7 +1,7 @@
 // Lazy pool of engine worker threads (src/worker.ts). Per-key latest-wins: a new run for a spec cancels the one
 // in flight; a worker that does not answer a cancel within the timeout is terminated and replaced on next use.
 import { Worker } from 'worker_threads';
-import type { RunRequest, SpecSuggestion, WorkerInit, WorkerToHost, WorkerResultMessage } from '../protocol';
+import type { RunRequest, SpecSuggestion, WorkerInit, WorkerToHost, WorkerResultMessage } from '../shared/protocol';
 
 export type RunOutcome =
   | { kind: 'result'; message: WorkerResultMessage }

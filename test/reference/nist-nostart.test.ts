@@ -17,7 +17,6 @@ import { runStrdSpec } from './nist-run';
  * equivalent minima, so the estimate is compared with the certified values under the best of them.
  * (Read off the model formulas: exchangeable terms, and parameters that enter only squared or as a sign pair.)
  */
-type Relabel = (b: number[]) => number[];
 const swap = (b: number[], groups: number[][]): number[] => {
   // groups: index lists of equal length exchanged pairwise (group 0 ↔ group 1)
   const out = [...b];

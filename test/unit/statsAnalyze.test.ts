@@ -344,7 +344,7 @@ describe('stats analyzeModel at the edges', () => {
   it('several x variables: predictions take objects, there is no band and no inverse', () => {
     const t = X;
     const T = X.map((v) => (v * 7) % 5);
-    const y = X.map((v, i) => 1 + 2 * t[i] - 0.5 * T[i] + 0.1 * noise(12, 9)[i]);
+    const y = X.map((_v, i) => 1 + 2 * t[i] - 0.5 * T[i] + 0.1 * noise(12, 9)[i]);
     const r = analyzeModel(makeInput({ formula: 'a + b*t + c*T', x: { t, T }, y, predict: [{ t: 3, T: 2 }, { t: 30, T: 2 }], solveFor: [5] }));
     assert.equal(r.band, null);
     assert.equal(r.predictions[0].extrapolated, false);

@@ -2,9 +2,9 @@
 // number formatting and the CSV export. The sample report's numbers are invented for rendering, not fit results.
 import * as assert from 'assert';
 import { createHash } from 'crypto';
-import { buildReportHtml, escapeHtml, jsonForScript, panelHtml, scriptForInline } from '../../webview/html';
+import { buildReportHtml, escapeHtml, jsonForScript, panelHtml, scriptForInline } from '../../src/shared/html';
 import { DECIMATE_THRESHOLD, decimateLine, decimateScatter } from '../../webview/decimate';
-import { fmtEstimate, fmtInt, fmtInterval, fmtNum, fmtP, fmtPct, fmtR2 } from '../../webview/format';
+import { fmtEstimate, fmtInt, fmtInterval, fmtNum, fmtP, fmtPct, fmtR2 } from '../../src/shared/numberFormat';
 import { formatPath, parametersCsv, reportJson } from '../../webview/render';
 import { dashFor, withAlpha } from '../../webview/theme';
 import type { ErrorReport, RunResult } from '../../src/engine/report';

@@ -1,7 +1,7 @@
 // Small dense least squares for self-starting estimates: modified Gram–Schmidt QR with one re-orthogonalisation
 // pass (Björck, "Numerical Methods for Least Squares Problems", 1996, §2.4), plus profile grids over the nonlinear
 // parameters of conditionally linear models (the linear ones solved exactly for every grid point — common practice).
-import { sortedOrder } from '../stats/crossval';
+import { sortedOrder } from '../data/order';
 
 /** Result of a small least-squares solve: coefficients and residual sum of squares. */
 export interface SmallLsq {

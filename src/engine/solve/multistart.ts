@@ -38,7 +38,7 @@ export interface MultiStartOptions {
   seconds?: number;
   /** number of short local solver runs from the best distinct candidates (default 8) */
   localRuns?: number;
-  /** number of candidates screened (default: chosen from the cost of one evaluation, 256 … 16384) */
+  /** number of candidates screened (default 256·2^min(d,4), at most TUNING.maxCandidates = 4096; d = parameters sampled) */
   candidates?: number;
   maxIterations?: number;
   shouldStop?: () => boolean;
@@ -66,8 +66,25 @@ export function mulberry32(seed: number): () => number {
   };
 }
 
-/** Search constants (one place; benchmarks may vary them). */
-export const TUNING: {
+/**
+ * k items of xs drawn uniformly without replacement, in draw order: the first k steps of a Fisher–Yates shuffle
+ * (Durstenfeld 1964; Knuth, TAOCP vol. 2, 3.4.2, algorithm P) driven by the seeded generator, so every JS engine
+ * draws the same items (unlike sorting with a random comparator, which is neither uniform nor portable).
+ */
+export function sampleWithoutReplacement<T>(xs: readonly T[], k: number, rand: () => number): T[] {
+  const a = xs.slice();
+  const m = Math.min(k, a.length);
+  for (let i = 0; i < m; i++) {
+    const j = i + Math.floor(rand() * (a.length - i));
+    const t = a[i];
+    a[i] = a[j];
+    a[j] = t;
+  }
+  return a.slice(0, m);
+}
+
+/** Search constants (one place, frozen: the search reads them, nothing changes them). */
+export const TUNING: Readonly<{
   /** share of candidates of an unbounded parameter drawn over the x range (location-like parameters) */
   locationShare: number;
   /** default number of short local runs */
@@ -87,9 +104,7 @@ export const TUNING: {
   /** rounds of coordinate-resampling basin hopping, and local runs per round */
   hopRounds: number;
   hopRuns: number;
-  /** optional progress trace (benchmarks) */
-  trace?: (msg: string) => void;
-} = { locationShare: 0.4, localRuns: 8, localIterations: 100, hopRounds: 4, hopRuns: 24, hopSamples: 400, deGenerations: 150, cancellation: 1e3, maxCandidates: 4096, dePopulation: 10 };
+}> = Object.freeze({ locationShare: 0.4, localRuns: 8, localIterations: 100, hopRounds: 4, hopRuns: 24, hopSamples: 400, deGenerations: 150, cancellation: 1e3, maxCandidates: 4096, dePopulation: 10 });
 
 const LOG_LO = -6;
 const LOG_HI = 6;
@@ -483,7 +498,6 @@ export function multiStart(problem: LsqProblem, opts: MultiStartOptions): MultiS
     }
   }
   pool.sort((a, b) => a.sse - b.sse);
-  TUNING.trace?.(`screened ${screened} of ${nCand} in ${Date.now() - t0} ms; projected ${L.join(',')}; best ${pool.slice(0, 3).map((q) => q.sse.toPrecision(6)).join(' ')}`);
 
   // 3b. differential evolution (Storn & Price 1997, DE/rand/1/bin) on the projected SSE over the sampled
   // parameters, seeded with the best distinct screened candidates: cheap evaluations, good at multimodal landscapes
@@ -520,7 +534,6 @@ export function multiStart(problem: LsqProblem, opts: MultiStartOptions): MultiS
     }
     pool.unshift(...pop);
     pool.sort((a, b) => a.sse - b.sse);
-    TUNING.trace?.(`evolved ${m} for ${TUNING.deGenerations} generations at ${Date.now() - t0} ms; best ${pool.slice(0, 3).map((q) => q.sse.toPrecision(6)).join(' ')}`);
   }
 
   // 4. short local runs from the best distinct candidates
@@ -575,7 +588,6 @@ export function multiStart(problem: LsqProblem, opts: MultiStartOptions): MultiS
     const share = remaining() / Math.max(2, starts.length + 1);
     const r = localRun(theta0, share);
     localRunsDone++;
-    TUNING.trace?.(`local run ${localRunsDone}: SSE ${r ? r.sse.toPrecision(8) : 'none'} at ${Date.now() - t0} ms`);
     if (!r) continue;
     if (!best || r.sse < best.sse) {
       confirmations = best && same(r.sse, best.sse) ? confirmations + 1 : 1;
@@ -594,7 +606,7 @@ export function multiStart(problem: LsqProblem, opts: MultiStartOptions): MultiS
   const maxSubsets = 24;
   for (let round = 0; best && round < TUNING.hopRounds && !stop() && sampledNL.length > 0; round++) {
     const inc = best;
-    const pick = subsets.length > maxSubsets ? subsets.slice().sort(() => rand() - 0.5).slice(0, maxSubsets) : subsets;
+    const pick = subsets.length > maxSubsets ? sampleWithoutReplacement(subsets, maxSubsets, rand) : subsets;
     const found: { theta: Float64Array; sse: number }[] = [];
     for (const S of pick) {
       if (stop()) break;
@@ -617,7 +629,6 @@ export function multiStart(problem: LsqProblem, opts: MultiStartOptions): MultiS
       if (stop()) break;
       const r = localRun(cand.theta, remaining() / 4);
       localRunsDone++;
-      TUNING.trace?.(`hop ${round}: SSE ${r ? r.sse.toPrecision(8) : 'none'} (incumbent ${inc.sse.toPrecision(8)}) at ${Date.now() - t0} ms`);
       if (r && r.sse < (best as { sse: number }).sse * (1 - 1e-5)) {
         best = { start: inc.start, ...r }; // startValues name where the winning chain began
         improved = true;

@@ -1,6 +1,7 @@
 // Checks a parsed fit spec completely (every problem at once, each with its JSON path and text location) and
 // normalises it: defaults filled, data.x always an object, file paths absolute.
 import * as path from 'path';
+import { pathText as sharedPathText } from '../../shared/reportText';
 import { formulaIdentifiers, formulaParameters, parseFormula, suggest, FormulaError, CONSTANTS, FUNCTIONS } from '../formula';
 import type { ExcludeSpec, FileLocation, JsonPath, ParamSpec, Problem, Severity } from '../report';
 import { BUILTIN_IDS, BUILTIN_PARAMS, isBuiltinId, polynomialParams } from './catalogue';
@@ -76,11 +77,9 @@ export function columnRef(name: string): string {
     : '`' + name + '`';
 }
 
-/** Readable form of a JSON path: models[0].params.K */
+/** Readable form of a JSON path in a message: models[0].params.K, or "(the whole spec)" for the empty path. */
 export function pathText(p: JsonPath): string {
-  let s = '';
-  for (const k of p) s += typeof k === 'number' ? `[${k}]` : s === '' ? k : `.${k}`;
-  return s === '' ? '(the whole spec)' : s;
+  return sharedPathText(p) || '(the whole spec)';
 }
 
 class Checker {

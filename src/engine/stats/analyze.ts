@@ -12,7 +12,7 @@ import { runsByPosition, type PositionRuns } from './runs';
 import { profileIntervals } from './profile';
 import { crossValidate, sortedOrder } from './crossval';
 import { computeBand, computeInverse, computePrediction, predictionPoint, variableRange, type PredictionContext } from './predict';
-import { fmt } from './format';
+import { fmtMessage as fmt } from '../../shared/numberFormat';
 import { roleOf } from '../models/roles';
 import { DEFAULTS } from '../spec/defaults';
 
@@ -119,10 +119,9 @@ function finiteOrNull(v: number): number | null {
 }
 
 export function analyzeModel(input: ModelAnalysisInput): ModelReport {
-  const { result: res, params, compiled, X, y, w, thresholds: th } = input;
+  const { result: res, params, compiled, X, y, w } = input;
   const opts = input.options ?? {};
   const base: (string | number)[] = ['models', input.index];
-  const paramPath = (name: string) => [...base, 'params', name];
   const problems: Problem[] = [];
   const n = y.length;
   const p = params.length;

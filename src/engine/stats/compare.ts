@@ -6,7 +6,7 @@ import type { ModelAnalysisInput } from './api';
 import { NESTED } from '../models';
 import { chi2Sf, fSf } from './distributions';
 import { akaikeWeights } from './information';
-import { fmt } from './format';
+import { fmtMessage as fmt } from '../../shared/numberFormat';
 
 export interface NestedRelation {
   simpler: number;

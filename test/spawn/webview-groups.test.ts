@@ -8,9 +8,9 @@ import * as path from 'path';
 import type { Browser } from 'playwright-core';
 import { runSpecFile } from '../../src/engine/run';
 import { isErrorReport, type FitReport } from '../../src/engine/report';
-import { buildReportHtml } from '../../webview/html';
+import { buildReportHtml } from '../../src/shared/html';
 import { mulberry32, normalSource } from '../../scripts/generate-demo';
-import { panelCss, webviewBundle } from './webview-helpers';
+import { panelCss, webviewBundle } from '../unit/webview-helpers';
 
 const CHROMIUM = process.env.CHROMIUM_PATH || '/usr/bin/chromium';
 

@@ -1,10 +1,11 @@
-// The one message protocol of Curvewright: host <-> webview panel and host <-> engine worker.
+// The one message protocol of Curvewright: host <-> webview panel, host <-> engine worker, and the CLI's pool <->
+// its worker threads.
 // Every message is a plain JSON-able object with a `type` discriminant. Requests carry an `id` and are
-// answered by a message with `inReplyTo` = that id. Both the webview and the worker begin with a Ready
+// answered by a message with `inReplyTo` = that id. The webview and both kinds of worker begin with a Ready
 // handshake carrying PROTOCOL_VERSION; the host sends nothing to a webview before its 'ready'.
-// Owned by the host side (H6); the webview (H7) imports the types only (`import type`), so this file must
-// stay free of runtime imports of vscode, the engine or node modules.
-import type { JsonPath, ModelSpec, RunResult } from './engine/report';
+// The webview imports it as types plus the constants below, so this file must stay free of runtime imports of
+// vscode, the engine or Node modules (src/shared; eslint.config.mjs enforces it).
+import type { JsonPath, ModelSpec, RunResult } from '../engine/report';
 
 /** Bump when a message changes shape incompatibly; both ends compare it in the Ready handshake. */
 export const PROTOCOL_VERSION = 1;
@@ -245,7 +246,42 @@ export type WorkerToHost =
   | WorkerCancelledMessage
   | WorkerFailureMessage;
 
-// ------------------------------------------------------------------ webview HTML shell (contract with H7)
+// ------------------------------------------------------------------ CLI pool: main thread <-> its worker threads
+
+/** A CLI worker's Ready handshake (src/cli/pool.ts): sent once at start; the pool feeds it jobs only after this. */
+export interface CliWorkerReadyMessage {
+  type: 'ready';
+  version: number;
+}
+
+/** Run the spec at specPath (absolute or cwd-relative) with outputs confined to workspaceRoot. */
+export interface CliJobRequest {
+  type: 'job';
+  id: number;
+  specPath: string;
+  workspaceRoot: string;
+  /** `--trust-paths`: the spec may read and write outside workspaceRoot */
+  trustPaths?: boolean;
+}
+
+/** The RunResult of job `inReplyTo`. */
+export interface CliJobResultMessage {
+  type: 'result';
+  inReplyTo: number;
+  result: RunResult;
+}
+
+/** The engine threw for job `inReplyTo` (a bug, not a user error): the stack for the CLI's internal-error message. */
+export interface CliJobFailureMessage {
+  type: 'failure';
+  inReplyTo: number;
+  message: string;
+}
+
+export type CliPoolToWorker = CliJobRequest;
+export type CliWorkerToPool = CliWorkerReadyMessage | CliJobResultMessage | CliJobFailureMessage;
+
+// ------------------------------------------------------------------ webview HTML shell
 
 /** The element id the host's HTML gives the webview to render into: `<div id="curvewright-root"></div>`.
  *  The host loads dist/webview.js (with a CSP nonce) and, when present, media/panel.css. The CSP allows

@@ -1,5 +1,5 @@
-// Element ids shared by the HTML template (html.ts, runs in Node) and the browser code (main.ts).
-import { WEBVIEW_ROOT_ID } from '../src/protocol';
+// Element ids shared by the HTML template (src/shared/html.ts, runs in Node) and the browser code (webview/main.ts).
+import { WEBVIEW_ROOT_ID } from './protocol';
 
 /** The element the report is drawn into (the host's panel uses the same id). */
 export const ROOT_ID = WEBVIEW_ROOT_ID;

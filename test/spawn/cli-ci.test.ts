@@ -10,7 +10,7 @@ import { escapeData, escapeProperty, githubAnnotations } from '../../src/cli/ann
 import { parseShard, shardSpecs } from '../../src/cli/shard';
 import type { CheckVerdict, FitReport } from '../../src/engine/report';
 import { locatePath } from '../../src/engine/spec/locate';
-import { saturatingCsv } from './seededData';
+import { saturatingCsv } from '../unit/seededData';
 
 const ROOT = path.resolve(__dirname, '..', '..');
 /** A private build of src/cli.ts, so parallel rebuilds of dist/ cannot change the bundle under test. */
@@ -44,7 +44,7 @@ describe('cli in CI: check verdicts, annotations, shards, merge', function () {
   const specs: string[] = [];
 
   before(function () {
-    // eslint-disable-next-line @typescript-eslint/no-var-requires
+    // eslint-disable-next-line @typescript-eslint/no-require-imports
     const esbuild = require('esbuild') as typeof import('esbuild');
     esbuild.buildSync({
       entryPoints: [path.join(ROOT, 'src', 'cli.ts')], outfile: CLI, bundle: true, platform: 'node', format: 'cjs',

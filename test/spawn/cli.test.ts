@@ -6,7 +6,7 @@ import { spawnSync } from 'child_process';
 import * as fs from 'fs';
 import * as os from 'os';
 import * as path from 'path';
-import { saturatingCsv } from './seededData';
+import { saturatingCsv } from '../unit/seededData';
 
 const ROOT = path.resolve(__dirname, '..', '..');
 /** A private build of src/cli.ts, so parallel rebuilds of dist/ by others cannot change the bundle under test. */
@@ -51,7 +51,7 @@ describe('cli', function () {
   before(function () {
     const build = spawnSync(process.execPath, ['esbuild.js'], { cwd: ROOT, encoding: 'utf8' });
     assert.equal(build.status, 0, `node esbuild.js failed: ${build.stderr}`);
-    // eslint-disable-next-line @typescript-eslint/no-var-requires
+    // eslint-disable-next-line @typescript-eslint/no-require-imports
     const esbuild = require('esbuild') as typeof import('esbuild');
     esbuild.buildSync({
       entryPoints: [path.join(ROOT, 'src', 'cli.ts')], outfile: CLI, bundle: true, platform: 'node', format: 'cjs',

@@ -1,8 +1,8 @@
 // The HTML around the webview code, as plain strings (no DOM; runs in the host and the CLI). One template serves
 // the VS Code panel (script and CSS by URI, nonce CSP) and the standalone report (everything inlined, hash CSP,
 // reports embedded as JSON), so both show the same drawing.
-import { createHash } from 'crypto';
-import type { RunResult } from '../src/engine/report';
+import { sha256Base64 } from './sha256';
+import type { RunResult } from '../engine/report';
 import { DATA_ELEMENT_ID, ROOT_ID } from './ids';
 
 /** Escape text for HTML content and attribute values. */
@@ -39,7 +39,7 @@ export function styleForInline(css: string): string {
 }
 
 function sha256(text: string): string {
-  return `'sha256-${createHash('sha256').update(text, 'utf8').digest('base64')}'`;
+  return `'sha256-${sha256Base64(text)}'`;
 }
 
 interface PageParts {

@@ -1,5 +1,11 @@
-// Number formatting for the panel and the HTML report: sensible significant digits for people to read.
-// Only the display rounds; the FitReport JSON and the exported CSV/JSON keep full precision.
+// Every number formatter for people to read, in one place (the FitReport JSON, the results file and the exported
+// CSV/JSON never round; only these labels do). Each surface has its own rules, kept as distinct functions because
+// their output is relied on byte for byte (messages in results files, the CLI summary, the panel):
+//   fmtNum & co.   the panel and the HTML report: U+2212 minus, em dash for missing, exponent below 1e-4 and from 1e6
+//   fmtMessage     problem messages written by the engine (and so into results files): ASCII minus, 'NaN', exponent
+//                  below 1e-4 and from 1e7
+//   fmtLabel       the editor's hovers, lenses and status bar: U+2212 minus, exponent mantissa not trimmed
+//   fmtCli         the CLI's summary and diff: integers in full up to 1e9, exponent below 1e-3
 
 const MINUS = '\u2212';
 export const MISSING = '\u2014';
@@ -97,4 +103,44 @@ export function fmtInt(n: number | null | undefined): string {
   if (!Number.isFinite(n)) return fmtNum(n);
   const s = Math.round(Math.abs(n)).toString().replace(/\B(?=(\d{3})+(?!\d))/g, '\u2009');
   return n < 0 ? MINUS + s : s;
+}
+
+/** Problem-message numbers (src/engine): `digits` significant digits (default 4), no trailing zeros. */
+export function fmtMessage(v: number, digits = 4): string {
+  if (v === null || v === undefined || Number.isNaN(v)) return 'NaN';
+  if (!Number.isFinite(v)) return v > 0 ? '∞' : '−∞';
+  if (v === 0) return '0';
+  const a = Math.abs(v);
+  if (a >= 1e-4 && a < 1e7) {
+    const s = Number(v.toPrecision(digits)).toString();
+    return s;
+  }
+  const [m, e] = v.toExponential(digits - 1).split('e');
+  return `${Number(m)}e${e}`;
+}
+
+/** Hover, lens and status-bar numbers (src/host): `digits` significant digits; em dash when missing. */
+export function fmtLabel(v: number | null | undefined, digits = 4): string {
+  if (v === null || v === undefined || !Number.isFinite(v)) return '—';
+  if (v === 0) return '0';
+  const a = Math.abs(v);
+  if (a >= 1e6 || a < 1e-4) return v.toExponential(digits - 1).replace('-', '−');
+  return Number(v.toPrecision(digits)).toString().replace('-', '−');
+}
+
+/** CLI numbers (src/cli): `digits` significant digits, in exponent form when very large or small. */
+export function fmtCli(v: number | null | undefined, digits = 4): string {
+  if (v === null || v === undefined || !Number.isFinite(v)) return '—';
+  if (v === 0) return '0';
+  const a = Math.abs(v);
+  if (a >= 10 ** digits && a < 1e9) return String(Math.round(v));
+  if (a >= 1e9 || a < 1e-3) {
+    const [m, e] = v.toExponential(digits - 1).split('e');
+    return `${trimFixedZeros(m)}e${e.replace('+', '')}`;
+  }
+  return trimFixedZeros(v.toPrecision(digits));
+}
+
+function trimFixedZeros(s: string): string {
+  return s.includes('.') && !s.includes('e') ? s.replace(/0+$/, '').replace(/\.$/, '') : s;
 }

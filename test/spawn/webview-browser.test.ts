@@ -8,8 +8,8 @@ import * as os from 'os';
 import * as path from 'path';
 import type { Browser, BrowserContext, Page } from 'playwright-core';
 import type { ErrorReport, FitReport, RunResult } from '../../src/engine/report';
-import { buildReportHtml, panelHtml } from '../../webview/html';
-import { panelCss, repoRoot, sampleReport, webviewBundle } from './webview-helpers';
+import { buildReportHtml, panelHtml } from '../../src/shared/html';
+import { panelCss, repoRoot, sampleReport, webviewBundle } from '../unit/webview-helpers';
 
 const CHROMIUM = process.env.CHROMIUM_PATH || '/usr/bin/chromium';
 const ARGS = ['--headless', '--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking',

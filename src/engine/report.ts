@@ -249,6 +249,10 @@ export interface InverseReport {
   y: number;
   roots: { x: number; interval: [number | null, number | null] }[];
   extrapolated: boolean;
+  /** [a, b] where the curve equals y over a whole stretch of x (no single root there) */
+  flat?: [number, number];
+  /** crossings found beyond the first LIMITS.rootsPerValue listed in roots */
+  moreRoots?: number;
 }
 
 export interface ModelReport {

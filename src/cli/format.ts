@@ -1,6 +1,7 @@
 // Human-readable text of run results: the per-spec summary table of `fit`, problem lines, and check verdicts.
 // Numbers are rounded here for reading only; the JSON never is.
 import * as path from 'path';
+import { oneLine } from '../shared/terminalText';
 import type { ErrorReport, FitReport, ModelReport, Problem } from '../engine/report';
 
 /** A number to `digits` significant digits, in exponent form when very large or small. */
@@ -84,7 +85,7 @@ export function pathText(p: (string | number)[]): string {
 
 export function problemLine(p: Problem, specShown: string): string {
   const at = p.path && p.path.length ? ` [${pathText(p.path)}]` : '';
-  return `${where(p, specShown)}: ${p.severity}${at}: ${p.message} (${p.code})`;
+  return oneLine(`${where(p, specShown)}: ${p.severity}${at}: ${p.message} (${p.code})`);
 }
 
 /** Every problem of a report: the spec/data ones, then each model's (with the model named). */
@@ -106,7 +107,7 @@ export function errorText(r: ErrorReport, specShown: string): string {
     const at = where(r.error, specShown);
     lines.push(`${at}: error${jp}: ${r.error.message}${at.startsWith(specShown) ? '' : ` (spec ${specShown})`}`);
   }
-  return lines.join('\n');
+  return lines.map(oneLine).join('\n');
 }
 
 /** The summary `fit` prints for one spec; `verbose` lists the info notes too (otherwise only their count). */
@@ -191,13 +192,14 @@ export function summaryText(r: FitReport, specShown: string, written: string | n
   if (list.length > shownGroups.length) out.push(`  … and ${list.length - shownGroups.length} more kinds of problem (see the results file or --json)`);
   if (infos && !verbose) out.push(`  ${infos} info note${infos === 1 ? '' : 's'} (--verbose shows ${infos === 1 ? 'it' : 'them'})`);
   if (written) out.push(`  wrote ${written}`);
-  return out.join('\n');
+  // user text (title, names, messages quoting them) can hold control characters: each line is one escaped line
+  return out.map(oneLine).join('\n');
 }
 
 export function expectText(e: FitReport['expect'][number]): string {
   const allowed = e.tol !== undefined ? `± ${num(e.tol)}` : `± ${num((e.rel ?? 0) * 100)} %`;
   const got = e.actual === null ? 'no estimate (model failed or parameter unknown)' : `got ${num(e.actual, 6)}`;
-  return `${e.model}.${e.param}${e.group !== undefined ? `[${e.group}]` : ''} = ${num(e.value, 6)} ${allowed}: ${got}`;
+  return oneLine(`${e.model}.${e.param}${e.group !== undefined ? `[${e.group}]` : ''} = ${num(e.value, 6)} ${allowed}: ${got}`);
 }
 
 /** Grouped summary tables longer than this many rows are folded. */

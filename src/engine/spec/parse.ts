@@ -4,7 +4,20 @@
 import { createScanner, parseTree, printParseErrorCode, SyntaxKind, type Node as JsonNode, type ParseError } from 'jsonc-parser';
 import type { JsonPath, Problem } from '../report';
 import { LIMITS } from './limits';
-import { lineColumnAt } from './locate';
+
+/** 1-based line and column of an offset (a plain scan: locate's cached parse tree is not built for a too deep text) */
+function lineColumnAt(text: string, offset: number): { line: number; column: number } {
+  let line = 1;
+  let start = 0;
+  for (let i = 0; i < offset && i < text.length; i++) {
+    const c = text.charCodeAt(i);
+    if (c === 10 || (c === 13 && text.charCodeAt(i + 1) !== 10)) {
+      line++;
+      start = i + 1;
+    }
+  }
+  return { line, column: offset - start + 1 };
+}
 
 /** keys refused anywhere in a spec: they name JavaScript's object machinery, never a spec setting */
 export const FORBIDDEN_KEYS: readonly string[] = ['__proto__', 'constructor', 'prototype'];

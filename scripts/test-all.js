@@ -4,7 +4,7 @@
 // real VS Code extension host, UI tests in a real browser. Each stage prints "N passed, N failed" and its time;
 // the whole exits non-zero on any failure.
 //   usage: node scripts/test-all.js [--only stage,stage] [--skip stage,stage]
-//   stages: typecheck lint unit spawn reference node-versions build package setup integration e2e
+//   stages: typecheck lint unit spawn reference node-versions fuzz build bad-input package setup integration e2e
 const { spawn } = require('child_process');
 const fs = require('fs');
 const path = require('path');
@@ -12,7 +12,7 @@ const path = require('path');
 const REPO = path.resolve(__dirname, '..');
 const argv = process.argv.slice(2);
 if (argv.includes('--help') || argv.includes('-h')) {
-  console.log('usage: node scripts/test-all.js [--only stage,stage] [--skip stage,stage]\nstages: typecheck lint unit spawn reference node-versions build package setup integration e2e');
+  console.log('usage: node scripts/test-all.js [--only stage,stage] [--skip stage,stage]\nstages: typecheck lint unit spawn reference node-versions fuzz build bad-input package setup integration e2e');
   process.exit(0);
 }
 const listArg = flag => (argv.includes(flag) ? argv[argv.indexOf(flag) + 1].split(',') : null);
@@ -30,6 +30,7 @@ const stages = [
   { name: 'spawn', cmd: [bin('mocha'), '--config', '.mocharc.json', '--reporter', reporter, 'test/spawn/**/*.test.ts'] },
   { name: 'reference', cmd: [bin('mocha'), '--config', '.mocharc.json', '--reporter', reporter, 'test/reference/**/*.test.ts'] },
   { name: 'node-versions', cmd: [process.execPath, 'scripts/test-node.js', '--install', '--others'] }, // CLI + library tests on the other supported Node majors
+  { name: 'fuzz', cmd: [bin('mocha'), '--config', '.mocharc.json', '--reporter', reporter, 'test/fuzz/**/*.test.ts'] },
   { name: 'build', cmd: [process.execPath, 'esbuild.js'], counts: 'exit' },
   { name: 'bad-input', cmd: [bin('mocha'), '--config', '.mocharc.json', '--reporter', reporter, 'test/bad-input/**/*.test.ts'] }, // the real CLI on bad input (needs the build)
   // README images are relative links to docs/ in the repository; the VSIX ships no docs images, so links stay as written

@@ -8,6 +8,7 @@ import { isErrorReport, type CheckVerdict, type ErrorReport, type FitReport, typ
 import { findingSeverity, githubAnnotations, placeFindings, type Finding } from './annotate';
 import { UsageError, type Parsed } from './args';
 import { errorText, expectText, problemLine, allProblems } from './format';
+import { oneLine } from '../shared/terminalText';
 import { inOrder, specsOf } from './fit';
 import { ioReason, shown, writeAtomic, type Io } from './io';
 import { parseShard, shardSpecs } from './shard';
@@ -182,7 +183,7 @@ export async function checkCommand(parsed: Parsed, io: Io): Promise<number> {
     if (!ok) code = Math.max(code, 1);
     const r = result;
     const summary = `${r.models.length} model${r.models.length === 1 ? '' : 's'}, ${r.expect.length ? `${r.expect.filter(e => e.ok).length}/${r.expect.length} expectations met` : 'no expectations'}${verdict.warnings.length ? `, ${verdict.warnings.length} warning${verdict.warnings.length === 1 ? '' : 's'}` : ''}`;
-    const lines = [`${ok ? 'PASS' : 'FAIL'} ${specShown} (${summary})`, ...failures.map(f => indent(f)), ...notes.map(n => indent(n))];
+    const lines = [`${ok ? 'PASS' : 'FAIL'} ${specShown} (${summary})`, ...failures.map(f => indent(oneLine(f))), ...notes.map(n => indent(oneLine(n)))];
     if (!ok && !strict && verdict.warnings.length) lines.push(indent(`(${verdict.warnings.length} warning${verdict.warnings.length === 1 ? '' : 's'} not counted; --strict fails on them)`));
     say(lines.join('\n'));
     const check = await verdictBlock(specAbs, specShown, findings, ok);

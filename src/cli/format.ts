@@ -3,6 +3,7 @@
 import * as path from 'path';
 import { allProblems, pathText } from '../shared/reportText';
 import { fmtCli as num } from '../shared/numberFormat';
+import { oneLine } from '../shared/terminalText';
 import type { ErrorReport, FitReport, ModelReport, Problem } from '../engine/report';
 
 function table(rows: string[][], indent = '  '): string[] {
@@ -64,7 +65,7 @@ export function where(p: { location?: Problem['location'] }, specShown: string):
 
 export function problemLine(p: Problem, specShown: string): string {
   const at = p.path && p.path.length ? ` [${pathText(p.path)}]` : '';
-  return `${where(p, specShown)}: ${p.severity}${at}: ${p.message} (${p.code})`;
+  return oneLine(`${where(p, specShown)}: ${p.severity}${at}: ${p.message} (${p.code})`);
 }
 
 export { allProblems, num };
@@ -83,7 +84,7 @@ export function errorText(r: ErrorReport, specShown: string): string {
     const at = where(r.error, specShown);
     lines.push(`${at}: error${jp}: ${r.error.message}${at.startsWith(specShown) ? '' : ` (spec ${specShown})`}`);
   }
-  return lines.join('\n');
+  return lines.map(oneLine).join('\n');
 }
 
 /** The summary `fit` prints for one spec; `verbose` lists the info notes too (otherwise only their count). */
@@ -168,13 +169,14 @@ export function summaryText(r: FitReport, specShown: string, written: string | n
   if (list.length > shownGroups.length) out.push(`  … and ${list.length - shownGroups.length} more kinds of problem (see the results file or --json)`);
   if (infos && !verbose) out.push(`  ${infos} info note${infos === 1 ? '' : 's'} (--verbose shows ${infos === 1 ? 'it' : 'them'})`);
   if (written) out.push(`  wrote ${written}`);
-  return out.join('\n');
+  // user text (title, names, messages quoting them) can hold control characters: each line is one escaped line
+  return out.map(oneLine).join('\n');
 }
 
 export function expectText(e: FitReport['expect'][number]): string {
   const allowed = e.tol !== undefined ? `± ${num(e.tol)}` : `± ${num((e.rel ?? 0) * 100)} %`;
   const got = e.actual === null ? 'no estimate (model failed or parameter unknown)' : `got ${num(e.actual, 6)}`;
-  return `${e.model}.${e.param}${e.group !== undefined ? `[${e.group}]` : ''} = ${num(e.value, 6)} ${allowed}: ${got}`;
+  return oneLine(`${e.model}.${e.param}${e.group !== undefined ? `[${e.group}]` : ''} = ${num(e.value, 6)} ${allowed}: ${got}`);
 }
 
 /** Grouped summary tables longer than this many rows are folded. */

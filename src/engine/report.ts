@@ -268,6 +268,10 @@ export interface InverseReport {
   y: number;
   roots: { x: number; interval: [number | null, number | null] }[];
   extrapolated: boolean;
+  /** [a, b] where the curve equals y over a whole stretch of x (no single root there) */
+  flat?: [number, number];
+  /** crossings found beyond the first LIMITS.rootsPerValue listed in roots */
+  moreRoots?: number;
 }
 
 /** Everything known about one fitted model: how the solver ended, parameters, statistics, diagnostics and problems. */

@@ -413,7 +413,7 @@ function failedModel(
   doing: string,
   built?: { formula: string; params: string[]; compiled: { linear: boolean } },
 ): ModelReport {
-  const params: Record<string, ParamReport> = {};
+  const params: Record<string, ParamReport> = Object.create(null);
   for (const p of built?.params ?? []) params[p] = { value: NaN, se: null, t: null, p: null, ci: null, profileCi: null, fixed: false, atBound: null };
   return {
     name: m.name,

@@ -42,7 +42,9 @@ describe('spec: parseSpecText', () => {
   it('accepts comments and trailing commas', () => {
     const r = parseSpecText('{\n // a comment\n "a": [1, 2,], /* block */\n "b": { "c": 3, },\n}', FILE);
     assert.deepStrictEqual(r.problems, []);
-    assert.deepStrictEqual(r.raw, { a: [1, 2], b: { c: 3 } });
+    // objects come without a prototype (no key of a spec can reach Object.prototype): compare the plain JSON
+    assert.deepStrictEqual(JSON.parse(JSON.stringify(r.raw)), { a: [1, 2], b: { c: 3 } });
+    assert.strictEqual(Object.getPrototypeOf(r.raw), null);
   });
 
   it('reports a stray comma with line, column, file and the fix', () => {
@@ -111,7 +113,7 @@ describe('spec: validateSpec normalises', () => {
     const r = check(spec('{ "name": "logistic", "builtin": "logistic3" }, { "name": "cubic", "polynomial": 3 }', '"output": "results/b.json"'));
     assert.deepStrictEqual(r.problems, []);
     const s = r.spec as NormalizedSpec;
-    assert.deepStrictEqual(s.data.x, { x: 'hours' });
+    assert.deepStrictEqual({ ...s.data.x }, { x: 'hours' });
     assert.strictEqual(s.data.file, path.join(ROOT, 'culture-b.csv'));
     assert.strictEqual(s.data.fileGiven, 'culture-b.csv');
     assert.strictEqual(s.output, path.join(ROOT, 'results', 'b.json'));
@@ -135,9 +137,9 @@ describe('spec: validateSpec normalises', () => {
     );
     assert.deepStrictEqual(r.problems, []);
     const s = r.spec as NormalizedSpec;
-    assert.deepStrictEqual(s.data.x, { t: 'hours', T: 'temp_c + 273.15' });
+    assert.deepStrictEqual({ ...s.data.x }, { t: 'hours', T: 'temp_c + 273.15' });
     assert.strictEqual(s.data.y, '`OD 600`');
-    assert.deepStrictEqual(s.predict, [{ t: 1, T: 300 }]);
+    assert.deepStrictEqual(JSON.parse(JSON.stringify(s.predict)), [{ t: 1, T: 300 }]);
   });
 
   it('validates without columns (no header known yet): syntax only', () => {
@@ -362,7 +364,7 @@ describe('spec: validateSpec reports every problem with path and location', () =
     assert.deepStrictEqual(ex[0].location, { file: SPEC, ...lineColOf(text, '"logistc"') });
     const good = check(spec('{ "name": "logistic", "builtin": "logistic3" }', '"expect": { "logistic": { "K": { "value": 1.93, "tol": 0.02 }, "r": { "value": 0.3, "rel": 0.05 } } }'));
     assert.deepStrictEqual(good.problems, []);
-    assert.deepStrictEqual(good.spec?.expect, { logistic: { K: { value: 1.93, tol: 0.02 }, r: { value: 0.3, rel: 0.05 } } });
+    assert.deepStrictEqual(JSON.parse(JSON.stringify(good.spec?.expect)), { logistic: { K: { value: 1.93, tol: 0.02 }, r: { value: 0.3, rel: 0.05 } } });
   });
 
   it('output must stay inside the workspace and never be the data file or the spec', () => {
@@ -387,7 +389,7 @@ describe('spec: validateSpec reports every problem with path and location', () =
     assert.match(u.message, /unknown key 'runP' in thresholds — did you mean 'runsP'\?/);
     assert.ok(r.problems.some((p) => p.path.join('.') === 'thresholds.cvRatio' && p.code === 'spec-type'));
     const ok = check(spec('{ "name": "m", "polynomial": 1 }', '"thresholds": { "paramCorrelation": 0.95 }'));
-    assert.deepStrictEqual(ok.spec?.thresholds, { paramCorrelation: 0.95 });
+    assert.deepStrictEqual({ ...ok.spec?.thresholds }, { paramCorrelation: 0.95 });
   });
 
   it('solver settings: whole numbers and a positive budget', () => {

@@ -59,7 +59,8 @@ export function parseNumber(text: string, decimal: Decimal = '.'): number {
 function badCellReason(text: string, decimal: Decimal): string {
   const t = text.trim();
   if (t === '') return 'empty cell';
-  const shown = t.length > 40 ? t.slice(0, 40) + '…' : t;
+  // at most a short, escaped excerpt of the cell: a data file's content is not echoed into logs
+  const shown = JSON.stringify(t.length > 24 ? t.slice(0, 24) + '…' : t).slice(1, -1).replace(/[\u007f-\u009f\u200e\u200f\u202a-\u202e\u2066-\u2069]/g, (c) => '\\u' + c.charCodeAt(0).toString(16).padStart(4, '0'));
   if (decimal === '.' && NUMBER_COMMA.test(t) && t.includes(',')) return `not a number: '${shown}' (a decimal comma? set data.decimal to ",")`;
   if (decimal === ',' && NUMBER_DOT.test(t) && t.includes('.')) return `not a number: '${shown}' (a decimal point? data.decimal is ",")`;
   return `not a number: '${shown}'`;
@@ -96,6 +97,8 @@ class TextStage extends Transform {
 
   /** characters since the last line break */
   private lineLength = 0;
+  /** line breaks decoded so far (for the line of a bad byte) */
+  private lines = 0;
 
   constructor(
     private readonly label: string,
@@ -122,8 +125,8 @@ class TextStage extends Transform {
         new DataError(
           wasFirst
             ? `${this.label} does not look like a text CSV file (it contains ${chunk.indexOf(0) !== -1 ? 'NUL bytes' : 'bytes that are not UTF-8 text'}) — export the data as CSV (UTF-8) and point data.file at it`
-            : `${this.label} contains bytes that are not UTF-8 text after byte ${this.bytes - chunk.length} — save the file as UTF-8 CSV`,
-          { file: this.label },
+            : `${this.label} line ${this.badByteAt(chunk).line}, column ${this.badByteAt(chunk).column}: bytes that are not UTF-8 text — save the file as UTF-8 CSV`,
+          wasFirst ? { file: this.label } : { file: this.label, line: this.badByteAt(chunk).line },
         ),
       );
       return;
@@ -132,6 +135,7 @@ class TextStage extends Transform {
       if (text.charCodeAt(0) === 0xfeff) text = text.slice(1);
       this.first = false;
     }
+    this.lines += countLines(text);
     const lastBreak = Math.max(text.lastIndexOf('\n'), text.lastIndexOf('\r'));
     this.lineLength = lastBreak === -1 ? this.lineLength + text.length : text.length - lastBreak - 1;
     if (this.lineLength > this.maxLineLength) {
@@ -150,6 +154,16 @@ class TextStage extends Transform {
     } catch {
       done(new DataError(`${this.label} ends in the middle of a UTF-8 character — save the file as UTF-8 CSV`, { file: this.label }));
     }
+  }
+
+  /** 1-based line and column of the first byte of `chunk` that is not UTF-8 (the text before it decoded leniently) */
+  private badByteAt(chunk: Buffer): { line: number; column: number } {
+    const lenient = new TextDecoder('utf-8').decode(chunk);
+    const before = lenient.slice(0, Math.max(0, lenient.indexOf('\ufffd')));
+    const breaks = countLines(before);
+    const lastBreak = Math.max(before.lastIndexOf('\n'), before.lastIndexOf('\r'));
+    const column = breaks === 0 ? this.lineLength + before.length + 1 : before.length - lastBreak;
+    return { line: this.lines + breaks + 1, column };
   }
 
   digest(): string {
@@ -276,8 +290,17 @@ function streamRows(file: string, opts: ReadOptions & { maxBytes?: number; maxLi
   });
 }
 
+/** Line breaks in text (\r\n counts once). */
+function countLines(text: string): number {
+  let n = 0;
+  for (let i = text.indexOf('\n'); i !== -1; i = text.indexOf('\n', i + 1)) n++;
+  for (let i = text.indexOf('\r'); i !== -1; i = text.indexOf('\r', i + 1)) if (text.charCodeAt(i + 1) !== 10) n++;
+  return n;
+}
+
 function checkHeader(fields: string[], label: string, line: number): string[] {
-  const names = fields.map((f) => f.trim());
+  // names in Unicode NFC, as the spec's identifiers and keys are: a name typed on another system matches
+  const names = fields.map((f) => f.trim().normalize('NFC'));
   const seen = new Map<string, number>();
   names.forEach((n, i) => {
     if (n === '') return;
@@ -436,7 +459,7 @@ export async function readTable(file: string, opts: ReadTableOptions): Promise<T
       location: { file: label },
       rows: dropped.slice(maxProblems, maxProblems + MAX_ROWS_LISTED).map((d) => d.row),
     });
-  const out: Record<string, Float64Array> = {};
+  const out: Record<string, Float64Array> = Object.create(null);
   wanted.forEach((c, k) => (out[c] = buffers[k].done()));
   const text: Record<string, string[]> = {};
   wantedText.forEach((c, k) => (text[c] = textOut[k]));

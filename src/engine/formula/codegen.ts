@@ -1,6 +1,9 @@
 // Code generation: JavaScript source built ONLY from the checked expression graph — identifiers become array
 // indices (theta[j], X[k][i]), numbers round-trip literals, functions come from a fixed table — then `new Function`.
 // One loop over the points per call; subexpressions free of the variables are hoisted out of the loop.
+// Large graphs (a product of hundreds of parameters has a Jacobian of O(p²) nodes) keep their intermediate values in
+// one Float64Array instead of local constants: a function with a hundred thousand locals overflows the stack when
+// called, an array slot per node does not.
 
 import { MATH_UNARY } from './functions';
 import { Graph, GNode } from './graph';
@@ -27,8 +30,21 @@ export interface Kernels {
   source: { evaluate: string; evaluateWithJacobian: string; at: string; gradientAt: string };
 }
 
+/** above this many intermediate values a kernel keeps them in an array, not in local constants */
+export const SLOT_THRESHOLD = 4000;
+
 export class Emitter {
+  /** node id → index in the slot array `s`, when intermediate values live in an array */
+  private slots: Map<number, number> | null = null;
+
   constructor(private readonly g: Graph) {}
+
+  /** Keep the values of `ids` (non-leaf nodes) in the array `s`; returns its length. */
+  useSlots(ids: readonly number[]): number {
+    this.slots = new Map();
+    for (const id of ids) if (!this.slots.has(id)) this.slots.set(id, this.slots.size);
+    return this.slots.size;
+  }
 
   ref(id: number): string {
     const n = this.g.get(id);
@@ -36,7 +52,10 @@ export class Emitter {
       case 'const': return numberLiteral(n.value);
       case 'param': return `t${n.index | 0}`;
       case 'var': return `x${n.index | 0}`;
-      default: return `${n.hasVar ? 'v' : 'h'}${id | 0}`;
+      default: {
+        const k = this.slots?.get(id);
+        return k !== undefined ? `s[${k | 0}]` : `${n.hasVar ? 'v' : 'h'}${id | 0}`;
+      }
     }
   }
 
@@ -87,7 +106,7 @@ export class Emitter {
     for (const id of ids) {
       const n = this.g.get(id);
       if (n.op === 'const' || n.op === 'param' || n.op === 'var') continue;
-      out.push(`${indent}const ${this.ref(id)} = ${this.expr(n)};`);
+      out.push(`${indent}${this.slots ? '' : 'const '}${this.ref(id)} = ${this.expr(n)};`);
     }
     return out;
   }
@@ -117,16 +136,25 @@ function plan(g: Graph, roots: readonly number[]): Plan {
 /**
  * Generate the four evaluators for f (node `f`) and its derivatives (`d[j]` = ∂f/∂θ_j) over `nvars` variables.
  */
-export function generateKernels(g: Graph, f: number, d: readonly number[]): Kernels {
-  const e = new Emitter(g);
+export function generateKernels(g: Graph, f: number, d: readonly number[], slotThreshold = SLOT_THRESHOLD): Kernels {
   const loadParams = (pl: Plan) => pl.params.map((j) => `  const t${j} = +theta[${j}];`);
+  // one emitter per kernel: slots (when used) are numbered per kernel
+  const emitter = (pl: Plan): { e: Emitter; alloc: string[] } => {
+    const e = new Emitter(g);
+    if (pl.hoisted.length + pl.inner.length <= slotThreshold) return { e, alloc: [] };
+    const size = e.useSlots([...pl.hoisted, ...pl.inner]);
+    return { e, alloc: [`  const s = new Float64Array(${size | 0});`] };
+  };
 
   // evaluate(theta, X, out)
   const pe = plan(g, [f]);
+  const ee = emitter(pe);
+  let e = ee.e;
   const evaluate = [
     '"use strict";',
     'return function evaluate(theta, X, out) {',
     '  const n = out.length;',
+    ...ee.alloc,
     ...loadParams(pe),
     ...pe.vars.map((k) => `  const X${k} = X[${k}];`),
     ...e.statements(pe.hoisted, '  '),
@@ -140,10 +168,13 @@ export function generateKernels(g: Graph, f: number, d: readonly number[]): Kern
 
   // evaluateWithJacobian(theta, X, out, J): J column-major, J[j*n + i]
   const pj = plan(g, [f, ...d]);
+  const ej = emitter(pj);
+  e = ej.e;
   const jac = [
     '"use strict";',
     'return function evaluateWithJacobian(theta, X, out, J) {',
     '  const n = out.length;',
+    ...ej.alloc,
     ...loadParams(pj),
     ...pj.vars.map((k) => `  const X${k} = X[${k}];`),
     ...d.map((_, j) => `  const o${j} = ${j} * n;`),
@@ -158,9 +189,11 @@ export function generateKernels(g: Graph, f: number, d: readonly number[]): Kern
   ].join('\n');
 
   // at(theta, x)
+  e = ee.e;
   const at = [
     '"use strict";',
     'return function at(theta, x) {',
+    ...ee.alloc,
     ...loadParams(pe),
     ...pe.vars.map((k) => `  const x${k} = +x[${k}];`),
     ...e.statements(pe.hoisted, '  '),
@@ -170,9 +203,11 @@ export function generateKernels(g: Graph, f: number, d: readonly number[]): Kern
   ].join('\n');
 
   // gradientAt(theta, x, grad) -> f
+  e = ej.e;
   const grad = [
     '"use strict";',
     'return function gradientAt(theta, x, grad) {',
+    ...ej.alloc,
     ...loadParams(pj),
     ...pj.vars.map((k) => `  const x${k} = +x[${k}];`),
     ...e.statements(pj.hoisted, '  '),

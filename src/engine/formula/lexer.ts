@@ -22,10 +22,10 @@ export function col(offset: number): number {
 }
 
 const IDENT_START = /[\p{L}_]/u;
-const IDENT_PART = /[\p{L}\p{N}_]/u;
+const IDENT_PART = /[\p{L}\p{M}\p{N}_]/u;
 
 export function isPlainIdentifier(name: string): boolean {
-  return /^[\p{L}_][\p{L}\p{N}_]*$/u.test(name);
+  return /^[\p{L}_][\p{L}\p{M}\p{N}_]*$/u.test(name);
 }
 
 function isDigit(c: string | undefined): boolean {
@@ -123,14 +123,14 @@ export function tokenize(text: string, opts: TokenizeOptions = {}): Token[] {
           { start: i, end: j + 1 },
         );
       }
-      tokens.push({ kind: 'ident', text: name, start, end: j + 1, quoted: true });
+      tokens.push({ kind: 'ident', text: name.normalize('NFC'), start, end: j + 1, quoted: true });
       i = j + 1;
       continue;
     }
     if (IDENT_START.test(c)) {
       let j = i + 1;
       while (j < n && IDENT_PART.test(text[j])) j++;
-      tokens.push({ kind: 'ident', text: text.slice(i, j), start, end: j });
+      tokens.push({ kind: 'ident', text: text.slice(i, j).normalize('NFC'), start, end: j });
       i = j;
       continue;
     }

@@ -146,8 +146,9 @@ export function buildModel(spec: ModelSpec, variables: string[], data: { X: Floa
   const fixed = new Array<boolean>(p).fill(false);
   const start = new Array<number | undefined>(p).fill(undefined);
   for (let j = 0; j < p; j++) {
-    if (defaultsLower[params[j]] !== undefined) lower[j] = defaultsLower[params[j]];
-    if (defaultsUpper[params[j]] !== undefined) upper[j] = defaultsUpper[params[j]];
+    // own keys only: a parameter may be called toString or hasOwnProperty
+    if (Object.prototype.hasOwnProperty.call(defaultsLower, params[j])) lower[j] = defaultsLower[params[j]];
+    if (Object.prototype.hasOwnProperty.call(defaultsUpper, params[j])) upper[j] = defaultsUpper[params[j]];
   }
   for (const [name, ps] of Object.entries(spec.params ?? {})) {
     const j = params.indexOf(name);

@@ -1,12 +1,13 @@
 // Checks a parsed fit spec completely (every problem at once, each with its JSON path and text location) and
 // normalises it: defaults filled, data.x always an object, file paths absolute.
 import * as path from 'path';
-import { pathText as sharedPathText } from '../../shared/reportText';
 import { formulaIdentifiers, formulaParameters, parseFormula, suggest, FormulaError, CONSTANTS, FUNCTIONS } from '../formula';
 import type { ExcludeSpec, FileLocation, JsonPath, ParamSpec, Problem, Severity } from '../report';
 import { BUILTIN_IDS, BUILTIN_PARAMS, isBuiltinId, polynomialParams } from './catalogue';
 import { DEFAULTS, THRESHOLD_KEYS } from './defaults';
+import { LIMITS } from './limits';
 import { locateInString, locateNearest } from './locate';
+import { FORBIDDEN_KEYS, pathText } from './parse';
 import type { NormalizedData, NormalizedModel, NormalizedSpec } from './types';
 
 export interface ValidateContext {
@@ -45,6 +46,20 @@ const EXCLUDE_KEYS = ['row', 'reason'];
 
 type Obj = Record<string, unknown>;
 
+/** allowed range of each threshold: p-values and levels in [0, 1], correlations in [0, 1], ratios and factors positive */
+const THRESHOLD_RANGES: Record<(typeof THRESHOLD_KEYS)[number], { min: number; max?: number; lowOpen?: boolean; highOpen?: boolean; integer?: boolean; text: string; example: number }> = {
+  paramCorrelation: { min: 0, max: 1, text: 'a correlation between 0 and 1', example: 0.99 },
+  relativeSe: { min: 0, lowOpen: true, text: 'a positive number', example: 1 },
+  cvRatio: { min: 1, text: 'a ratio of at least 1 (cross-validated RMSE / RMSE)', example: 1.5 },
+  minDof: { min: 0, integer: true, text: 'a whole number of degrees of freedom, 0 or more', example: 2 },
+  paramsPerPoint: { min: 0, max: 1, lowOpen: true, text: 'a fraction above 0 and at most 1', example: 0.33 },
+  runsP: { min: 0, max: 1, text: 'a p-value between 0 and 1', example: 0.01 },
+  normalityP: { min: 0, max: 1, text: 'a p-value between 0 and 1', example: 0.001 },
+  cooksFactor: { min: 0, lowOpen: true, text: 'a positive number', example: 4 },
+  linearHint: { min: 0, max: 1, text: 'a correlation between 0 and 1', example: 0.7 },
+  fTestAlpha: { min: 0, max: 1, lowOpen: true, highOpen: true, text: 'a significance level strictly between 0 and 1', example: 0.05 },
+};
+
 /** highest polynomial degree accepted (the model builder's limit) */
 export const MAX_DEGREE = 20;
 
@@ -69,7 +84,7 @@ function didYouMean(word: string, candidates: readonly string[]): string {
   const s = suggest(word, candidates);
   return s === undefined ? '' : ` — did you mean '${s}'?`;
 }
-const PLAIN_IDENT = /^[\p{L}_][\p{L}\p{N}_]*$/u;
+const PLAIN_IDENT = /^[\p{L}_][\p{L}\p{M}\p{N}_]*$/u;
 /** Formula-language spelling of a column name: as is when it is a plain identifier, else in backticks. */
 export function columnRef(name: string): string {
   return PLAIN_IDENT.test(name) && !CONSTANTS.includes(name) && !FUNCTIONS.includes(name) && !['and', 'or', 'not'].includes(name)
@@ -77,10 +92,7 @@ export function columnRef(name: string): string {
     : '`' + name + '`';
 }
 
-/** Readable form of a JSON path in a message: models[0].params.K, or "(the whole spec)" for the empty path. */
-export function pathText(p: JsonPath): string {
-  return sharedPathText(p) || '(the whole spec)';
-}
+export { pathText };
 
 class Checker {
   readonly problems: Problem[] = [];
@@ -182,7 +194,7 @@ interface ExprEnv {
 /** Checks one data expression (syntax, and column names when the header is known). Returns its normalized text. */
 function checkExpression(c: Checker, ctx: ValidateContext, text: string, p: JsonPath, role: string, env: ExprEnv): string | undefined {
   const columns = ctx.columns;
-  if (columns && columns.includes(text)) return columnRef(text);
+  if (columns && columns.includes(text.normalize('NFC'))) return columnRef(text.normalize('NFC'));
   let ids: { name: string; span: { start: number; end: number } }[];
   try {
     parseFormula(text, { logic: env.logic });
@@ -260,6 +272,8 @@ export function validateSpec(raw: unknown, ctx: ValidateContext): ValidateResult
   if (ms === undefined) c.required(['models'], 'a list of models, e.g. [{ "name": "line", "polynomial": 1 }]');
   else if (!Array.isArray(ms)) c.type(['models'], 'a list [ {...}, ... ]', ms);
   else if (ms.length === 0) c.add('spec-required', ['models'], 'models is empty — add at least one model, e.g. { "name": "line", "polynomial": 1 }');
+  else if (ms.length > LIMITS.models)
+    c.add('spec-limit', ['models'], `models lists ${ms.length} models; the limit is ${LIMITS.models} per spec — split them over several specs`);
   else {
     const seen = new Map<string, number>();
     ms.forEach((m, i) => {
@@ -267,7 +281,7 @@ export function validateSpec(raw: unknown, ctx: ValidateContext): ValidateResult
       if (nm) {
         models.push(nm);
       }
-      if (isObj(m) && typeof m.name === 'string' && !paramsByModel.has(m.name)) paramsByModel.set(m.name, modelParams(m, variables));
+      if (isObj(m) && typeof m.name === 'string' && !paramsByModel.has(m.name.normalize('NFC'))) paramsByModel.set(m.name.normalize('NFC'), modelParams(m, variables));
     });
   }
 
@@ -284,6 +298,8 @@ export function validateSpec(raw: unknown, ctx: ValidateContext): ValidateResult
   const predict: (number | Record<string, number>)[] = [];
   if (raw.predict !== undefined) {
     if (!Array.isArray(raw.predict)) c.type(['predict'], 'a list of x values, e.g. [24, 60]', raw.predict);
+    else if (raw.predict.length > LIMITS.predict)
+      c.add('spec-limit', ['predict'], `predict lists ${raw.predict.length} values; the limit is ${LIMITS.predict} — keep the x values you need`);
     else
       raw.predict.forEach((v, i) => {
         const q: JsonPath = ['predict', i];
@@ -291,7 +307,7 @@ export function validateSpec(raw: unknown, ctx: ValidateContext): ValidateResult
           if (variables.length > 1) c.add('spec-predict', q, `predict[${i}] is a number, but data.x defines ${variables.length} variables — write an object ${exampleObj(variables)}`);
           else predict.push(v);
         } else if (isObj(v)) {
-          const out: Record<string, number> = {};
+          const out: Record<string, number> = Object.create(null);
           let ok = true;
           for (const k of Object.keys(v)) {
             if (!variables.includes(k)) {
@@ -315,6 +331,8 @@ export function validateSpec(raw: unknown, ctx: ValidateContext): ValidateResult
   const solveFor: number[] = [];
   if (raw.solveFor !== undefined) {
     if (!Array.isArray(raw.solveFor)) c.type(['solveFor'], 'a list of y values, e.g. [1.0]', raw.solveFor);
+    else if (raw.solveFor.length > LIMITS.solveFor)
+      c.add('spec-limit', ['solveFor'], `solveFor lists ${raw.solveFor.length} values; the limit is ${LIMITS.solveFor} — keep the y values you need`);
     else {
       if (variables.length > 1 && raw.solveFor.length > 0)
         c.add('spec-solve-for', ['solveFor'], `solveFor reads x off the curve, which needs a single x variable; data.x defines ${quoteList(variables)}`);
@@ -356,7 +374,7 @@ export function validateSpec(raw: unknown, ctx: ValidateContext): ValidateResult
   const outputPoints = c.oneOf(raw, 'outputPoints', [], ['inline', 'sidecar', 'omit'] as const);
 
   // ------------------------------------------------------------------ expect
-  const expect: NormalizedSpec['expect'] = {};
+  const expect: NormalizedSpec['expect'] = Object.create(null);
   if (raw.expect !== undefined) {
     if (!isObj(raw.expect)) c.type(['expect'], 'an object { "model": { "param": { "value": …, "tol": … } } }', raw.expect);
     else {
@@ -372,7 +390,7 @@ export function validateSpec(raw: unknown, ctx: ValidateContext): ValidateResult
           continue;
         }
         const known = paramsByModel.get(mname);
-        const out: Record<string, { value: number; tol: number } | { value: number; rel: number }> = {};
+        const out: Record<string, { value: number; tol: number } | { value: number; rel: number }> = Object.create(null);
         const grouped = isObj(raw.data) && raw.data.groupBy !== undefined;
         for (const [pname, e] of Object.entries(entries)) {
           const qp = [...q, pname];
@@ -406,14 +424,19 @@ export function validateSpec(raw: unknown, ctx: ValidateContext): ValidateResult
   }
 
   // ------------------------------------------------------------------ thresholds
-  const thresholds: NormalizedSpec['thresholds'] = {};
+  const thresholds: NormalizedSpec['thresholds'] = Object.create(null);
   if (raw.thresholds !== undefined) {
     if (!isObj(raw.thresholds)) c.type(['thresholds'], 'an object of threshold names and numbers', raw.thresholds);
     else {
       c.keys(raw.thresholds, THRESHOLD_KEYS, ['thresholds'], 'thresholds');
       for (const k of THRESHOLD_KEYS) {
-        const v = c.num(raw.thresholds, k, ['thresholds'], { min: 0 });
-        if (v !== undefined) thresholds[k] = v;
+        const v = c.num(raw.thresholds, k, ['thresholds'], { integer: THRESHOLD_RANGES[k].integer });
+        if (v === undefined) continue;
+        const r = THRESHOLD_RANGES[k];
+        const low = r.lowOpen ? v <= r.min : v < r.min;
+        const high = r.max !== undefined && (r.highOpen ? v >= r.max : v > r.max);
+        if (low || high) c.add('spec-range', ['thresholds', k], `thresholds.${k} must be ${r.text}, not ${v} — e.g. ${r.example}`);
+        else thresholds[k] = v;
       }
     }
   }
@@ -496,7 +519,7 @@ function checkData(c: Checker, ctx: ValidateContext, d: Obj, specDir: string, se
   const file = c.str(d, 'file', P, { required: 'the CSV file, relative to the spec file, e.g. "culture-b.csv"', nonEmpty: true });
 
   // variables bound by x
-  const x: Record<string, string> = {};
+  const x: Record<string, string> = Object.create(null);
   let variables: string[] = [];
   const rx = d.x;
   if (rx === undefined) c.required(['data', 'x'], 'the x column or expression, e.g. "hours" (or { "t": "hours", "T": "temp_c" } for several)');
@@ -578,7 +601,7 @@ function checkData(c: Checker, ctx: ValidateContext, d: Obj, specDir: string, se
   // expressions
   const label = ctx.dataLabel ?? (file !== undefined ? file : undefined);
   const ectx = { ...ctx, dataLabel: label };
-  const nx: Record<string, string> = {};
+  const nx: Record<string, string> = Object.create(null);
   if (typeof rx === 'string') {
     if (rx.trim() === '') c.add('spec-type', ['data', 'x'], 'data.x is empty — write a column name, e.g. "hours"');
     else {
@@ -633,7 +656,7 @@ function checkModel(c: Checker, ctx: ValidateContext, m: unknown, i: number, var
   }
   const errorsBefore = c.errors;
   c.keys(m, MODEL_KEYS, P, `models[${i}]`);
-  const name = c.str(m, 'name', P, { required: 'a unique name for this model, e.g. "logistic"', nonEmpty: true });
+  const name = c.str(m, 'name', P, { required: 'a unique name for this model, e.g. "logistic"', nonEmpty: true })?.normalize('NFC');
   if (name !== undefined) {
     const first = seen.get(name);
     if (first !== undefined) c.add('spec-duplicate-name', [...P, 'name'], `model name '${name}' is already used by models[${first}] — names must be unique`);
@@ -684,6 +707,8 @@ function checkModel(c: Checker, ctx: ValidateContext, m: unknown, i: number, var
         formulaSpans = new Map();
         for (const id of formulaIdentifiers(f)) if (!formulaSpans.has(id.name)) formulaSpans.set(id.name, id.span.start);
         if (params.length === 0) c.add('spec-formula', [...P, 'formula'], `the formula of ${who} has no parameters to fit — every name in it is a variable or constant`);
+        for (const pn of params.filter((n) => FORBIDDEN_KEYS.includes(n)))
+          c.add('spec-reserved-name', [...P, 'formula'], `'${pn}' cannot be a parameter name in the formula of ${who}: ${FORBIDDEN_KEYS.join(', ')} are reserved — rename it, e.g. '${pn.replace(/_/g, '')}1'`, { charIndex: formulaSpans.get(pn) });
         // a formula written in x while data.x binds other names: x would silently become a fitted parameter
         if (params.includes('x') && !variables.includes('x'))
           c.add(
@@ -708,8 +733,13 @@ function checkModel(c: Checker, ctx: ValidateContext, m: unknown, i: number, var
     }
   }
 
+  if (params && params.length > LIMITS.params) {
+    c.add('spec-limit', [...P, kind === 'polynomial' ? 'polynomial' : 'formula'], `${who} has ${params.length} parameters; the limit is ${LIMITS.params} per model — use fewer parameters (fix some, or split the model)`);
+    params = undefined;
+  }
+
   // params
-  const nparams: Record<string, ParamSpec> = {};
+  const nparams: Record<string, ParamSpec> = Object.create(null);
   const rp = m.params;
   if (rp !== undefined) {
     if (!isObj(rp)) c.type([...P, 'params'], 'an object { "K": { "start": …, "min": …, "max": …, "fixed": … } }', rp);

@@ -459,7 +459,23 @@ export function analyzeModel(input: ModelAnalysisInput): ModelReport {
     const inv = computeInverse(pctx, yv);
     report.inverse.push(inv);
     const [lo, hi] = ranges[0];
-    if (inv.roots.length === 0) {
+    if (inv.flat)
+      problems.push({
+        code: 'inverse-flat',
+        severity: 'warning',
+        message: `${input.name}: the curve is flat at y = ${fmt(yv)} over [${fmt(inv.flat[0])}, ${fmt(inv.flat[1])}], so no single x reads off there — solve for a value the curve crosses, or fit a model that changes with ${input.variables[0]}.`,
+        path: ['solveFor', k],
+      });
+    if (inv.moreRoots)
+      problems.push({
+        code: 'inverse-many-roots',
+        severity: 'warning',
+        message: `${input.name} crosses y = ${fmt(yv)} ${inv.roots.length + inv.moreRoots} times; the first ${inv.roots.length} are listed (the limit per value) — a curve that oscillates this much is rarely a usable calibration.`,
+        path: ['solveFor', k],
+      });
+    if (inv.flat && inv.roots.length === 0) {
+      // said above
+    } else if (inv.roots.length === 0) {
       problems.push({
         code: 'inverse-no-root',
         severity: 'warning',

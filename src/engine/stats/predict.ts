@@ -3,6 +3,7 @@
 // with an interval from inverting the prediction band (the x whose prediction interval contains y0).
 import type { CompiledFormula } from '../formula/types';
 import type { BandReport, InverseReport, PredictionReport } from '../report';
+import { LIMITS } from '../spec/limits';
 import { brent, bisectBoundary } from './roots';
 
 /** What the prediction code needs about a fitted model. */
@@ -184,16 +185,25 @@ export function computeInverse(ctx: PredictionContext, y0: number): InverseRepor
     xv[0] = x;
     return ctx.compiled.at(ctx.theta, xv);
   };
+  // f within this of y0 counts as equal (a constant curve fitted to constant y is y0 up to rounding)
+  const flatTol = 1e-12 * Math.max(1, Math.abs(y0));
+  let flat: [number, number] | null = null;
   const findRoots = (a: number, b: number, m: number): number[] => {
     const grid = bandGrid(a, b, m);
     const roots: number[] = [];
     let prevX = grid[0];
     let prevG = f(prevX) - y0;
+    if (Math.abs(prevG) <= flatTol) prevG = 0;
     if (prevG === 0) roots.push(prevX);
     for (let i = 1; i < grid.length; i++) {
       const x = grid[i];
-      const g = f(x) - y0;
-      if (g === 0) roots.push(x);
+      let g = f(x) - y0;
+      if (Math.abs(g) <= flatTol) g = 0;
+      if (g === 0 && prevG === 0) {
+        // two neighbouring grid points on y0: the curve is flat there, a segment rather than roots
+        if (roots.length > 0 && roots[roots.length - 1] === prevX) roots.pop();
+        flat = flat ? [Math.min(flat[0], prevX), Math.max(flat[1], x)] : [prevX, x];
+      } else if (g === 0) roots.push(x);
       else if (Number.isFinite(g) && Number.isFinite(prevG) && prevG !== 0 && (g > 0) !== (prevG > 0)) {
         const r = brent((t) => f(t) - y0, prevX, x, 1e-13);
         // a sign change across a pole is not a root: require the curve to actually reach y0 there
@@ -206,11 +216,16 @@ export function computeInverse(ctx: PredictionContext, y0: number): InverseRepor
   };
   let roots = findRoots(lo, hi, INVERSE_GRID);
   let extrapolated = false;
-  if (roots.length === 0) {
+  if (roots.length === 0 && (flat as [number, number] | null) === null) {
     const left = findRoots(extLo, lo, INVERSE_GRID / 2).filter((r) => r < lo);
     const right = findRoots(hi, extHi, INVERSE_GRID / 2).filter((r) => r > hi);
     roots = [...left, ...right];
     extrapolated = roots.length > 0;
+  }
+  if (flat) out.flat = flat;
+  if (roots.length > LIMITS.rootsPerValue) {
+    out.moreRoots = roots.length - LIMITS.rootsPerValue;
+    roots = roots.slice(0, LIMITS.rootsPerValue);
   }
   // outside the prediction band: h > 0
   const h = (x: number): number => {

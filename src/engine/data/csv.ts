@@ -7,6 +7,7 @@ import Papa from 'papaparse';
 import { suggest } from '../formula';
 import type { Problem } from '../report';
 import { DataError } from './errors';
+import { scanNumericRow, streamPlain } from './csvFast';
 import type { Table } from './types';
 
 export type Delimiter = 'auto' | ',' | ';' | '\t';
@@ -193,6 +194,8 @@ interface RowSink {
   header(fields: string[], line: number): boolean | void;
   /** called with each non-blank data row */
   row(fields: string[], line: number, lines: number): boolean | void;
+  /** optional numeric fast path for the plain data row s[a, b); returns false to have it handled by row() */
+  fast?(s: string, a: number, b: number, line: number, delimiter: string): boolean;
 }
 
 /** Streams the file through papaparse and calls the sink per row; resolves with hash and row counts. */
@@ -227,8 +230,8 @@ function streamRows(file: string, opts: ReadOptions & { maxBytes?: number; maxLi
       settled = true;
       resolve({ hash: text.digest(), bytes: text.bytes, sawHeader });
     };
-    const stop = (parser: Papa.Parser) => {
-      parser.abort();
+    const stop = (parser?: Papa.Parser) => {
+      parser?.abort();
       input.destroy();
       if (!settled) {
         settled = true;
@@ -237,8 +240,20 @@ function streamRows(file: string, opts: ReadOptions & { maxBytes?: number; maxLi
       }
     };
 
+    /** one row of fields from either path; false: stop reading */
+    const handle = (fields: string[], at: number, lines: number): boolean => {
+      const blank = fields.length === 1 && fields[0].trim() === '';
+      if (blank) return true;
+      if (!sawHeader) {
+        sawHeader = true;
+        return !(sink.header(fields, at) === false || opts.headerOnly);
+      }
+      return sink.row(fields, at, lines) !== false;
+    };
+
     const config = {
       header: false,
+      newline: undefined as string | undefined,
       skipEmptyLines: false,
       dynamicTyping: false,
       // papaparse calls a delimiter function with the first chunk: detect from the first non-blank line
@@ -268,14 +283,7 @@ function streamRows(file: string, opts: ReadOptions & { maxBytes?: number; maxLi
               return;
             }
           }
-          const blank = fields.length === 1 && fields[0].trim() === '';
-          if (blank) return;
-          if (!sawHeader) {
-            sawHeader = true;
-            if (sink.header(fields, at) === false || opts.headerOnly) stop(parser);
-            return;
-          }
-          if (sink.row(fields, at, 1 + spanned) === false) stop(parser);
+          if (!handle(fields, at, 1 + spanned)) stop(parser);
         } catch (e) {
           fail(e);
           parser.abort();
@@ -285,8 +293,32 @@ function streamRows(file: string, opts: ReadOptions & { maxBytes?: number; maxLi
       complete: () => finish(),
       error: (e: Error) => fail(e),
     };
-    // papaparse reads a Node readable stream (here: strings in object mode) chunk by chunk
-    (Papa.parse as unknown as (input: unknown, config: unknown) => void)(text, config);
+    // plain lines go through the numeric fast path; from the first line with a quote or a stray carriage return on,
+    // papaparse reads the rest (a Node readable stream of strings) with the same delimiter and line break
+    streamPlain(text, {
+      delimiter: (chunk) => config.delimiter(chunk),
+      line: (s, a, b) => {
+        if (settled) return 'stop';
+        const at = line;
+        if (sawHeader && sink.fast && sink.fast(s, a, b, at, delimiter as string)) {
+          line++;
+          return 'next';
+        }
+        const str = s.slice(a, b);
+        if (str.includes('"') || str.includes('\r')) return 'general';
+        line++;
+        if (handle(str.split(delimiter as string), at, 1)) return 'next';
+        stop();
+        return 'stop';
+      },
+      general: (rest, _delimiter, nl) => {
+        config.newline = nl;
+        newline = nl;
+        (Papa.parse as unknown as (input: unknown, config: unknown) => void)(rest, config);
+      },
+      end: () => finish(),
+      error: (e) => fail(e),
+    });
   });
 }
 
@@ -360,6 +392,8 @@ export async function readTable(file: string, opts: ReadTableOptions): Promise<T
   let index: number[] = [];
   let textIndex: number[] = [];
   const textOut: string[][] = wantedText.map(() => []);
+  let want = new Int32Array(0);
+  const decimalCode = decimal.charCodeAt(0);
   const buffers = wanted.map(() => new Growing(new Float64Array(1024), (n) => new Float64Array(n)));
   const rowsOut = new Growing(new Int32Array(1024), (n) => new Int32Array(n));
   const linesOut = new Growing(new Int32Array(1024), (n) => new Int32Array(n));
@@ -399,6 +433,10 @@ export async function readTable(file: string, opts: ReadTableOptions): Promise<T
       index = wanted.map((c) => header.indexOf(c));
       textIndex = wantedText.map((c) => header.indexOf(c));
       const missing = [...wanted.filter((_, k) => index[k] === -1), ...wantedText.filter((c, k) => textIndex[k] === -1 && !wanted.includes(c))];
+      want = new Int32Array(header.length).fill(-1);
+      index.forEach((ix, k) => {
+        if (ix >= 0) want[ix] = k;
+      });
       if (missing.length > 0) {
         const parts = missing.map((m) => {
           const s = suggest(m, header);
@@ -408,6 +446,14 @@ export async function readTable(file: string, opts: ReadTableOptions): Promise<T
         const hint = header.length === 1 && /[,;\t]/.test(header[0]) ? ' — the delimiter may be wrong: set data.delimiter' : '';
         throw new DataError(`${label} has no column ${parts.join(', ')} — its columns are ${shown}${hint}`, { file: label, line, column: missing[0] });
       }
+    },
+    fast: (s, a, b, line, delimiter) => {
+      if (ragged.length > 0 || wantedText.length > 0 || !scanNumericRow(s, a, b, delimiter.charCodeAt(0), decimalCode, header.length, want, values)) return false;
+      dataRow++;
+      for (let k = 0; k < wanted.length; k++) buffers[k].push(values[k]);
+      rowsOut.push(dataRow);
+      linesOut.push(line);
+      return true;
     },
     row: (fields, line) => {
       dataRow++;

@@ -14,7 +14,7 @@ export interface JointFormula {
   text: string;
   /** the indicator variables, one per group, in the groups' order */
   indicators: string[];
-  /** the joint model's parameters: shared ones as named, the others name[<id>] per group */
+  /** the joint model's parameters: shared ones as named (first), the others name[<id>] per group */
   params: string[];
 }
 
@@ -38,11 +38,10 @@ export function jointFormula(formula: string, params: string[], shared: string[]
     at = u.span.end;
   }
   text += formula.slice(at);
-  const out: string[] = [];
-  for (const p of params) {
-    if (perGroup.has(p)) for (const id of ids) out.push(groupParam(p, id));
-    else out.push(p);
-  }
+  // the shared parameters first (in the model's order), then each per-group parameter group by group: with many
+  // groups the profile-likelihood budget is spent on the common parameters before the per-group ones
+  const out: string[] = params.filter(p => !perGroup.has(p));
+  for (const p of params) if (perGroup.has(p)) for (const id of ids) out.push(groupParam(p, id));
   return { text, indicators, params: out };
 }
 
@@ -82,5 +81,5 @@ export function jointModelSpec(
       });
     }
   }
-  return { name, formula: joint.text, params: out };
+  return { name, formula: joint.text, params: Object.fromEntries(joint.params.map(k => [k, out[k]])) };
 }

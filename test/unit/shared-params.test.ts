@@ -44,7 +44,7 @@ describe('models[].shared: joint fit of the groups', function () {
     assert.equal(joint.length, 1);
     assert.equal(joint[0].group, null);
     assert.deepEqual(joint[0].shared, ['r', 'x0']);
-    assert.deepEqual(joint[0].paramOrder, ['K[R1]', 'K[R2]', 'K[R3]', 'r', 'x0']);
+    assert.deepEqual(joint[0].paramOrder, ['r', 'x0', 'K[R1]', 'K[R2]', 'K[R3]']);
     assert.equal(joint[0].status, 'converged');
     assert.equal(grouped.models.filter(m => m.name === 'sep').length, 3);
     const hand = ok(await run({ 'd.csv': text }, {

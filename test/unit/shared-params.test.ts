@@ -8,6 +8,7 @@ import * as path from 'path';
 import { runSpecFile } from '../../src/engine/run';
 import { isErrorReport, type FitReport, type RunResult } from '../../src/engine/report';
 import { mulberry32, normalSource } from '../../scripts/generate-demo';
+import { summaryText } from '../../src/cli/format';
 
 function csv(rates: number[]): string {
   const rand = normalSource(mulberry32(5));
@@ -74,6 +75,9 @@ describe('models[].shared: joint fit of the groups', function () {
     assert.ok(Math.abs(s[0].F! - F) <= 1e-12 * Math.max(1, F));
     assert.ok(s[0].p! > 0.05, `same rate in every group: p = ${s[0].p}`);
     assert.match(s[0].verdict, /consistent with one common r and x0/);
+    const summary = summaryText(grouped, 's.fitspec.json', null);
+    assert.match(summary, /all \(joint\) +common +converged +r=/);
+    assert.match(summary, /shared r, x0 \(common vs sep\): F = .* on 4 and \d+ df, p = .*consistent with one common r and x0/);
   });
 
   it('finds rates that differ, and fits the separate baseline internally when the spec has none', async () => {

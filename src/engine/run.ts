@@ -576,11 +576,13 @@ function expectTargets(param: string, groups: string[] | null): { param: string;
 
 function checkExpectations(spec: NormalizedSpec, models: ModelReport[]): ExpectResult[] {
   const out: ExpectResult[] = [];
-  const groupIds = spec.data.groupBy ? [...new Set(models.map(m => m.group as string))] : null;
+  const groupIds = spec.data.groupBy ? [...new Set(models.filter(m => typeof m.group === 'string').map(m => m.group as string))] : null;
   for (const [modelName, params] of Object.entries(spec.expect ?? {})) {
+    // a joint fit (models[].shared) has one entry whose parameters are keyed as expect writes them: 'r', 'K[R1]'
+    const joint = models.find(m => m.name === modelName && m.group === null);
     for (const [key, e] of Object.entries(params)) {
-      for (const { param, group } of expectTargets(key, groupIds)) {
-        const model = models.find(m => m.name === modelName && m.group === group);
+      for (const { param, group } of joint ? [{ param: key, group: undefined }] : expectTargets(key, groupIds)) {
+        const model = joint ?? models.find(m => m.name === modelName && m.group === group);
         const pr = model?.params[param];
         const actual = pr && Number.isFinite(pr.value) && model!.status === 'converged' ? pr.value : null;
         const r: ExpectResult = { model: modelName, ...(group !== undefined ? { group } : {}), param, value: e.value, actual: null, ok: false };

@@ -81,8 +81,14 @@ describe('models[].shared: joint fit of the groups', function () {
   });
 
   it('finds rates that differ, and fits the separate baseline internally when the spec has none', async () => {
-    const r = ok(await run({ 'd.csv': csv([0.2, 0.3, 0.45]) }, { data, models: [{ name: 'common', builtin: 'logistic3', shared: ['r'] }] }));
+    const r = ok(await run({ 'd.csv': csv([0.2, 0.3, 0.45]) }, {
+      data,
+      models: [{ name: 'common', builtin: 'logistic3', shared: ['r'] }],
+      expect: { common: { 'K[R2]': { value: 2.0, tol: 0.05 }, r: { value: 99, tol: 1 } } },
+    }));
     assert.equal(r.models.length, 1);
+    assert.deepEqual(r.expect.map(e => [e.param, e.ok]), [['K[R2]', true], ['r', false]]);
+    assert.ok(Math.abs(r.expect[0].actual! - r.models[0].params['K[R2]'].value) === 0);
     const s = r.comparison!.sharing![0];
     assert.equal(s.separate, null);
     assert.equal(s.df1, 9 - 7);

@@ -301,7 +301,7 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
 
   // 4b. a joint fit of all groups with the parameters in m.shared common (see joint.ts)
   const fitJoint = (m: NormalizedSpec['models'][number], separate: (ModelReport | null)[], ids: string[], of: Int32Array | number[]): { report: ModelReport } | ErrorReport => {
-    const written = asWritten(m, parsed.raw);
+    const written = m;
     const shared = m.shared!;
     const P: JsonPath = ['models', m.index];
     let base: ReturnType<typeof buildModel>;
@@ -373,7 +373,6 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
     for (let j = 0; j < G.of.length; j++) members[G.of[j]].push(j);
     groups = G.ids.map((id, g) => ({ id, key: G.keys[g], rows: G.rows[g], used: members[g].length }));
     const byGroup: Record<string, GroupComparison> = {};
-    const separateOf = new Map<number, (ModelReport | null)[]>();
     const hiddenOf = new Map<number, (ModelReport | null)[]>();
     for (let g = 0; g < G.ids.length; g++) {
       if (opts.shouldStop?.()) break;

@@ -83,6 +83,11 @@ export function fitspecSchema(): Schema {
         additionalProperties: param,
       },
       solver,
+      shared: arr(
+        'With data.groupBy: parameters common to all groups. The model is fitted once to all groups together (one residual vector, one covariance); every other parameter gets one value per group, reported as name[<group id>], e.g. K[R1].',
+        { type: 'string', minLength: 1 },
+        { minItems: 1, uniqueItems: true },
+      ),
     },
     required: ['name'],
     additionalProperties: false,
@@ -360,7 +365,8 @@ export function fitreportSchema(): Schema {
   const matrix = (d: string): Schema => ({ description: d, oneOf: [{ type: 'null' }, arr(d, arr('A row.', { type: ['number', 'null'] }))] });
   const modelReport = obj('Results of one model.', {
     name: str('Model name from the spec.'),
-    group: str('With data.groupBy: the id of the group this fit belongs to.'),
+    group: { type: ['string', 'null'], description: 'With data.groupBy: the id of the group this fit belongs to; null for a joint fit of all groups (models[].shared).' },
+    shared: arr('A joint fit of all groups: the parameters common to all groups; the others are keyed name[<group id>].', { type: 'string' }),
     kind: { type: 'string', enum: ['builtin', 'polynomial', 'formula'], description: 'How the model was defined.' },
     formula: str('The formula as fitted.'),
     linear: bool('Linear in its parameters (solved directly).'),
@@ -421,6 +427,18 @@ export function fitreportSchema(): Schema {
             reason: str('Why, in words.'),
           }, ['ranking', 'fTests', 'best', 'reason']),
         },
+        sharing: arr('With models[].shared: each joint fit tested against the separate fits of the same model.', obj('One extra-sum-of-squares F-test of shared parameters.', {
+          model: str('The model with shared parameters (its joint fit).'),
+          separate: { type: ['string', 'null'], description: 'The spec model of the same builtin/polynomial/formula without shared whose per-group fits are the baseline; null when the baseline was fitted internally.' },
+          shared: arr('The shared parameters.', { type: 'string' }),
+          F: nnum('F statistic: ((SSE_joint - SSE_separate)/df1) / (SSE_separate/df2).'),
+          df1: int('Parameters of the separate fits minus those of the joint fit.'),
+          df2: int('Residual degrees of freedom of the separate fits (summed over groups).'),
+          p: nnum('Upper-tail p-value of F.'),
+          aiccShared: nnum('AICc of the joint fit.'),
+          aiccSeparate: nnum('AICc of the separate fits taken together: pooled SSE, all their parameters and one common sigma, on the joint fit\'s rows.'),
+          verdict: str('The result in words.'),
+        }, ['model', 'separate', 'shared', 'F', 'df1', 'df2', 'p', 'aiccShared', 'aiccSeparate', 'verdict'])),
       }, ['ranking', 'fTests', 'best', 'reason']),
     ],
   };

@@ -105,8 +105,8 @@ export function summaryText(r: FitReport, specShown: string, written: string | n
     const status = m.status === 'converged' ? 'converged' : `FAILED (${m.termination})`;
     const counted = m.problems.filter(p => p.severity !== 'info').length;
     const best = grouped ? r.comparison?.byGroup?.[m.group as string]?.best === m.name : r.best === m.name;
-    const [first, ...rest] = paramLines(m);
-    rows.push([best ? '*' : '', ...(grouped ? [m.group ?? ''] : []), m.name, status, first, num(m.stats.aicc, 5), num(m.stats.r2, 5), String(counted)]);
+    const [first, ...rest] = m.group === null ? jointParamLines(m, r.groups?.length ?? 0) : paramLines(m);
+    rows.push([best ? '*' : '', ...(grouped ? [m.group === null ? 'all (joint)' : m.group ?? ''] : []), m.name, status, first, num(m.stats.aicc, 5), num(m.stats.r2, 5), String(counted)]);
     for (const more of rest) rows.push(['', ...(grouped ? [''] : []), '', '', more, '', '', '']);
   }
   out.push(...table(rows));
@@ -118,6 +118,11 @@ export function summaryText(r: FitReport, specShown: string, written: string | n
     const tally = new Map<string, number>();
     for (const c of Object.values(r.comparison.byGroup)) if (c.best) tally.set(c.best, (tally.get(c.best) ?? 0) + 1);
     if (tally.size) out.push(`  best within groups: ${[...tally.entries()].map(([k, v]) => `${k} in ${v} of ${r.groups!.length}`).join(', ')}`);
+  }
+  for (const t of r.comparison?.sharing ?? []) {
+    const test = t.F !== null && t.p !== null ? `F = ${num(t.F)} on ${t.df1} and ${t.df2} df, p = ${num(t.p, 3)}; ` : '';
+    const ic = t.aiccShared !== null && t.aiccSeparate !== null ? `AICc ${num(t.aiccShared, 5)} joint vs ${num(t.aiccSeparate, 5)} separate; ` : '';
+    out.push(`  shared ${t.shared.join(', ')} (${t.model} vs ${t.separate ?? 'separate fits'}): ${test}${ic}${t.verdict}`);
   }
   for (const t of r.comparison?.fTests ?? []) {
     out.push(`  F-test ${t.simpler} vs ${t.richer}: F = ${num(t.F)} on ${t.df1} and ${t.df2} df, p = ${num(t.p, 3)}`);
@@ -187,9 +192,27 @@ function groupByText(r: FitReport): string {
   return first ? `by ${Object.keys(first.key).join(' / ')}` : 'none';
 }
 
-/** The rows of a long grouped table that are shown: every failed fit first (up to the limit), then the first groups' fits. */
+/**
+ * Parameters of a joint fit (models[].shared): every parameter up to 8 groups; beyond, the shared ones with SE and
+ * each per-group parameter as its range across groups.
+ */
+function jointParamLines(m: ModelReport, groups: number): string[] {
+  if (groups <= 8) return paramLines(m);
+  const shared = new Set(m.shared ?? []);
+  const lines = paramLines({ ...m, paramOrder: m.paramOrder.filter(n => shared.has(n)) });
+  const per = new Map<string, number[]>();
+  for (const n of m.paramOrder) {
+    const k = /^(.+)\[(.+)\]$/.exec(n);
+    if (k && !shared.has(n)) per.set(k[1], [...(per.get(k[1]) ?? []), m.params[n]?.value ?? NaN]);
+  }
+  for (const [n, v] of per) lines.push(`${n}[·]: ${v.length} values, ${num(Math.min(...v))} to ${num(Math.max(...v))}`);
+  return lines;
+}
+
+/** The rows of a long grouped table that are shown: joint fits and failed fits first (up to the limit), then the first groups' fits. */
 function foldedModels(r: FitReport): ModelReport[] {
   const keep = new Set<ModelReport>();
+  for (const m of r.models) if (m.group === null) keep.add(m);
   for (const m of r.models) if (m.status !== 'converged' && keep.size < MAX_GROUP_ROWS / 2) keep.add(m);
   for (const m of r.models) if (keep.size < MAX_GROUP_ROWS) keep.add(m);
   return r.models.filter(m => keep.has(m));

@@ -29,6 +29,8 @@ export interface ModelSpec {
   formula?: string;
   params?: Record<string, ParamSpec>;
   solver?: SolverSpec;
+  /** with data.groupBy: parameters common to all groups; the model is fitted once to all groups together */
+  shared?: string[];
 }
 
 export interface ExcludeSpec {
@@ -277,8 +279,10 @@ export interface InverseReport {
 /** Everything known about one fitted model: how the solver ended, parameters, statistics, diagnostics and problems. */
 export interface ModelReport {
   name: string;
-  /** with data.groupBy: the id of the group this fit belongs to */
-  group?: string;
+  /** with data.groupBy: the id of the group this fit belongs to; null for a joint fit of all groups (shared) */
+  group?: string | null;
+  /** a joint fit of all groups: the parameters common to all groups (the others are keyed name[<id>]) */
+  shared?: string[];
   kind: 'builtin' | 'polynomial' | 'formula';
   /** the formula as fitted, in the formula language */
   formula: string;
@@ -318,6 +322,24 @@ export interface ComparisonReport {
   reason: string;
   /** with data.groupBy: the usual comparison within each group, by group id */
   byGroup?: Record<string, GroupComparison>;
+  /** with models[].shared: each joint fit against the separate fits of the same model */
+  sharing?: SharingTest[];
+}
+
+/** Extra-sum-of-squares F-test of a joint fit (shared parameters) against the separate fits of the same model. */
+export interface SharingTest {
+  model: string;
+  /** the spec model fitted separately per group it is tested against, or null when fitted internally for the test */
+  separate: string | null;
+  shared: string[];
+  F: number | null;
+  df1: number;
+  df2: number;
+  p: number | null;
+  aiccShared: number | null;
+  /** from the separate fits' pooled SSE and total parameter count (see docs/fitspec.md) */
+  aiccSeparate: number | null;
+  verdict: string;
 }
 
 /** The comparison of the models within one group. */

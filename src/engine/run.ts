@@ -14,6 +14,7 @@ import {
   type FileLocation,
   type FitReport,
   type GroupComparison,
+  type SharingTest,
   type GroupReport,
   type JsonPath,
   type ModelReport,
@@ -33,6 +34,8 @@ import { analyzeModel, compareModels, dataCorrelation, resolveThresholds } from 
 import type { AnalysisOptions, ModelAnalysisInput } from './stats/api';
 import { sidecarPath, splitReport, type OutputPoints } from './pointsFile';
 import { derivedFor } from './stats/derived';
+import { jointFormula, jointModelSpec } from './joint';
+import { sharingTest } from './stats/sharing';
 import { DEFAULTS } from './spec/defaults';
 import { cleanStaleTemps, inputRefusal, outputRefusal as pathOutputRefusal, realOrSelf, tmpName } from './paths';
 
@@ -215,9 +218,10 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
   const correlationProblems = hasLine || spec.data.groupBy ? [] : correlated.problems;
 
   // 4. models (with data.groupBy: every model on every group, group by group, in the groups' order)
-  type Fitted = { models: ModelReport[]; analysed: { input: ModelAnalysisInput; report: ModelReport }[] };
+  type Fitted = { models: ModelReport[]; analysed: { input: ModelAnalysisInput; report: ModelReport }[]; hidden: { index: number; report: ModelReport }[] };
   const fitAll = (sub: Subset, group?: string): Fitted | ErrorReport => {
     const models: ModelReport[] = [];
+    const hidden: Fitted['hidden'] = [];
     const analysed: Fitted['analysed'] = [];
     const inGroup = group !== undefined ? ` in group '${group}'` : '';
     for (let i = 0; i < spec.models.length; i++) {
@@ -237,7 +241,7 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
       }
       const free = built.fixed.filter(f => !f).length;
       if (group !== undefined && sub.y.length < free) {
-        models.push(tooFewRows(m, i, built, sub.y.length, free, group));
+        if (!m.shared) models.push(tooFewRows(m, i, built, sub.y.length, free, group));
         continue;
       }
       try {
@@ -282,13 +286,66 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
           options: { ...ANALYSIS_DEFAULTS, ...opts.analysis },
         };
         const report = withGroup(analyzeModel(input), group);
-        models.push(report);
-        analysed.push({ input, report });
+        // a shared model's separate fits are not reported: they start its joint fit and are its sharing test's baseline
+        if (group !== undefined && m.shared) hidden.push({ index: i, report });
+        else {
+          models.push(report);
+          analysed.push({ input, report });
+        }
       } catch (e) {
-        models.push(withGroup(failedModel(m, i, e, `fitting model '${m.name}'${inGroup}`, built), group));
+        if (!m.shared) models.push(withGroup(failedModel(m, i, e, `fitting model '${m.name}'${inGroup}`, built), group));
       }
     }
-    return { models, analysed };
+    return { models, analysed, hidden };
+  };
+
+  // 4b. a joint fit of all groups with the parameters in m.shared common (see joint.ts)
+  const fitJoint = (m: NormalizedSpec['models'][number], separate: (ModelReport | null)[], ids: string[], of: Int32Array | number[]): { report: ModelReport } | ErrorReport => {
+    const written = m;
+    const shared = m.shared!;
+    const P: JsonPath = ['models', m.index];
+    let base: ReturnType<typeof buildModel>;
+    let built: ReturnType<typeof buildModel>;
+    let jf: ReturnType<typeof jointFormula>;
+    try {
+      base = buildModel(written, prepared.variables, { X: prepared.X, y: prepared.y });
+      jf = jointFormula(base.formula, base.params, shared, ids, prepared.variables);
+      const starts = separate.map(r => (r && r.status === 'converged' ? Object.fromEntries(Object.entries(r.params).map(([k, v]) => [k, v.value])) : null));
+      const jointSpec = jointModelSpec(m.name, jf, base.params, shared, ids, written.params, starts);
+      built = buildModel({ ...jointSpec, kind: 'formula', index: m.index, solver: m.solver } as NormalizedSpec['models'][number], [...prepared.variables, ...jf.indicators], { X: prepared.X, y: prepared.y });
+    } catch (e) {
+      if (e instanceof FormulaError || e instanceof DataError || isUserError(e))
+        return errorReport(name, `model '${m.name}' (joint fit of the groups): ${(e as Error).message}`, { path: P, location: locationOf(text, name, P) });
+      return { report: { ...failedModel(m, m.index, e, 'building the joint fit of the groups'), group: null, shared } };
+    }
+    const indicatorX = jf.indicators.map((_, g) => {
+      const col = new Float64Array(prepared.y.length);
+      for (let j = 0; j < col.length; j++) col[j] = of[j] === g ? 1 : 0;
+      return col;
+    });
+    const X = [...prepared.X, ...indicatorX];
+    const fitData = { X, y: prepared.y, w: wFit };
+    try {
+      const result = fitModel(built, fitData, { maxIterations: m.solver.maxIterations, seconds: m.solver.seconds, multiStart: m.solver.multiStart, seed: RUN_SEED, shouldStop: opts.shouldStop });
+      const input: ModelAnalysisInput = {
+        index: m.index, name: m.name, kind: built.kind, formula: built.formula, builtin: undefined, degree: undefined,
+        compiled: built.compiled, params: built.params, lower: built.lower, upper: built.upper, fixed: built.fixed,
+        linear: built.compiled.linear, variables: [...prepared.variables, ...jf.indicators], X, y: prepared.y, w: wFit,
+        count: prepared.count, precision: prepared.w, rows: prepared.rows, sigmaMode: spec.data.sigmaMode, result,
+        startValues: result.startValues, startSource: result.startSource, confidence: spec.confidence,
+        // predictions and inverse predictions need a group: not computed for a joint fit (see docs/fitspec.md)
+        predict: [], solveFor: [], predictWeight: spec.predictWeight, thresholds,
+        solverOptions: { maxIterations: m.solver.maxIterations, seconds: m.solver.seconds },
+        shouldStop: opts.shouldStop, options: { ...ANALYSIS_DEFAULTS, ...opts.analysis },
+      };
+      const r = analyzeModel(input);
+      // the report speaks of the model as written: its formula and kind, the x variables without the group indicators
+      if (r.points) r.points.x = Object.fromEntries(Object.entries(r.points.x).filter(([k]) => prepared.variables.includes(k)));
+      const { name: rn, ...rest } = r;
+      return { report: { name: rn, group: null, shared, ...rest, kind: base.kind, formula: base.formula } as ModelReport };
+    } catch (e) {
+      return { report: { ...failedModel(m, m.index, e, `fitting model '${m.name}' to all groups jointly`, built), group: null, shared } };
+    }
   };
 
   // 5. comparison (with groups: within each group)
@@ -316,11 +373,16 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
     for (let j = 0; j < G.of.length; j++) members[G.of[j]].push(j);
     groups = G.ids.map((id, g) => ({ id, key: G.keys[g], rows: G.rows[g], used: members[g].length }));
     const byGroup: Record<string, GroupComparison> = {};
+    const hiddenOf = new Map<number, (ModelReport | null)[]>();
     for (let g = 0; g < G.ids.length; g++) {
       if (opts.shouldStop?.()) break;
       const fitted = fitAll(subset(prepared, members[g]), G.ids[g]);
       if ('error' in fitted) return fitted;
       models.push(...fitted.models);
+      for (const h of fitted.hidden) {
+        if (!hiddenOf.has(h.index)) hiddenOf.set(h.index, G.ids.map(() => null));
+        hiddenOf.get(h.index)![g] = h.report;
+      }
       const c = compare(fitted.analysed, ` in group '${G.ids[g]}'`);
       byGroup[G.ids[g]] = c ?? { ranking: [], fTests: [], best: null, reason: `No model could be fitted in group '${G.ids[g]}', so none can be recommended.` };
     }
@@ -331,6 +393,21 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
       reason: `${G.ids.length} group${G.ids.length === 1 ? '' : 's'} fitted separately: the comparison within each group is in byGroup`,
       byGroup,
     };
+    // joint fits (models[].shared): one fit of all groups, after the separate fits that give its starts
+    const sharing: SharingTest[] = [];
+    for (const m of spec.models) {
+      if (!m.shared || opts.shouldStop?.()) continue;
+      const hiddenFits = hiddenOf.get(m.index) ?? G.ids.map(() => null);
+      progress(`fitting model ${m.index + 1} of ${spec.models.length}: ${m.name} (joint fit of ${G.ids.length} groups)`);
+      const joint = fitJoint(m, hiddenFits, G.ids, G.of);
+      if ('error' in joint) return joint;
+      models.push(joint.report);
+      // the separate fits it is tested against: the spec's model of the same builtin/polynomial/formula without shared
+      const twin = spec.models.find(o => !o.shared && o.kind === m.kind && o.builtin === m.builtin && o.polynomial === m.polynomial && o.formula === m.formula);
+      const sep = twin ? G.ids.map(id => models.find(r => r.name === twin.name && r.group === id) ?? null) : hiddenFits;
+      sharing.push(sharingTest(m.name, twin ? twin.name : null, m.shared, joint.report, sep, spec.data.sigmaMode === 'absolute'));
+    }
+    if (sharing.length) comparison.sharing = sharing;
   }
 
   // 6. expectations and derived quantities
@@ -498,11 +575,13 @@ function expectTargets(param: string, groups: string[] | null): { param: string;
 
 function checkExpectations(spec: NormalizedSpec, models: ModelReport[]): ExpectResult[] {
   const out: ExpectResult[] = [];
-  const groupIds = spec.data.groupBy ? [...new Set(models.map(m => m.group as string))] : null;
+  const groupIds = spec.data.groupBy ? [...new Set(models.filter(m => typeof m.group === 'string').map(m => m.group as string))] : null;
   for (const [modelName, params] of Object.entries(spec.expect ?? {})) {
+    // a joint fit (models[].shared) has one entry whose parameters are keyed as expect writes them: 'r', 'K[R1]'
+    const joint = models.find(m => m.name === modelName && m.group === null);
     for (const [key, e] of Object.entries(params)) {
-      for (const { param, group } of expectTargets(key, groupIds)) {
-        const model = models.find(m => m.name === modelName && m.group === group);
+      for (const { param, group } of joint ? [{ param: key, group: undefined }] : expectTargets(key, groupIds)) {
+        const model = joint ?? models.find(m => m.name === modelName && m.group === group);
         const pr = model?.params[param];
         const actual = pr && Number.isFinite(pr.value) && model!.status === 'converged' ? pr.value : null;
         const r: ExpectResult = { model: modelName, ...(group !== undefined ? { group } : {}), param, value: e.value, actual: null, ok: false };

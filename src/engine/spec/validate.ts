@@ -38,7 +38,7 @@ export interface ValidateResult {
 
 const TOP_KEYS = ['$schema', 'title', 'data', 'models', 'confidence', 'predict', 'solveFor', 'predictWeight', 'output', 'outputPoints', 'expect', 'thresholds', 'derived'];
 const DATA_KEYS = ['file', 'x', 'y', 'sigma', 'weight', 'count', 'sigmaMode', 'where', 'exclude', 'delimiter', 'decimal', 'badRows', 'groupBy'];
-const MODEL_KEYS = ['name', 'builtin', 'polynomial', 'formula', 'params', 'solver'];
+const MODEL_KEYS = ['name', 'builtin', 'polynomial', 'formula', 'params', 'solver', 'shared'];
 const PARAM_KEYS = ['start', 'min', 'max', 'fixed'];
 const SOLVER_KEYS = ['maxIterations', 'multiStart', 'seconds'];
 const EXPECT_KEYS = ['value', 'tol', 'rel'];
@@ -277,7 +277,7 @@ export function validateSpec(raw: unknown, ctx: ValidateContext): ValidateResult
   else {
     const seen = new Map<string, number>();
     ms.forEach((m, i) => {
-      const nm = checkModel(c, ctx, m, i, variables, seen);
+      const nm = checkModel(c, ctx, m, i, variables, seen, isObj(raw.data) && raw.data.groupBy !== undefined);
       if (nm) {
         models.push(nm);
       }
@@ -648,7 +648,7 @@ function checkData(c: Checker, ctx: ValidateContext, d: Obj, specDir: string, se
   return out;
 }
 
-function checkModel(c: Checker, ctx: ValidateContext, m: unknown, i: number, variables: string[], seen: Map<string, number>): NormalizedModel | undefined {
+function checkModel(c: Checker, ctx: ValidateContext, m: unknown, i: number, variables: string[], seen: Map<string, number>, grouped: boolean): NormalizedModel | undefined {
   const P: JsonPath = ['models', i];
   if (!isObj(m)) {
     c.type(P, 'an object { "name": …, "builtin" | "polynomial" | "formula": … }', m);
@@ -809,8 +809,33 @@ function checkModel(c: Checker, ctx: ValidateContext, m: unknown, i: number, var
     }
   }
 
+  // shared: parameters common to all groups (a joint fit of the groups); needs data.groupBy
+  let shared: string[] | undefined;
+  if (m.shared !== undefined) {
+    const q: JsonPath = [...P, 'shared'];
+    if (!Array.isArray(m.shared) || m.shared.length === 0 || !m.shared.every((s) => typeof s === 'string' && s !== ''))
+      c.type(q, 'a non-empty list of parameter names, e.g. ["r", "x0"]', m.shared);
+    else if (new Set(m.shared).size !== m.shared.length) c.add('spec-shared', q, `models[${i}].shared names a parameter twice — list each once`);
+    else if (!grouped)
+      c.add('spec-shared', q, `models[${i}].shared holds parameters common to all groups, but data.groupBy is not set — add data.groupBy (the column that names the groups) or remove shared`);
+    else {
+      const known = modelParams(m, variables);
+      let ok = true;
+      (m.shared as string[]).forEach((s, k) => {
+        if (known && !known.includes(s)) {
+          c.add('spec-shared', [...q, k], `models[${i}].shared names '${s}', which is not a parameter of model '${String(m.name)}'${didYouMean(s, known)} (parameters: ${quoteList(known)})`);
+          ok = false;
+        }
+      });
+      if (ok && known && known.every((p) => (m.shared as string[]).includes(p)))
+        c.add('spec-shared', q, `models[${i}].shared names every parameter of the model, so nothing differs between groups — leave at least one parameter out of shared, or drop data.groupBy`);
+      else if (ok) shared = [...(m.shared as string[])];
+    }
+  }
+
   if (c.errors > errorsBefore || name === undefined || kind === undefined) return undefined;
   const out: NormalizedModel = { name, kind, index: i, solver };
+  if (shared) out.shared = shared;
   if (rp !== undefined) out.params = nparams;
   if (kind === 'builtin') out.builtin = m.builtin as string;
   if (kind === 'polynomial') out.polynomial = m.polynomial as number;

@@ -2,6 +2,7 @@
 import * as fs from 'fs';
 import * as path from 'path';
 import { suggestSpec, starterSpecText } from '../engine/starter';
+import { oneLine } from '../shared/terminalText';
 import { closest, UsageError, type Parsed } from './args';
 import { shown, writeAtomic, type Io } from './io';
 
@@ -15,6 +16,11 @@ export async function newCommand(parsed: Parsed, io: Io): Promise<number> {
     y: typeof parsed.options.y === 'string' ? parsed.options.y : undefined,
   };
   let suggestion;
+  // the spec does not exist yet: a missing data file is the argument's fault, not a spec key's
+  if (!fs.existsSync(csv)) {
+    io.err(`curvewright: the data file ${oneLine(csvGiven)} was not found (looked in ${oneLine(path.relative(io.cwd, path.dirname(csv)) || '.')}) — check the path; it is relative to the current folder`);
+    return 2;
+  }
   try {
     suggestion = await suggestSpec(csv, want);
   } catch (e) {

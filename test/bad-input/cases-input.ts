@@ -81,6 +81,10 @@ export const INPUT_CASES: BadInputCase[] = [
   c('ragged rows', 'csv', withSpec(spec({}), 'hours,od600\n1,2,3\n2,3\n'), /line 2/, /quote it|header name is missing/),
   c('decimal comma with comma delimiter', 'csv', withSpec(JSON.stringify({ data: { ...DATA, decimal: ',', delimiter: ',' }, models: [LINE] })), /data\.delimiter/, /use ";"/),
   c('exclude row zero', 'csv', withSpec(JSON.stringify({ data: { ...DATA, exclude: [{ row: 0, reason: 'x' }] }, models: [LINE] })), /data\.exclude\[0\]\.row/, /positive whole number/),
+  // `new` on a CSV that does not exist names the file and the folder, not a spec that does not exist yet
+  c('new on a missing CSV', 'csv', { 'd.csv': CSV }, /sub\/missing\.csv/, /check the path/, { args: ['new', 'sub/missing.csv'] }),
+  // a positive σ below about 1e-154 overflows its weight 1/σ²: the row is left out with a warning naming data.sigma
+  c('subnormal sigma', 'csv', withSpec(JSON.stringify({ data: { ...DATA, sigma: 's' }, models: [LINE] }), `hours,od600,s\n1,5,1e-320\n${rows(11, (x) => 2 + 3 * x + 0.1 * Math.sin(7 * x)).split('\n').map((r, k) => `${k + 2},${r.split(',')[1]},0.1`).join('\n')}\n`), /data\.sigma/, /check the units/, { args: ['fit', 'h.fitspec.json'], exit: 0 }),
   // ---- output sanitised
   c('model name with newline and escape', 'terminal', withSpec(JSON.stringify({ data: DATA, models: [{ name: 'l\n\u001b[2Kcheck: 99 passed, 0 failed', polynomial: 1 }, { name: 'l\n\u001b[2Kcheck: 99 passed, 0 failed', polynomial: 2 }] })), /models\[1\]\.name/, /must be unique/),
   c('title with bidi override', 'terminal', withSpec(JSON.stringify({ title: 'safe\u202eevil', data: { ...DATA, y: 'od601' }, models: [LINE] })), /data\.y/, /did you mean 'od600'/),

@@ -453,6 +453,10 @@ export function prepareData(spec: NormalizedSpec, table: Table): PreparedData {
       if (!(Number.isFinite(s) && s > 0)) {
         badEntry('data.sigma', d.sigma as string, ['data', 'sigma'], 'bad-sigma', 'is not a positive finite number').note(row);
         reason = { column: d.sigma as string, reason: `sigma = ${s} (must be a positive number)` };
+      } else if (!Number.isFinite(1 / (s * s))) {
+        // a positive σ below about 1e-154 gives the row an infinite weight 1/σ²: it would decide the fit alone
+        badEntry('data.sigma', d.sigma as string, ['data', 'sigma'], 'bad-sigma', 'is so small that its weight 1/σ² is infinite (check the units of the σ column)').note(row);
+        reason = { column: d.sigma as string, reason: `sigma = ${s} is so small that its weight 1/σ² is infinite` };
       }
     }
     if (!reason && weightAll) {

@@ -7,14 +7,11 @@ import * as fs from 'fs';
 import * as os from 'os';
 import * as path from 'path';
 import { runSpecFile } from '../../src/engine/run';
-import { isErrorReport, type FitReport, type RunResult } from '../../src/engine/report';
+import { isErrorReport } from '../../src/engine/report';
 import { tQuantile } from '../../src/engine/stats/distributions';
 import { mulberry32, normalSource } from '../../scripts/generate-demo';
+import { asReport } from './reports';
 
-function asReport(r: RunResult): FitReport {
-  if (isErrorReport(r)) assert.fail(`expected a FitReport, got an error: ${r.error.message}`);
-  return r as FitReport;
-}
 
 function close(a: number, b: number, rel = 1e-12): void {
   assert.ok(Math.abs(a - b) <= rel * Math.max(Math.abs(a), Math.abs(b)), `${a} vs ${b}`);

@@ -6,19 +6,12 @@ import * as fs from 'fs';
 import * as os from 'os';
 import * as path from 'path';
 import { runSpecFile, serializeReport } from '../../src/engine/run';
-import { isErrorReport, type ErrorReport, type FitReport, type RunResult } from '../../src/engine/report';
+import type { RunResult } from '../../src/engine/report';
 import { mulberry32, normalSource } from '../../scripts/generate-demo';
 import { summaryText } from '../../src/cli/format';
 import { updateExpectText } from '../../src/cli/update';
+import { asReport, asError } from './reports';
 
-function asReport(r: RunResult): FitReport {
-  if (isErrorReport(r)) assert.fail(`expected a FitReport, got an error: ${r.error.message}`);
-  return r as FitReport;
-}
-function asError(r: RunResult): ErrorReport {
-  assert.ok(isErrorReport(r), 'expected an ErrorReport');
-  return r as ErrorReport;
-}
 
 /** Logistic growth per reactor with seeded noise; reactors interleaved so that first appearance != sorted order. */
 function reactorsCsv(): string {

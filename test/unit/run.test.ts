@@ -8,23 +8,16 @@ import { promises as fsp } from 'fs';
 import * as os from 'os';
 import * as path from 'path';
 import { runSpecFile, serializeReport, writeResults, reportForFile, MAX_POINTS_IN_FILE, sha256 } from '../../src/engine/run';
-import { isErrorReport, type ErrorReport, type FitReport, type RunResult } from '../../src/engine/report';
+import type { ErrorReport, FitReport, RunResult } from '../../src/engine/report';
 import { mulberry32, normalSource } from '../../scripts/generate-demo';
 import { saturatingCsv } from './seededData';
+import { asReport, asError } from './reports';
 
 function tmpDir(): string {
   return fs.mkdtempSync(path.join(os.tmpdir(), 'cw-run-'));
 }
 function fileHash(f: string): string {
   return createHash('sha256').update(fs.readFileSync(f)).digest('hex');
-}
-function asReport(r: RunResult): FitReport {
-  if (isErrorReport(r)) assert.fail(`expected a FitReport, got an error: ${r.error.message}`);
-  return r as FitReport;
-}
-function asError(r: RunResult): ErrorReport {
-  assert.ok(isErrorReport(r), `expected an ErrorReport, got a FitReport`);
-  return r as ErrorReport;
 }
 
 function workspace(files: Record<string, string>): string {

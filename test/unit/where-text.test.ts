@@ -6,20 +6,12 @@ import * as os from 'os';
 import * as path from 'path';
 import { parseFormula, formatFormula, compileFormula } from '../../src/engine/formula';
 import { runSpecFile } from '../../src/engine/run';
-import { isErrorReport, type ErrorReport, type FitReport, type RunResult } from '../../src/engine/report';
+import { asReport, asError } from './reports';
 
 function workspace(files: Record<string, string>): string {
   const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'cw-where-'));
   for (const [rel, text] of Object.entries(files)) fs.writeFileSync(path.join(dir, rel), text);
   return dir;
-}
-function asReport(r: RunResult): FitReport {
-  if (isErrorReport(r)) assert.fail(`expected a FitReport, got an error: ${r.error.message}`);
-  return r as FitReport;
-}
-function asError(r: RunResult): ErrorReport {
-  assert.ok(isErrorReport(r), 'expected an ErrorReport');
-  return r as ErrorReport;
 }
 
 // 12 rows: treated rows follow y = 2x + 1 exactly, control rows y = -x + 10, blanks y = 0

@@ -6,6 +6,7 @@
 // registries) the script says so in one line and exits 0 — it is not part of `npm test`.
 //   usage: node scripts/test-desktop.js [--version 1.100.3] [--timeout SECONDS]
 const { spawnSync } = require('child_process');
+const { printResults } = require('../test/harness/results');
 const fs = require('fs');
 const os = require('os');
 const path = require('path');
@@ -72,14 +73,9 @@ const skip = why => {
     console.log(`test:desktop: VS Code reported: ${String((e && e.message) || e).split('\n')[0]}`);
   }
   let passed = 0, failed = 0;
-  if (fs.existsSync(resultsFile)) {
-    const r = JSON.parse(fs.readFileSync(resultsFile, 'utf8'));
-    r.passed.forEach(t => console.log('  ok   ' + t));
-    r.pending.forEach(t => console.log('  skip ' + t));
-    r.failed.forEach(f => console.log('  FAIL ' + f.title + '\n    ' + f.err.split('\n').slice(0, 8).join('\n    ')));
-    passed = r.passed.length;
-    failed = r.failed.length;
-  } else failed = 1;
+  const counts = printResults(resultsFile);
+  if (counts) ({ passed, failed } = counts);
+  else failed = 1;
   if (code !== 0 && failed === 0) failed = 1;
   console.log(`${passed} passed, ${failed} failed`);
   process.exit(failed === 0 && passed > 0 ? 0 : 1);

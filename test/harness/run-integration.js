@@ -4,6 +4,7 @@
 // The web workbench's `payload` URL parameter plays the part of --extensionDevelopmentPath/--extensionTestsPath.
 //   usage: run-integration.js [--timeout SECONDS]
 const path = require('path');
+const { printResults } = require('./results');
 const fs = require('fs');
 const util = require('util');
 const h = require('./code-server');
@@ -53,13 +54,9 @@ const fixture = path.join(h.REPO, 'test', 'fixtures', 'workspace');
     T(`extension host test runner exit code: ${code}`);
     if (code === 'timeout') { const shot = path.join(tmp, 'timeout.png'); await page.screenshot({ path: shot }); console.log('  screenshot of the hung workbench: ' + shot); }
     let passed = 0, failed = 0;
-    if (fs.existsSync(resultsFile)) {
-      const r = JSON.parse(fs.readFileSync(resultsFile, 'utf8'));
-      r.passed.forEach(t => console.log('  ok   ' + t));
-      r.pending.forEach(t => console.log('  skip ' + t));
-      r.failed.forEach(f => console.log('  FAIL ' + f.title + '\n    ' + f.err.split('\n').slice(0, 8).join('\n    ')));
-      passed = r.passed.length; failed = r.failed.length;
-    } else { console.log('  no results written (the runner never ran?); code-server log: ' + cs.logFile); failed = 1; }
+    const counts = printResults(resultsFile);
+    if (counts) ({ passed, failed } = counts);
+    else { console.log('  no results written (the runner never ran?); code-server log: ' + cs.logFile); failed = 1; }
     if (code !== 0 && failed === 0) failed = 1;
     console.log(`${passed} passed, ${failed} failed`);
     code = failed === 0 && passed > 0 ? 0 : 1;

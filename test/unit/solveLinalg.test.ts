@@ -1,6 +1,6 @@
 // Kernels of the solvers: Householder QR, Jacobi SVD, compensated sums, rank analysis, augmented refinement; and the covariance/leverage built on them.
 import * as assert from 'assert';
-import { analyzeRank, applyQ, applyQt, CompensatedSum, extractR, jacobiSVD, norm2, qrFactor, refineAugmented } from '../../src/engine/solve/linalg';
+import { analyzeRank, applyQ, applyQt, CompensatedSum, extractR, jacobiSVD, mgsProject, mgsQr, norm2, qrFactor, refineAugmented } from '../../src/engine/solve/linalg';
 import { covarianceFromJacobian, leverage } from '../../src/engine/stats/covariance';
 
 /** deterministic pseudo-random numbers (LCG of Park & Miller 1988) */
@@ -102,6 +102,57 @@ describe('linalg', function () {
     assert.ok(Math.abs(x[0] - 0.5) < 1e-15 && Math.abs(x[1]) < 1e-15, `${x[0]}, ${x[1]}`);
     // residual r = b − A x
     for (let i = 0; i < m; i++) assert.ok(Math.abs(r[i] - (b[i] - 0.5)) < 1e-15);
+  });
+
+  it('modified Gram–Schmidt: Q orthonormal and Q R = A to rounding (Björck 1996 §2.4); Qᵀr of a vector in span(A) recovers it', function () {
+    const rnd = lcg(11);
+    const n = 12;
+    const k = 3;
+    const A = Array.from({ length: k }, () => Float64Array.from({ length: n }, rnd));
+    const Q = A.map((c) => Float64Array.from(c));
+    const R = new Float64Array(k * k);
+    const norm0 = new Float64Array(k);
+    assert.deepStrictEqual(mgsQr(Q, n, { relTol: 1e-10, R, norm0 }), [0, 1, 2]);
+    for (let a = 0; a < k; a++) {
+      assert.ok(Math.abs(norm0[a] - norm2(A[a])) < 1e-14 * norm0[a]);
+      for (let b = 0; b < k; b++) {
+        let d = 0;
+        for (let i = 0; i < n; i++) d += Q[a][i] * Q[b][i];
+        assert.ok(Math.abs(d - (a === b ? 1 : 0)) < 1e-14, `qᵀq at ${a},${b}`);
+      }
+      for (let i = 0; i < n; i++) {
+        let v = 0;
+        for (let b = 0; b <= a; b++) v += Q[b][i] * R[b * k + a];
+        assert.ok(Math.abs(v - A[a][i]) < 1e-14, `(QR)[${i},${a}]`);
+      }
+      for (let b = a + 1; b < k; b++) assert.strictEqual(R[b * k + a], 0, 'R is upper triangular');
+    }
+    // r = 2·a0 − a2 lies in the span: the projection leaves ~0 and Qᵀr solves R c = Qᵀr for c = (2, 0, −1)
+    const r = Float64Array.from({ length: n }, (_, i) => 2 * A[0][i] - A[2][i]);
+    const qty = new Float64Array(k);
+    mgsProject(Q, n, r, 1, qty);
+    assert.ok(norm2(r) < 1e-14);
+    const c2 = qty[2] / R[8];
+    const c1 = (qty[1] - R[5] * c2) / R[4];
+    const c0 = (qty[0] - R[1] * c1 - R[2] * c2) / R[0];
+    assert.ok(Math.abs(c0 - 2) < 1e-13 && Math.abs(c1) < 1e-13 && Math.abs(c2 + 1) < 1e-13);
+  });
+
+  it('modified Gram–Schmidt at the edges: a dependent, zero or NaN column stops it, or is skipped on request', function () {
+    const n = 5;
+    const x = [1, 2, 3, 4, 5];
+    const make = () => [Float64Array.from(x), Float64Array.from(x, (v) => 3 * v), new Float64Array(n), Float64Array.from(x, () => NaN), new Float64Array(n).fill(1)];
+    assert.strictEqual(mgsQr(make(), n, { relTol: 1e-10 }), null, 'column 1 = 3 · column 0');
+    assert.strictEqual(mgsQr([new Float64Array(n)], n, { relTol: 1e-10 }), null, 'zero column');
+    const cols = make();
+    assert.deepStrictEqual(mgsQr(cols, n, { relTol: 1e-10, skipDependent: true }), [0, 4]);
+    let d = 0;
+    for (let i = 0; i < n; i++) d += cols[0][i] * cols[4][i];
+    assert.ok(Math.abs(d) < 1e-15, 'kept columns orthogonal');
+    // near-dependent: passes a loose tolerance, fails a tight one
+    const near = () => [Float64Array.from(x), Float64Array.from(x, (v, i) => v + (i === 0 ? 1e-8 : 0))];
+    assert.ok(mgsQr(near(), n, { relTol: 1e-10 }));
+    assert.strictEqual(mgsQr(near(), n, { relTol: 1e-8 }), null);
   });
 });
 

@@ -1,7 +1,9 @@
 // Small dense least squares for self-starting estimates: modified Gram–Schmidt QR with one re-orthogonalisation
-// pass (Björck, "Numerical Methods for Least Squares Problems", 1996, §2.4), plus profile grids over the nonlinear
-// parameters of conditionally linear models (the linear ones solved exactly for every grid point — common practice).
+// pass (Björck, "Numerical Methods for Least Squares Problems", 1996, §2.4; mgsQr in solve/linalg.ts), plus profile
+// grids over the nonlinear parameters of conditionally linear models (the linear ones solved exactly for every grid
+// point — common practice).
 import { sortedOrder } from '../data/order';
+import { mgsProject, mgsQr } from '../solve/linalg';
 
 /** Result of a small least-squares solve: coefficients and residual sum of squares. */
 export interface SmallLsq {
@@ -24,44 +26,20 @@ export function smallLsq(cols: ArrayLike<number>[], y: ArrayLike<number>, w?: Ar
   for (let k = 0; k < p; k++) {
     const q = new Float64Array(n);
     const c = cols[k];
-    let norm0 = 0;
     for (let i = 0; i < n; i++) {
-      const v = c[i] * sw[i];
-      if (!Number.isFinite(v)) return null;
-      q[i] = v;
-      norm0 += v * v;
+      q[i] = c[i] * sw[i];
+      if (!Number.isFinite(q[i])) return null;
     }
-    norm0 = Math.sqrt(norm0);
-    for (let pass = 0; pass < 2; pass++) {
-      for (let j = 0; j < k; j++) {
-        const qj = Q[j];
-        let d = 0;
-        for (let i = 0; i < n; i++) d += qj[i] * q[i];
-        R[j * p + k] += d;
-        for (let i = 0; i < n; i++) q[i] -= d * qj[i];
-      }
-    }
-    let norm = 0;
-    for (let i = 0; i < n; i++) norm += q[i] * q[i];
-    norm = Math.sqrt(norm);
-    if (!(norm > 1e-10 * norm0) || !(norm > 0)) return null;
-    for (let i = 0; i < n; i++) q[i] /= norm;
-    R[k * p + k] = norm;
     Q.push(q);
   }
+  if (!mgsQr(Q, n, { relTol: 1e-10, R })) return null;
   const qty = new Float64Array(p);
   const r = new Float64Array(n);
   for (let i = 0; i < n; i++) {
     r[i] = y[i] * sw[i];
     if (!Number.isFinite(r[i])) return null;
   }
-  for (let k = 0; k < p; k++) {
-    let d = 0;
-    const qk = Q[k];
-    for (let i = 0; i < n; i++) d += qk[i] * r[i];
-    qty[k] = d;
-    for (let i = 0; i < n; i++) r[i] -= d * qk[i];
-  }
+  mgsProject(Q, n, r, 1, qty);
   const coef = new Array<number>(p).fill(0);
   for (let k = p - 1; k >= 0; k--) {
     let s = qty[k];

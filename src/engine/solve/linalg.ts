@@ -1,4 +1,4 @@
-// Householder QR with column pivoting after MINPACK qrfac (Moré, Garbow & Hillstrom 1980) and Golub & Van Loan, Matrix Computations, 4th ed., §5.2 and §5.4.2; one-sided Jacobi SVD after Hestenes (1958) / Demmel & Veselić (1992); compensated dot products after Ogita, Rump & Oishi (2005).
+// Householder QR with column pivoting after MINPACK qrfac (Moré, Garbow & Hillstrom 1980) and Golub & Van Loan, Matrix Computations, 4th ed., §5.2 and §5.4.2; modified Gram–Schmidt with one re-orthogonalisation pass after Björck, Numerical Methods for Least Squares Problems (1996), §2.4; one-sided Jacobi SVD after Hestenes (1958) / Demmel & Veselić (1992); compensated dot products after Ogita, Rump & Oishi (2005).
 //
 // Layout: every matrix is a column-major Float64Array, A[j*m + i] = A(i, j) for an m×n matrix.
 
@@ -171,6 +171,79 @@ export function solveUpperT(r: Float64Array, ldr: number, k: number, b: Float64A
     let s = b[j];
     for (let i = 0; i < j; i++) s -= r[j * ldr + i] * b[i];
     b[j] = s / r[j * ldr + j];
+  }
+}
+
+// ---------------------------------------------------------------- modified Gram–Schmidt
+
+/** How mgsQr treats a column that is (numerically) dependent on the columns before it. */
+export interface MgsOptions {
+  /** a column is dependent when ‖q‖ after orthogonalisation is not > relTol · ‖q‖ before */
+  relTol: number;
+  /** true: leave a dependent column out of the basis and go on; false (default): stop and return null */
+  skipDependent?: boolean;
+  /** k×k, row-major, zero on entry: receives R (R[j·k + a] = r_ja; the columns kept, in order) */
+  R?: Float64Array;
+  /** length k: receives ‖q_a‖ before orthogonalisation */
+  norm0?: Float64Array;
+}
+
+/**
+ * Thin QR of the k = cols.length columns (each of length n) by modified Gram–Schmidt with one re-orthogonalisation
+ * pass ("twice is enough", Björck 1996, §2.4), in place: each column kept becomes a unit vector of Q. Columns that
+ * are zero or not finite count as dependent. Returns the indices of the columns kept (in order), or null when a
+ * column is dependent and `skipDependent` is not set.
+ */
+export function mgsQr(cols: Float64Array[], n: number, opts: MgsOptions): number[] | null {
+  const { relTol, R, norm0: norm0Out } = opts;
+  const k = cols.length;
+  const kept: number[] = [];
+  for (let a = 0; a < k; a++) {
+    const q = cols[a];
+    let norm0 = 0;
+    for (let i = 0; i < n; i++) norm0 += q[i] * q[i];
+    norm0 = Math.sqrt(norm0);
+    if (norm0Out) norm0Out[a] = norm0;
+    if (!(norm0 > 0) || !Number.isFinite(norm0)) {
+      if (opts.skipDependent) continue;
+      return null;
+    }
+    for (let pass = 0; pass < 2; pass++) {
+      for (const b of kept) {
+        const qb = cols[b];
+        let d = 0;
+        for (let i = 0; i < n; i++) d += qb[i] * q[i];
+        if (R) R[b * k + a] += d;
+        for (let i = 0; i < n; i++) q[i] -= d * qb[i];
+      }
+    }
+    let norm = 0;
+    for (let i = 0; i < n; i++) norm += q[i] * q[i];
+    norm = Math.sqrt(norm);
+    if (!(norm > relTol * norm0) || !(norm > 0)) {
+      if (opts.skipDependent) continue;
+      return null;
+    }
+    for (let i = 0; i < n; i++) q[i] /= norm;
+    if (R) R[a * k + a] = norm;
+    kept.push(a);
+  }
+  return kept;
+}
+
+/**
+ * r ← r − Σ_a q_a (q_aᵀ r) over the given orthonormal columns, one column at a time (the modified Gram–Schmidt
+ * order), `passes` times. qty (when given, length basis.length) receives Qᵀr, summed over the passes.
+ */
+export function mgsProject(basis: Float64Array[], n: number, r: Float64Array, passes = 1, qty?: Float64Array): void {
+  for (let pass = 0; pass < passes; pass++) {
+    for (let a = 0; a < basis.length; a++) {
+      const q = basis[a];
+      let d = 0;
+      for (let i = 0; i < n; i++) d += q[i] * r[i];
+      if (qty) qty[a] = pass === 0 ? d : qty[a] + d;
+      for (let i = 0; i < n; i++) r[i] -= d * q[i];
+    }
   }
 }
 

@@ -21,6 +21,7 @@
 import type { LsqProblem, SolveOptions, SolveResult } from './types';
 import { solveNonlinear } from './index';
 import { DEFAULTS } from '../spec/defaults';
+import { mgsProject, mgsQr } from './linalg';
 
 export interface MultiStartOptions {
   lower?: ArrayLike<number>;
@@ -227,37 +228,11 @@ function project(c: Ctx, theta: Float64Array, L: number[], work: { cols: Float64
   for (let a = 0; a < m; a++) {
     const q = Q[a];
     const off = L[a] * n;
-    let norm0 = 0;
-    for (let i = 0; i < n; i++) {
-      q[i] = sw[i] * c.J[off + i];
-      norm0 += q[i] * q[i];
-    }
-    norm0 = Math.sqrt(norm0);
-    norms[a] = norm0;
-    for (let pass = 0; pass < 2; pass++) {
-      for (let b = 0; b < a; b++) {
-        const qb = Q[b];
-        let d = 0;
-        for (let i = 0; i < n; i++) d += qb[i] * q[i];
-        R[b * m + a] += d;
-        for (let i = 0; i < n; i++) q[i] -= d * qb[i];
-      }
-    }
-    let norm = 0;
-    for (let i = 0; i < n; i++) norm += q[i] * q[i];
-    norm = Math.sqrt(norm);
-    if (!(norm > 1e-9 * norm0) || !(norm > 0)) return Infinity;
-    for (let i = 0; i < n; i++) q[i] /= norm;
-    R[a * m + a] = norm;
+    for (let i = 0; i < n; i++) q[i] = sw[i] * c.J[off + i];
   }
+  if (!mgsQr(Q, n, { relTol: 1e-9, R, norm0: norms })) return Infinity;
   const qty = new Float64Array(m);
-  for (let a = 0; a < m; a++) {
-    const q = Q[a];
-    let d = 0;
-    for (let i = 0; i < n; i++) d += q[i] * r[i];
-    qty[a] = d;
-    for (let i = 0; i < n; i++) r[i] -= d * q[i];
-  }
+  mgsProject(Q, n, r, 1, qty);
   for (let a = m - 1; a >= 0; a--) {
     let s = qty[a];
     for (let b = a + 1; b < m; b++) s -= R[a * m + b] * theta[L[b]];

@@ -15,6 +15,7 @@ import { computeBand, computeInverse, computePrediction, predictionPoint, variab
 import { fmtMessage as fmt } from '../../shared/numberFormat';
 import { roleOf } from '../models/roles';
 import { DEFAULTS } from '../spec/defaults';
+import { mgsProject, mgsQr } from '../solve/linalg';
 
 /** LsqProblem over the given data for a compiled formula. */
 export function lsqProblem(input: Pick<ModelAnalysisInput, 'compiled' | 'X' | 'y' | 'w' | 'params'>): LsqProblem {
@@ -31,38 +32,13 @@ export function lsqProblem(input: Pick<ModelAnalysisInput, 'compiled' | 'X' | 'y
 /** true when the constant vector lies in the span of the free Jacobian columns (a linear model "with intercept"). */
 export function hasConstantColumn(J: Float64Array, n: number, p: number, free: boolean[]): boolean {
   if (n === 0) return false;
-  const basis: Float64Array[] = [];
-  for (let j = 0; j < p; j++) {
-    if (!free[j]) continue;
-    const q = Float64Array.from(J.subarray(j * n, (j + 1) * n));
-    let norm0 = 0;
-    for (let i = 0; i < n; i++) norm0 += q[i] * q[i];
-    norm0 = Math.sqrt(norm0);
-    if (!(norm0 > 0) || !Number.isFinite(norm0)) continue;
-    for (let pass = 0; pass < 2; pass++) {
-      for (const b of basis) {
-        let d = 0;
-        for (let i = 0; i < n; i++) d += b[i] * q[i];
-        for (let i = 0; i < n; i++) q[i] -= d * b[i];
-      }
-    }
-    let norm = 0;
-    for (let i = 0; i < n; i++) norm += q[i] * q[i];
-    norm = Math.sqrt(norm);
-    if (norm > 1e-10 * norm0) {
-      for (let i = 0; i < n; i++) q[i] /= norm;
-      basis.push(q);
-    }
-  }
-  // residual of projecting 1/√n onto the basis
+  const cols: Float64Array[] = [];
+  for (let j = 0; j < p; j++) if (free[j]) cols.push(Float64Array.from(J.subarray(j * n, (j + 1) * n)));
+  // an orthonormal basis of the free columns (dependent ones left out), then the residual of projecting 1/√n onto it
+  const kept = mgsQr(cols, n, { relTol: 1e-10, skipDependent: true }) ?? [];
+  const basis = kept.map((a) => cols[a]);
   const one = new Float64Array(n).fill(1 / Math.sqrt(n));
-  for (let pass = 0; pass < 2; pass++) {
-    for (const b of basis) {
-      let d = 0;
-      for (let i = 0; i < n; i++) d += b[i] * one[i];
-      for (let i = 0; i < n; i++) one[i] -= d * b[i];
-    }
-  }
+  mgsProject(basis, n, one, 2);
   let r = 0;
   for (let i = 0; i < n; i++) r += one[i] * one[i];
   return Math.sqrt(r) < 1e-8;

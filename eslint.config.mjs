@@ -66,6 +66,14 @@ export default tseslint.config(
     },
   })),
   {
+    // leaf tables that every engine layer reads (the one DEFAULTS, LIMITS, the PROBLEMS table):
+    // they import nothing, so importing them can never make a cycle or cross a tier
+    files: ['src/engine/spec/defaults.ts', 'src/engine/spec/limits.ts', 'src/engine/problems.ts'],
+    rules: {
+      'no-restricted-imports': ['error', { patterns: [{ group: ['*', '**'], message: 'A leaf table imports nothing (eslint.config.mjs, "leaf tables").' }] }],
+    },
+  },
+  {
     // the webview: browser code only; it draws a FitReport and never solves
     files: ['webview/**/*.ts'],
     rules: {

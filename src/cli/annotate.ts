@@ -2,12 +2,12 @@
 // the engine's JSON-path locator, a data file via the problem's own location — and printed as GitHub Actions
 // workflow commands (::error file=…,line=…,col=…::message).
 import * as path from 'path';
-import type { CheckReason, FileLocation, JsonPath, Severity } from '../engine/report';
+import type { CheckReason, FileLocation, JsonPath, ProblemCode, Severity } from '../engine/report';
 import { locateNearest } from '../engine/spec/locate';
 
 /** A failure or warning before it is placed: what check found, with the spec path or file location it has. */
 export interface Finding {
-  code: string;
+  code: ProblemCode;
   severity: 'error' | 'warning';
   message: string;
   path?: JsonPath;

@@ -1,5 +1,8 @@
 // The contract everything downstream reads: fit-spec input types and the FitReport output (see DESIGN.md).
 // Keep in step with schema/fitspec.schema.json and schema/fitreport.schema.json (test/unit/schema.test.ts checks).
+import type { ProblemCode } from './problems';
+
+export type { ProblemCode };
 
 /** A JSON path into the spec: keys and array indices, e.g. ["models", 0, "params", "K"]. */
 export type JsonPath = (string | number)[];
@@ -140,8 +143,8 @@ export interface FileLocation {
 
 /** One finding about the spec, the data or a fit, with a stable code (docs/problems.md) and a place. */
 export interface Problem {
-  /** stable code, documented in docs/problems.md */
-  code: string;
+  /** stable code, documented in docs/problems.md (the PROBLEMS table in src/engine/problems.ts) */
+  code: ProblemCode;
   severity: Severity;
   /** written for the user: what happened, why it matters, what to try */
   message: string;
@@ -405,7 +408,7 @@ export interface ReportMeta {
 /** One reason `check` fails a spec (or a warning it does not count), placed for CI annotations. */
 export interface CheckReason {
   /** problem code, or one of check's own: not-converged, expect-not-met, stale-results, output-failed, spec-error */
-  code: string;
+  code: ProblemCode;
   severity: 'error' | 'warning';
   /** for the user: what is wrong and the fix */
   message: string;

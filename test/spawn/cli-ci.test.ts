@@ -111,8 +111,8 @@ describe('cli in CI: check verdicts, annotations, shards, merge', function () {
   it('workflow-command escaping: % CR LF in the message; also : and , in properties', () => {
     assert.equal(escapeData('100% done\r\nnext'), '100%25 done%0D%0Anext');
     assert.equal(escapeProperty('dir,1/a:b%.json'), 'dir%2C1/a%3Ab%25.json');
-    assert.deepEqual(githubAnnotations([{ code: 'x', severity: 'warning', message: 'a: b,\nc', file: 'f,1.json' }]), ['::warning file=f%2C1.json,title=curvewright x::a: b,%0Ac']);
-    assert.deepEqual(githubAnnotations([{ code: 'y', severity: 'error', message: 'm', file: 's.json', line: 3, column: 7 }]), ['::error file=s.json,line=3,col=7,title=curvewright y::m']);
+    assert.deepEqual(githubAnnotations([{ code: 'bad-cell', severity: 'warning', message: 'a: b,\nc', file: 'f,1.json' }]), ['::warning file=f%2C1.json,title=curvewright bad-cell::a: b,%0Ac']);
+    assert.deepEqual(githubAnnotations([{ code: 'spec-type', severity: 'error', message: 'm', file: 's.json', line: 3, column: 7 }]), ['::error file=s.json,line=3,col=7,title=curvewright spec-type::m']);
   });
 
   it('--shard K/N: every spec in exactly one shard, sizes within one, the same for any order of arguments', () => {

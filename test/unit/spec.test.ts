@@ -416,7 +416,7 @@ describe('spec: validateSpec reports every problem with path and location', () =
   it('reports many problems at once in one pass', () => {
     const text = spec('{ "name": "m", "builtin": "nope" }, { "name": "m", "polynomial": -2 }', '"confidence": 2, "output": "../o.json", "thresholds": { "x": 1 }', '"file": "d.csv", "x": "hourz", "y": "od600", "decimal": ";"');
     const r = check(text);
-    const codes = new Set(r.problems.map((p) => p.code));
+    const codes = new Set<string>(r.problems.map((p) => p.code));
     for (const c of ['spec-unknown-builtin', 'spec-duplicate-name', 'spec-polynomial-degree', 'spec-range', 'spec-output', 'spec-unknown-key', 'spec-unknown-column', 'spec-type'])
       assert.ok(codes.has(c), `${c} in ${[...codes].join(', ')}`);
     for (const p of r.problems) assert.ok(p.location && p.location.line && p.location.column, `located: ${p.code}`);

@@ -1,7 +1,7 @@
 // Turns a read table into fit data: evaluates data.x variables, y, sigma or weight and the where filter, applies
 // exclusions, and drops (and reports) rows whose values are not finite.
 import { compileExpression, formatFormula, formulaIdentifiers, parseFormula, FormulaError, type Node } from '../formula';
-import type { JsonPath, Problem } from '../report';
+import type { JsonPath, Problem, ProblemCode } from '../report';
 import type { NormalizedSpec } from '../spec/types';
 import type { Table } from './types';
 
@@ -354,7 +354,7 @@ export function prepareData(spec: NormalizedSpec, table: Table): PreparedData {
     role: string;
     text: string;
     p: JsonPath;
-    code: string;
+    code: ProblemCode;
     why: string;
     /** the first rows (up to MAX_ROWS_LISTED) */
     rows: number[];
@@ -362,7 +362,7 @@ export function prepareData(spec: NormalizedSpec, table: Table): PreparedData {
     note(row: number): void;
   }
   const bad: Bad[] = [];
-  const badEntry = (role: string, text: string, p: JsonPath, code: string, why: string): Bad => {
+  const badEntry = (role: string, text: string, p: JsonPath, code: ProblemCode, why: string): Bad => {
     let b = bad.find((e) => e.role === role && e.code === code);
     if (!b) {
       const entry: Bad = {

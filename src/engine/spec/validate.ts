@@ -2,7 +2,7 @@
 // normalises it: defaults filled, data.x always an object, file paths absolute.
 import * as path from 'path';
 import { formulaIdentifiers, formulaParameters, parseFormula, suggest, FormulaError, CONSTANTS, FUNCTIONS } from '../formula';
-import type { ExcludeSpec, FileLocation, JsonPath, ParamSpec, Problem, Severity } from '../report';
+import type { ExcludeSpec, FileLocation, JsonPath, ParamSpec, Problem, ProblemCode, Severity } from '../report';
 import { BUILTIN_IDS, BUILTIN_PARAMS, isBuiltinId, polynomialParams } from './catalogue';
 import { DEFAULTS, THRESHOLD_KEYS } from './defaults';
 import { LIMITS } from './limits';
@@ -102,7 +102,7 @@ class Checker {
     return this.problems.filter((p) => p.severity === 'error').length;
   }
 
-  add(code: string, p: JsonPath, message: string, opts: { severity?: Severity; key?: boolean; charIndex?: number } = {}): void {
+  add(code: ProblemCode, p: JsonPath, message: string, opts: { severity?: Severity; key?: boolean; charIndex?: number } = {}): void {
     const problem: Problem = { code, severity: opts.severity ?? 'error', message, path: p };
     const text = this.ctx.text;
     if (text !== undefined) {

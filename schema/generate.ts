@@ -7,6 +7,7 @@ import { BUILTINS } from '../src/engine/models';
 import { DEFAULTS, THRESHOLD_KEYS } from '../src/engine/spec/defaults';
 import { MAX_DEGREE } from '../src/engine/spec/validate';
 import { DEFAULT_THRESHOLDS } from '../src/engine/stats/thresholds';
+import { TERMINATION_CODES } from '../src/engine/terminations';
 
 type Schema = Record<string, unknown>;
 
@@ -263,7 +264,7 @@ export function fitreportSchema(): Schema {
   const termination = {
     type: 'string',
     description: 'Why the solver stopped.',
-    enum: ['relative-reduction', 'step-size', 'gradient', 'exact', 'iteration-limit', 'singular', 'non-finite', 'cancelled', 'time-limit'],
+    enum: TERMINATION_CODES,
   };
   const paramReport = obj('Estimate of one parameter.', {
     value: num('Estimate.'),

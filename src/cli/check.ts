@@ -4,6 +4,7 @@ import { promises as fsp } from 'fs';
 import * as path from 'path';
 import { runSpecFile, serializeReport, specFiles, writeResults, OutputError } from '../engine/run';
 import { sidecarMismatch } from '../engine/pointsFile';
+import { terminationFix } from '../engine/terminations';
 import { isErrorReport, type CheckVerdict, type ErrorReport, type FitReport, type RunResult } from '../engine/report';
 import { findingSeverity, githubAnnotations, placeFindings, type Finding } from './annotate';
 import { UsageError, type Parsed } from './args';
@@ -63,14 +64,7 @@ export function verdictOf(report: FitReport, specShown: string, strict: boolean)
   const findings: Finding[] = [];
   report.models.forEach((m, i) => {
     if (m.status === 'converged') return;
-    const advice: Record<string, string> = {
-      singular: 'its parameters cannot all be determined from these data (see the problem below)',
-      'non-finite': 'the formula gave non-finite values — check its domain (log, sqrt, division) and add bounds in models[' + i + '].params',
-      'iteration-limit': `give start values in models[${i}].params or raise models[${i}].solver.maxIterations`,
-      'time-limit': `give start values in models[${i}].params or raise models[${i}].solver.seconds`,
-      cancelled: 'the run was cancelled',
-    };
-    failures.push(`model '${m.name}' did not converge (${m.termination}) — ${advice[m.termination] ?? `give start values or bounds in models[${i}].params, or remove the model`}`);
+    failures.push(`model '${m.name}' did not converge (${m.termination}) — ${terminationFix(m.termination, i)}`);
     findings.push({ code: 'not-converged', severity: 'error', message: failures[failures.length - 1], path: ['models', i] });
   });
   for (const { problem, model } of allProblems(report)) {

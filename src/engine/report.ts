@@ -1,6 +1,7 @@
 // The contract everything downstream reads: fit-spec input types and the FitReport output (see DESIGN.md).
 // Keep in step with schema/fitspec.schema.json and schema/fitreport.schema.json (test/unit/schema.test.ts checks).
 import type { ProblemCode } from './problems';
+import type { Termination } from './terminations';
 
 export type { ProblemCode };
 
@@ -158,17 +159,9 @@ export interface Problem {
   group?: string;
 }
 
-/** Why the solver stopped; `relative-reduction`, `step-size`, `gradient` and `exact` count as converged. */
-export type Termination =
-  | 'relative-reduction'
-  | 'step-size'
-  | 'gradient'
-  | 'exact'
-  | 'iteration-limit'
-  | 'singular'
-  | 'non-finite'
-  | 'cancelled'
-  | 'time-limit';
+/** Why the solver stopped (the TERMINATIONS table, src/engine/terminations.ts); `relative-reduction`, `step-size`,
+ * `gradient` and `exact` count as converged. */
+export type { Termination };
 
 /** One parameter's estimate and uncertainty (se, t, p and intervals are null where they do not exist). */
 export interface ParamReport {

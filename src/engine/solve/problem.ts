@@ -4,7 +4,7 @@ import type { LsqProblem, SolveOptions, SolveResult } from './types';
 import type { Termination } from '../report';
 import { analyzeRank, norm2 } from './linalg';
 
-export const CONVERGED: readonly Termination[] = ['relative-reduction', 'step-size', 'gradient', 'exact'];
+export { CONVERGED } from '../terminations';
 
 export interface Prepared {
   problem: LsqProblem;

@@ -16,6 +16,7 @@ import { fmtMessage as fmt } from '../../shared/numberFormat';
 import { roleOf } from '../models/roles';
 import { DEFAULTS } from '../spec/defaults';
 import { mgsProject, mgsQr } from '../solve/linalg';
+import { terminationAdvice } from '../terminations';
 
 /** LsqProblem over the given data for a compiled formula. */
 export function lsqProblem(input: Pick<ModelAnalysisInput, 'compiled' | 'X' | 'y' | 'w' | 'params'>): LsqProblem {
@@ -593,23 +594,6 @@ function maxOf(a: ArrayLike<number>): number {
   let m = -Infinity;
   for (let i = 0; i < a.length; i++) if (a[i] > m) m = a[i];
   return m;
-}
-
-function terminationAdvice(t: string): string {
-  switch (t) {
-    case 'iteration-limit':
-      return 'Raise solver.maxIterations, or give start values closer to the solution.';
-    case 'time-limit':
-      return 'Raise solver.seconds, or give start values closer to the solution.';
-    case 'singular':
-      return 'The parameters cannot all be determined from these data: fix one, simplify the formula, or add data that vary more.';
-    case 'non-finite':
-      return 'Give start values and bounds (min/max) that keep the formula finite over the data.';
-    case 'cancelled':
-      return 'The run was cancelled; run it again.';
-    default:
-      return 'Try other start values or bounds.';
-  }
 }
 
 /** Most rows an influential-points problem names (the largest Cook's distances). */

@@ -1,6 +1,6 @@
 // NIST StRD nonlinear regression problems fitted with NO starting values: each written as a fit spec whose parameters
 // have no start or bounds (and no solver key) and a CSV, run by runSpecFile (the function the CLI calls); the generic
-// multi-start (src/engine/solve/multistart.ts) must find the certified solution.
+// multi-start (src/engine/solve/multistart/) must find the certified solution.
 // Reference: NIST ITL Statistical Reference Datasets, nonlinear regression, certified values in each .dat file.
 // Score: min LRE over the parameters (NIST's accuracy measure), ≥ 6 digits; one test per problem. The problems the
 // search does not solve today are listed in NOT_YET with their measured LRE: they must not silently start passing

@@ -50,7 +50,7 @@ describe('DEFAULTS: one source for validator, solvers, analysis and docs', () =>
 
   it('no other default figure for maxIterations or the analysis guards hides in the engine', () => {
     // a literal default beside these names would be a second source of truth
-    const files = ['src/engine/solve/lm.ts', 'src/engine/solve/linear.ts', 'src/engine/solve/multistart.ts', 'src/engine/models/build.ts',
+    const files = ['src/engine/solve/lm.ts', 'src/engine/solve/linear.ts', 'src/engine/solve/multistart/index.ts', 'src/engine/solve/multistart/refine.ts', 'src/engine/models/build.ts',
       'src/engine/stats/analyze.ts', 'src/engine/stats/profile.ts', 'src/engine/stats/crossval.ts', 'src/engine/run.ts'];
     for (const f of files) {
       const t = read(f);

@@ -1,4 +1,4 @@
-// Generic multi-start (src/engine/solve/multistart.ts) through buildModel/fitModel and directly: behaviour on seeded
+// Generic multi-start (src/engine/solve/multistart/) through buildModel/fitModel and directly: behaviour on seeded
 // synthetic data (invented, allowed for behaviour tests) — determinism, bounds, fixed and partly given starts,
 // weights, variable projection, NaN models, cancellation and tiny time budgets.
 import { strict as assert } from 'assert';

@@ -1,4 +1,4 @@
-// Stage 3b of the multi-start search: differential evolution (Storn & Price 1997, DE/rand/1/bin) on the projected
+// Stage 4 of the multi-start search: differential evolution (Storn & Price 1997, DE/rand/1/bin) on the projected
 // SSE over the sampled parameters, seeded with the best distinct screened candidates: cheap evaluations, good at
 // multimodal landscapes.
 import type { Candidate, Search } from './context';

@@ -1,4 +1,4 @@
-// Stage 4b of the multi-start search: basin hopping by coordinate resampling (common practice, own variant): from the
+// Stage 6 of the multi-start search: basin hopping by coordinate resampling (common practice, own variant): from the
 // incumbent, redraw one or two sampled parameters (the others kept), screen by projected SSE, and run local fits from
 // the best few; repeat while it improves. This escapes the minima where one term of a sum is wrong while the others
 // are right (common in sums of peaks or exponentials). Subsets beyond 24 are drawn by seeded Fisher–Yates.

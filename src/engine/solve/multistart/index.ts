@@ -124,19 +124,19 @@ export function multiStart(problem: LsqProblem, opts: MultiStartOptions): MultiS
   const nCand = opts.candidates ?? (d === 0 ? 1 : Math.min(TUNING.maxCandidates, 256 * 2 ** Math.min(d, 4)));
   const { pool, special } = screen(s, samplers, nCand);
 
-  // 3b. differential evolution on the projected SSE, seeded with the best distinct screened candidates
+  // 4. differential evolution on the projected SSE, seeded with the best distinct screened candidates
   evolve(s, pool, limit);
 
-  // 4. short local runs from the best distinct candidates (and the neutral point)
+  // 5. short local runs from the best distinct candidates (and the neutral point)
   const chosen = chooseStarts(s, pool, special, opts.localRuns);
   const local = localSolver(s, problem, opts.shouldStop, deadline, scale, limit);
   const { remaining, solveOpts } = local;
   let best = localRuns(s, local, chosen);
 
-  // 4b. basin hopping by coordinate resampling from the incumbent
+  // 6. basin hopping by coordinate resampling from the incumbent
   best = hop(s, local, best, samplers);
 
-  // 5. the full run from the best local solution, with the model's own derivatives
+  // 7. the full run from the best local solution, with the model's own derivatives
   const startValues = best ? best.start : chosen[0];
   let final: SolveResult;
   try {

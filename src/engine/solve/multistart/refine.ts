@@ -1,4 +1,4 @@
-// Stage 4 of the multi-start search: short Levenberg–Marquardt runs (Moré 1978) from the neutral point and the best
+// Stage 5 of the multi-start search: short Levenberg–Marquardt runs (Moré 1978) from the neutral point and the best
 // distinct candidates — on the variable-projection problem when some parameters are affine (Golub & Pereyra 1973),
 // else on the full one — until the same least SSE is reached from three starts.
 import type { LsqProblem, SolveOptions } from '../types';

@@ -1,6 +1,7 @@
 // Public entry of the statistics layer: model analysis, comparison, thresholds, distributions and residual tests.
 export type { ModelAnalysisInput, AnalysisOptions, StartSource } from './api';
-export { analyzeModel, lsqProblem, hasConstantColumn } from './analyze';
+export { analyzeModel } from './analyze';
+export { lsqProblem, hasConstantColumn } from './analysisData';
 export { compareModels, extraSumOfSquaresF, nestedRelation, type FTest } from './compare';
 export { DEFAULT_THRESHOLDS, resolveThresholds } from './thresholds';
 export { dataCorrelation, pearson } from './correlation';

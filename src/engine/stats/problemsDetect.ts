@@ -138,8 +138,17 @@ export function expectedCvRatio(h: ArrayLike<number>, rank: number): number {
   }
   return Math.sqrt(s / (n - rank));
 }
-
+/** Every problem of one fitted model, in report order (each detector below pushes onto report.problems). */
 export function detectProblems(input: ModelAnalysisInput, report: ModelReport, k: Facts): void {
+  parameterProblems(input, report, k);
+  correlationProblems(input, report);
+  overfitProblems(input, report, k);
+  residualProblems(input, report, k);
+  influenceProblems(input, report, k);
+}
+
+/** Identifiability (rank, a plateau the data never reach), then each free parameter: at a bound, an asymptote or rate of a built-in not determined, poorly determined. */
+function parameterProblems(input: ModelAnalysisInput, report: ModelReport, k: Facts): void {
   const { params, thresholds: th } = input;
   const problems = report.problems;
   const base: (string | number)[] = ['models', input.index];
@@ -200,6 +209,15 @@ export function detectProblems(input: ModelAnalysisInput, report: ModelReport, k
       });
     }
   }
+}
+
+/** Pairwise correlation of the estimates: one problem per model, strongest pair first. */
+function correlationProblems(input: ModelAnalysisInput, report: ModelReport): void {
+  const { params, thresholds: th } = input;
+  const problems = report.problems;
+  const base: (string | number)[] = ['models', input.index];
+  const name = input.name;
+  const p = params.length;
 
   // pairwise correlation of the estimates: one problem per model, strongest pair first
   const cor = report.correlation;
@@ -227,6 +245,14 @@ export function detectProblems(input: ModelAnalysisInput, report: ModelReport, k
       });
     }
   }
+}
+
+/** Overfitting: residual degrees of freedom, parameters per row, polynomial degree per distinct x, the cross-validation ratio. */
+function overfitProblems(input: ModelAnalysisInput, report: ModelReport, k: Facts): void {
+  const { thresholds: th } = input;
+  const problems = report.problems;
+  const base: (string | number)[] = ['models', input.index];
+  const name = input.name;
 
   // overfitting
   let paramsFired = false;
@@ -286,6 +312,14 @@ export function detectProblems(input: ModelAnalysisInput, report: ModelReport, k
       path: base,
     });
   }
+}
+
+/** Residual structure: the runs test by x position, strong non-normality. */
+function residualProblems(input: ModelAnalysisInput, report: ModelReport, k: Facts): void {
+  const { thresholds: th } = input;
+  const problems = report.problems;
+  const base: (string | number)[] = ['models', input.index];
+  const name = input.name;
 
   // residual structure
   const tests = report.residualTests;
@@ -314,6 +348,15 @@ export function detectProblems(input: ModelAnalysisInput, report: ModelReport, k
       path: base,
     });
   }
+}
+
+/** Influential points: Cook's distance above cooksFactor/n (at most MAX_INFLUENTIAL_ROWS rows named). */
+function influenceProblems(input: ModelAnalysisInput, report: ModelReport, k: Facts): void {
+  const { thresholds: th } = input;
+  const problems = report.problems;
+  const base: (string | number)[] = ['models', input.index];
+  const name = input.name;
+
   const pts = report.points!;
   const cut = th.cooksFactor / k.n;
   const flagged: { row: number; d: number }[] = [];

@@ -14,10 +14,9 @@ import { crossValidate } from './crossval';
 import { computeBand, computeInverse, computePrediction, predictionPoint, variableRange, type PredictionContext } from './predict';
 import { fmtMessage as fmt } from '../../shared/numberFormat';
 import { DEFAULTS } from '../spec/defaults';
-import { terminationAdvice } from '../terminations';
 import { expandByCount, hasConstantColumn, identityOrder, lsqProblem, maxOf, minOf, orderByX } from './analysisData';
-import { describePoint, describeRanges, listRows, quoteList } from './problemText';
-import { detectProblems, noPlateau, rankDeficient, runawayAsymptote } from './problemsDetect';
+import { describePoint, describeRanges, quoteList } from './problemText';
+import { detectProblems, failureProblems } from './problemsDetect';
 
 const PROFILE_SECONDS: number = DEFAULTS.analysis.profileSeconds;
 const CV_SECONDS: number = DEFAULTS.analysis.cvSeconds;
@@ -120,39 +119,7 @@ export function analyzeModel(input: ModelAnalysisInput): ModelReport {
 
   // ------------------------------------------------------------ failure: report what we have, no inference
   if (report.status === 'failed') {
-    if (badRows.length > 0 || res.termination === 'non-finite') {
-      const rowsText = badRows.length ? ` at data row${badRows.length > 1 ? 's' : ''} ${listRows(badRows)}` : '';
-      problems.push({
-        code: 'non-finite-values',
-        severity: 'error',
-        message:
-          `${input.name}: the model gives a non-finite value (NaN or infinity)${rowsText}. ` +
-          `The formula cannot be evaluated there with these parameter values (e.g. log or sqrt of a negative number, division by zero, overflow in exp). ` +
-          `Try other start values, bounds that keep the parameters in the valid region (min/max), or exclude the rows concerned.`,
-        path: base,
-        ...(badRows.length ? { rows: badRows.slice(0, 100) } : {}),
-      });
-    }
-    const singular = res.termination === 'singular' && res.unidentifiable.length > 0;
-    // a plateau the data never reach: the solver chases the asymptote off to huge values (singular or no convergence)
-    const plateau = badRows.length === 0 ? runawayAsymptote(input, theta, res.unidentifiable) : null;
-    if (plateau) {
-      problems.push(noPlateau(input.name, plateau, base));
-    } else if (singular) {
-      const names = res.unidentifiable.map((j) => params[j]);
-      problems.push(rankDeficient(input.name, names, res.rank, pFree, base));
-    }
-    if (!res.converged && !singular && !plateau) {
-      problems.push({
-        code: 'no-convergence',
-        severity: 'error',
-        message:
-          `${input.name} did not converge: the solver stopped with '${res.termination}' after ${res.iterations} iteration${res.iterations === 1 ? '' : 's'}` +
-          `${res.message ? ` (${res.message})` : ''}. The estimates are not a least-squares solution, so no uncertainty is reported. ` +
-          terminationAdvice(res.termination),
-        path: base,
-      });
-    }
+    problems.push(...failureProblems(input, theta, badRows, pFree));
     for (let j = 0; j < p; j++) {
       report.params[params[j]] = { value: theta[j], se: null, t: null, p: null, ci: null, profileCi: null, fixed: input.fixed[j], atBound: res.atBound[j] ?? null };
     }

@@ -10,6 +10,7 @@ import { fmtMessage as fmt } from '../../shared/numberFormat';
 import { roleOf } from '../models/roles';
 import { maxOf, minOf } from './analysisData';
 import { listRows, quoteList } from './problemText';
+import { terminationAdvice } from '../terminations';
 
 
 export function rankDeficient(name: string, names: string[], rank: number, pFree: number, base: (string | number)[]): Problem {
@@ -107,6 +108,50 @@ export function rateNotDetermined(input: ModelAnalysisInput, param: string, pr: 
 /** Most rows an influential-points problem names (the largest Cook's distances). */
 export const MAX_INFLUENTIAL_ROWS = 100;
 
+
+/**
+ * The problems of a failed fit (no inference is made): non-finite model values, a plateau the data never reach or a
+ * singular fit, or no convergence with the termination's advice (TERMINATIONS, src/engine/terminations.ts).
+ */
+export function failureProblems(input: ModelAnalysisInput, theta: Float64Array, badRows: number[], pFree: number): Problem[] {
+  const { result: res, params } = input;
+  const base: (string | number)[] = ['models', input.index];
+  const problems: Problem[] = [];
+  if (badRows.length > 0 || res.termination === 'non-finite') {
+    const rowsText = badRows.length ? ` at data row${badRows.length > 1 ? 's' : ''} ${listRows(badRows)}` : '';
+    problems.push({
+      code: 'non-finite-values',
+      severity: 'error',
+      message:
+        `${input.name}: the model gives a non-finite value (NaN or infinity)${rowsText}. ` +
+        `The formula cannot be evaluated there with these parameter values (e.g. log or sqrt of a negative number, division by zero, overflow in exp). ` +
+        `Try other start values, bounds that keep the parameters in the valid region (min/max), or exclude the rows concerned.`,
+      path: base,
+      ...(badRows.length ? { rows: badRows.slice(0, 100) } : {}),
+    });
+  }
+  const singular = res.termination === 'singular' && res.unidentifiable.length > 0;
+  // a plateau the data never reach: the solver chases the asymptote off to huge values (singular or no convergence)
+  const plateau = badRows.length === 0 ? runawayAsymptote(input, theta, res.unidentifiable) : null;
+  if (plateau) {
+    problems.push(noPlateau(input.name, plateau, base));
+  } else if (singular) {
+    const names = res.unidentifiable.map((j) => params[j]);
+    problems.push(rankDeficient(input.name, names, res.rank, pFree, base));
+  }
+  if (!res.converged && !singular && !plateau) {
+    problems.push({
+      code: 'no-convergence',
+      severity: 'error',
+      message:
+        `${input.name} did not converge: the solver stopped with '${res.termination}' after ${res.iterations} iteration${res.iterations === 1 ? '' : 's'}` +
+        `${res.message ? ` (${res.message})` : ''}. The estimates are not a least-squares solution, so no uncertainty is reported. ` +
+        terminationAdvice(res.termination),
+      path: base,
+    });
+  }
+  return problems;
+}
 
 /** What the analysis found that the detection reads (rank, standard errors, profiles, leverages, runs). */
 export interface Facts {

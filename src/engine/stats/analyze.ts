@@ -1,12 +1,11 @@
 // Everything a fitted model reports: estimates with SE from s²(JᵀWJ)⁻¹, t, p, Wald and profile-t intervals, fit
 // statistics (R², information criteria after R's conventions), residual diagnostics, bands, predictions, inverse
 // predictions, cross-validation and the problems found along the way (docs/problems.md; detected in
-// problemsDetect.ts, the data helpers in analysisData.ts).
-import type { FitStats, ModelReport, ParamReport, PointsReport, Problem, ResidualTests } from '../report';
+// problemsDetect.ts; the fit statistics in fitStats.ts, the data helpers in analysisData.ts).
+import type { ModelReport, ParamReport, PointsReport, Problem, ResidualTests } from '../report';
 import type { ModelAnalysisInput } from './api';
 import { covarianceFromJacobian, leverage } from './covariance';
-import { chi2Sf, normalQuantile, tQuantile, tTwoSidedP, normalSf } from './distributions';
-import { informationCriteria, informationCriteriaKnownSigma } from './information';
+import { normalQuantile, tQuantile, tTwoSidedP, normalSf } from './distributions';
 import { durbinWatson, normalityTest } from './residualTests';
 import { runsByPosition } from './runs';
 import { profileIntervals } from './profile';
@@ -14,22 +13,14 @@ import { crossValidate } from './crossval';
 import { computeBand, computeInverse, computePrediction, predictionPoint, variableRange, type PredictionContext } from './predict';
 import { fmtMessage as fmt } from '../../shared/numberFormat';
 import { DEFAULTS } from '../spec/defaults';
-import { expandByCount, hasConstantColumn, identityOrder, lsqProblem, maxOf, minOf, orderByX } from './analysisData';
+import { emptyStats, fitStatistics } from './fitStats';
+import { expandByCount, identityOrder, lsqProblem, maxOf, minOf, orderByX } from './analysisData';
 import { describePoint, describeRanges, quoteList } from './problemText';
 import { detectProblems, failureProblems } from './problemsDetect';
 
 const PROFILE_SECONDS: number = DEFAULTS.analysis.profileSeconds;
 const CV_SECONDS: number = DEFAULTS.analysis.cvSeconds;
 
-function emptyStats(n: number, dof: number, sse: number): FitStats {
-  return {
-    n, dof, sse,
-    sigma: dof > 0 && Number.isFinite(sse) ? Math.sqrt(sse / dof) : null,
-    rmse: n > 0 ? Math.sqrt(sse / n) : NaN,
-    r2: null, adjR2: null, chi2: null, reducedChi2: null, logLik: null, aic: null, aicc: null, bic: null,
-    cvRmse: null, cvFolds: null,
-  };
-}
 
 
 function finiteOrNull(v: number): number | null {
@@ -181,43 +172,7 @@ export function analyzeModel(input: ModelAnalysisInput): ModelReport {
   report.correlation = corOut;
 
   // ------------------------------------------------------------ fit statistics
-  const stats = report.stats;
-  let sw = 0;
-  let swy = 0;
-  let swy2 = 0;
-  let nPos = 0;
-  let sumLogW = 0;
-  for (let i = 0; i < n; i++) {
-    const wi = w ? w[i] : 1;
-    const ci = count ? count[i] : 1;
-    sw += wi;
-    swy += wi * y[i];
-    swy2 += wi * y[i] * y[i];
-    if (wi > 0) {
-      nPos += ci;
-      if (weighted) sumLogW += ci * Math.log(wPrec![i]);
-    }
-  }
-  const uncentred = input.linear && !hasConstantColumn(J, n, p, free);
-  const ybar = sw > 0 ? swy / sw : NaN;
-  let sst = 0;
-  for (let i = 0; i < n; i++) sst += (w ? w[i] : 1) * (y[i] - ybar) ** 2;
-  const denom = uncentred ? swy2 : sst;
-  if (denom > 0) {
-    stats.r2 = 1 - sse / denom;
-    if (dof > 0) stats.adjR2 = 1 - ((1 - stats.r2) * (nObs - (uncentred ? 0 : 1))) / dof;
-  }
-  if (uncentred) stats.r2Uncentred = true;
-  if (weighted) {
-    stats.chi2 = sse;
-    stats.reducedChi2 = dof > 0 ? sse / dof : null;
-    stats.chi2P = absolute && dof > 0 ? chi2Sf(sse, dof) : null;
-  }
-  const ic = absolute ? informationCriteriaKnownSigma(sse, nPos, pFree, sumLogW) : informationCriteria(sse, nPos, pFree, sumLogW);
-  stats.logLik = ic.logLik;
-  stats.aic = ic.aic;
-  stats.aicc = ic.aicc;
-  stats.bic = ic.bic;
+  fitStatistics(report.stats, { y, w, count, wPrec, weighted, absolute, linear: input.linear, J, n, p, free, sse, dof, nObs, pFree });
 
   // ------------------------------------------------------------ points: leverage, standardized residuals, Cook's D
   // (with counts: the leverage of one of the row's identical observations, h/count, as in the expanded data)
@@ -256,8 +211,8 @@ export function analyzeModel(input: ModelAnalysisInput): ModelReport {
       maxIterations: input.solverOptions?.maxIterations,
       deadline: Date.now() + 1000 * (opts.cvSeconds ?? CV_SECONDS), shouldStop: input.shouldStop,
     });
-    stats.cvRmse = cv.rmse;
-    stats.cvFolds = cv.folds;
+    report.stats.cvRmse = cv.rmse;
+    report.stats.cvFolds = cv.folds;
     if (cv.rmse === null && cv.reason === 'timeout') {
       problems.push({
         code: 'cv-incomplete',

@@ -1,7 +1,8 @@
 // Everything a fitted model reports: estimates with SE from s²(JᵀWJ)⁻¹, t, p, Wald and profile-t intervals, fit
 // statistics (R², information criteria after R's conventions), residual diagnostics, bands, predictions, inverse
 // predictions, cross-validation and the problems found along the way (docs/problems.md; detected in
-// problemsDetect.ts; the fit statistics in fitStats.ts, the data helpers in analysisData.ts).
+// problemsDetect.ts; the fit statistics in fitStats.ts, predictions in predictReport.ts, the data helpers in
+// analysisData.ts).
 import type { ModelReport, ParamReport, PointsReport, Problem, ResidualTests } from '../report';
 import type { ModelAnalysisInput } from './api';
 import { covarianceFromJacobian, leverage } from './covariance';
@@ -10,12 +11,12 @@ import { durbinWatson, normalityTest } from './residualTests';
 import { runsByPosition } from './runs';
 import { profileIntervals } from './profile';
 import { crossValidate } from './crossval';
-import { computeBand, computeInverse, computePrediction, predictionPoint, variableRange, type PredictionContext } from './predict';
-import { fmtMessage as fmt } from '../../shared/numberFormat';
+import type { PredictionContext } from './predict';
+import { predictionsAndInverse } from './predictReport';
 import { DEFAULTS } from '../spec/defaults';
 import { emptyStats, fitStatistics } from './fitStats';
-import { expandByCount, identityOrder, lsqProblem, maxOf, minOf, orderByX } from './analysisData';
-import { describePoint, describeRanges, quoteList } from './problemText';
+import { expandByCount, identityOrder, lsqProblem, orderByX } from './analysisData';
+import { quoteList } from './problemText';
 import { detectProblems, failureProblems } from './problemsDetect';
 
 const PROFILE_SECONDS: number = DEFAULTS.analysis.profileSeconds;
@@ -259,97 +260,7 @@ export function analyzeModel(input: ModelAnalysisInput): ModelReport {
 
   // ------------------------------------------------------------ band, predictions, inverse
   const pctx: PredictionContext = { compiled, theta, cov, free, q: qWald, scale, X, w: wPrec, predictWeight: input.predictWeight };
-  if (input.variables.length === 1) report.band = computeBand(pctx, input.variables[0], opts.bandPoints ?? DEFAULTS.analysis.bandPoints);
-  const ranges = variableRange(X);
-  input.predict.forEach((entry, k) => {
-    const pt = predictionPoint(entry, input.variables);
-    if ('error' in pt) {
-      report.predictions.push({ x: entry, y: null, ci: null, pi: null, extrapolated: false });
-      problems.push({
-        code: 'prediction-invalid',
-        severity: 'warning',
-        message: `predict[${k}] ${pt.error}, so ${input.name} cannot be evaluated there.`,
-        path: ['predict', k],
-      });
-      return;
-    }
-    const pr = computePrediction(pctx, entry, pt.x);
-    report.predictions.push(pr);
-    if (pr.extrapolated) {
-      problems.push({
-        code: 'extrapolation',
-        severity: 'warning',
-        message:
-          `${input.name}: the prediction at ${describePoint(entry)} lies outside the data range (${describeRanges(input.variables, ranges)}). ` +
-          `Its intervals assume the model still holds there, which the data cannot confirm; treat it with care or collect data that cover it.`,
-        path: ['predict', k],
-      });
-    }
-  });
-  input.solveFor.forEach((yv, k) => {
-    if (input.variables.length !== 1) {
-      report.inverse.push({ y: yv, roots: [], extrapolated: false });
-      problems.push({
-        code: 'inverse-no-root',
-        severity: 'warning',
-        message: `${input.name} has several x variables (${input.variables.join(', ')}); inverse prediction (the back-calculated x at y = ${fmt(yv)}) needs a single x variable.`,
-        path: ['solveFor', k],
-      });
-      return;
-    }
-    const inv = computeInverse(pctx, yv);
-    report.inverse.push(inv);
-    const [lo, hi] = ranges[0];
-    if (inv.flat)
-      problems.push({
-        code: 'inverse-flat',
-        severity: 'warning',
-        message: `${input.name}: the curve is flat at y = ${fmt(yv)} over [${fmt(inv.flat[0])}, ${fmt(inv.flat[1])}], so no single x reads off there — solve for a value the curve crosses, or fit a model that changes with ${input.variables[0]}.`,
-        path: ['solveFor', k],
-      });
-    if (inv.moreRoots)
-      problems.push({
-        code: 'inverse-many-roots',
-        severity: 'warning',
-        message: `${input.name} crosses y = ${fmt(yv)} ${inv.roots.length + inv.moreRoots} times; the first ${inv.roots.length} are listed (the limit per value) — a curve that oscillates this much is rarely a usable calibration.`,
-        path: ['solveFor', k],
-      });
-    if (inv.flat && inv.roots.length === 0) {
-      // said above
-    } else if (inv.roots.length === 0) {
-      problems.push({
-        code: 'inverse-no-root',
-        severity: 'warning',
-        message:
-          `${input.name} does not reach y = ${fmt(yv)} within or near the data range (${input.variables[0]} from ${fmt(lo)} to ${fmt(hi)}), so no x is back-calculated for it (inverse prediction). ` +
-          `Check that the value is inside the range of the curve (fitted ${fmt(minOf(f))} to ${fmt(maxOf(f))}) and in the same units as y.`,
-        path: ['solveFor', k],
-      });
-    }
-    const open = inv.roots.filter((rt) => rt.interval[0] === null || rt.interval[1] === null);
-    if (open.length > 0 && Number.isFinite(qWald)) {
-      const sides = open.map((rt) => `${input.variables[0]} = ${fmt(rt.x)}: ${rt.interval[0] === null && rt.interval[1] === null ? 'both limits' : rt.interval[0] === null ? 'the lower limit' : 'the upper limit'}`);
-      problems.push({
-        code: 'inverse-unbounded',
-        severity: 'warning',
-        message:
-          `${input.name}: the ${Math.round(100 * input.confidence)}% interval for x at y = ${fmt(yv)} does not close (${sides.join('; ')} does not exist, so it is null): ` +
-          `the prediction interval contains y = ${fmt(yv)} however far x goes on that side, because the curve changes too little there compared with the scatter ` +
-          `(for a straight line: the slope is not significantly different from 0 at this confidence). More data, less scatter or standards further out make the interval finite.`,
-        path: ['solveFor', k],
-      });
-    }
-    if (inv.roots.length > 0 && inv.extrapolated) {
-      problems.push({
-        code: 'inverse-extrapolation',
-        severity: 'warning',
-        message:
-          `${input.name} reaches y = ${fmt(yv)} only outside the data range (at ${input.variables[0]} = ${inv.roots.map((rt) => fmt(rt.x)).join(', ')}; data from ${fmt(lo)} to ${fmt(hi)}). ` +
-          `The back-calculated x is extrapolated from the model's shape; extend the measured range (e.g. add standards) to read it reliably.`,
-        path: ['solveFor', k],
-      });
-    }
-  });
+  predictionsAndInverse(input, report, pctx, opts.bandPoints ?? DEFAULTS.analysis.bandPoints, f, qWald);
 
   // ------------------------------------------------------------ problems
   detectProblems(input, report, { rank, dof, unidentifiable, se, openProfile, profiled, h, n, pFree, runs });

@@ -43,7 +43,32 @@ interface RunResult {
   iterations: number;
   gnorm: number;
   message: string;
+  /** the evaluation at x (residuals, Jacobian, raw f and J), kept so that nothing is evaluated twice at one point */
+  at: Point;
+  /** a second set of buffers of the same sizes, for trial points */
+  spare: Point;
 }
+
+/** weighted residuals r (length m) and Jacobian A (m×q) of the free parameters, raw f (n) and J (n×p) at one point */
+interface Point {
+  r: Float64Array;
+  A: Float64Array;
+  f: Float64Array;
+  J: Float64Array;
+  /** false when the point was never evaluated successfully (r, A, f, J undefined) */
+  ok: boolean;
+}
+
+function newPoint(P: Prepared, m: number): Point {
+  return { r: new Float64Array(m), A: new Float64Array(m * P.q), f: new Float64Array(P.n), J: new Float64Array(P.n * P.p), ok: false };
+}
+
+/**
+ * Each trial point is evaluated once, with its Jacobian (kept when the step is accepted, so the next iteration needs no
+ * second call). Measured in bench/solve-speed.ts: a generated kernel's f alone costs 50–80 % of f with J (the
+ * transcendental functions are shared), and about 1 trial in 7 is rejected, so MINPACK's schedule (f at the trial,
+ * J after acceptance) costs more calls and more time here. No point is ever evaluated twice.
+ */
 
 /** trust-region Levenberg–Marquardt with bounds and fixed parameters (see file header) */
 export function solveNonlinear(problem: LsqProblem, opts: SolveOptions): SolveResult {
@@ -67,15 +92,16 @@ export function solvePrepared(P: Prepared, only?: Scaling): SolveResult {
   for (let k = 0; k < q; k++) x0[k] = P.theta0[free[k]];
 
   let best: RunResult;
-  let at: AtSolution | null = null;
+  let info: RankInfo | null = null;
   if (q === 0) {
-    const r = new Float64Array(m);
-    const ok = evaluate(P, P.theta0, r, null, m);
-    best = { x: x0, fnorm: ok ? norm2(r, 0, n) : NaN, termination: ok ? 'gradient' : 'non-finite', iterations: 0, gnorm: 0,
-      message: ok ? 'every parameter is fixed: nothing to fit' : 'the model gives NaN or ±Infinity at the given parameter values' };
+    const at = newPoint(P, m);
+    at.ok = evaluate(P, P.theta0, at.r, at.A, m, at);
+    const ok = at.ok;
+    best = { x: x0, fnorm: ok ? norm2(at.r, 0, n) : NaN, termination: ok ? 'gradient' : 'non-finite', iterations: 0, gnorm: 0,
+      message: ok ? 'every parameter is fixed: nothing to fit' : 'the model gives NaN or ±Infinity at the given parameter values', at, spare: at };
   } else {
     best = lmRun(P, x0, only ?? 'jacobian');
-    if (!only && shouldRetry(P, best, (a) => (at = a))) {
+    if (!only && shouldRetry(P, best, (a) => (info = a))) {
       const second = lmRun(P, x0, 'unit');
       if (second.termination === 'cancelled' || second.termination === 'time-limit') {
         if (!(best.fnorm <= second.fnorm)) best = second;
@@ -84,33 +110,26 @@ export function solvePrepared(P: Prepared, only?: Scaling): SolveResult {
         best = second;
       }
     }
-    if (CONVERGED.includes(best.termination) && P.refine) polish(P, best);
+    if (CONVERGED.includes(best.termination) && P.refine) {
+      const before = best.x;
+      polish(P, best);
+      if (best.x !== before) info = null;
+    }
   }
-  return finish(P, best, at);
+  return finish(P, best, info);
 }
 
-/** the evaluation and rank analysis at x, kept by shouldRetry so that finish need not repeat them at the same x */
-interface AtSolution {
-  x: Float64Array;
-  r: Float64Array;
-  f: Float64Array;
-  J: Float64Array;
-  info: Pick<SolveResult, 'rank' | 'unidentifiable' | 'atBound'>;
-}
+type RankInfo = Pick<SolveResult, 'rank' | 'unidentifiable' | 'atBound'>;
 
-function shouldRetry(P: Prepared, run: RunResult, keep?: (at: AtSolution) => void): boolean {
+function shouldRetry(P: Prepared, run: RunResult, keep?: (info: RankInfo) => void): boolean {
   if (run.termination === 'cancelled' || run.termination === 'time-limit' || run.termination === 'exact') return false;
   if (!CONVERGED.includes(run.termination)) return true;
   // a step-size stop away from a stationary point (scaled gradient not small) may be a stall of this scaling
   if (run.termination === 'step-size' && !(run.gnorm <= RETRY_GNORM)) return true;
   // converged, but at a point where the Jacobian has lost rank (a plateau such as exp(−b x) → 0)
-  const theta = fullTheta(P, run.x);
-  const m = Math.max(P.n, P.q);
-  const r = new Float64Array(m);
-  const A = new Float64Array(m * P.q);
-  if (!evaluate(P, theta, r, A, m)) return true;
-  const info = solutionInfo(P, theta, A, m);
-  keep?.({ x: Float64Array.from(run.x), r, f: Float64Array.from(P.f), J: Float64Array.from(P.J), info });
+  if (!run.at.ok) return true;
+  const info = solutionInfo(P, fullTheta(P, run.x), run.at.A, Math.max(P.n, P.q));
+  keep?.(info);
   return info.rank < P.q;
 }
 
@@ -120,25 +139,12 @@ function fullTheta(P: Prepared, x: Float64Array): Float64Array {
   return theta;
 }
 
-function finish(P: Prepared, run: RunResult, at: AtSolution | null = null): SolveResult {
+/** the result at run.x from the run's own evaluation there (run.at): the solution is never evaluated again */
+function finish(P: Prepared, run: RunResult, known: RankInfo | null = null): SolveResult {
   const theta = fullTheta(P, run.x);
   const m = Math.max(P.n, P.q);
-  let r: Float64Array;
-  let f: Float64Array;
-  let J: Float64Array;
-  let ok = true;
-  let info: Pick<SolveResult, 'rank' | 'unidentifiable' | 'atBound'>;
-  if (at && at.x.length === run.x.length && at.x.every((v, k) => v === run.x[k])) {
-    // shouldRetry evaluated this very point (no second run, no polishing step taken)
-    ({ r, f, J, info } = at);
-  } else {
-    r = new Float64Array(m);
-    const A = new Float64Array(m * P.q);
-    ok = evaluate(P, theta, r, A, m);
-    f = Float64Array.from(P.f);
-    J = Float64Array.from(P.J);
-    info = ok ? solutionInfo(P, theta, A, m) : { rank: 0, unidentifiable: [], atBound: Array.from({ length: P.p }, (): 'min' | 'max' | null => null) };
-  }
+  const { r, f, J, ok } = run.at;
+  const info: RankInfo = known ?? (ok ? solutionInfo(P, theta, run.at.A, m) : { rank: 0, unidentifiable: [], atBound: Array.from({ length: P.p }, (): 'min' | 'max' | null => null) });
   let termination = run.termination;
   let message = run.message;
   if (ok && CONVERGED.includes(termination) && info.rank < P.q) {
@@ -202,15 +208,17 @@ function lmRun(P: Prepared, xStart: Float64Array, scaling: Scaling): RunResult {
     hi[k] = P.upper[P.free[k]];
   }
   let x = Float64Array.from(xStart);
-  let theta = fullTheta(P, x);
-  let fvec = new Float64Array(m);
-  let A = new Float64Array(m * q);
-  let fvec1 = new Float64Array(m);
-  let A1 = new Float64Array(m * q);
+  const theta = fullTheta(P, x);
+  // cur = the evaluation at x; nxt = the trial point (swapped on acceptance, never copied)
+  let cur = newPoint(P, m);
+  let nxt = newPoint(P, m);
+  let fvec = cur.r;
+  let A = cur.A;
   const done = (termination: Termination, message: string, iterations: number, fnorm: number, gnorm = NaN): RunResult => ({
-    x, fnorm, termination, iterations, gnorm, message,
+    x, fnorm, termination, iterations, gnorm, message, at: cur, spare: nxt,
   });
-  if (!evaluate(P, theta, fvec, A, m)) {
+  cur.ok = evaluate(P, theta, fvec, A, m, cur);
+  if (!cur.ok) {
     return done('non-finite', 'the model or its derivatives give NaN or ±Infinity at the starting values: choose other starts or bounds', 0, NaN);
   }
   let fnorm = norm2(fvec, 0, n);
@@ -314,9 +322,29 @@ function lmRun(P: Prepared, xStart: Float64Array, scaling: Scaling): RunResult {
       const pnorm = alpha * pnormLM;
       if (iter === 0) delta = Math.min(delta, pnorm);
 
-      const thetaT = fullTheta(P, trial);
-      const ok = evaluate(P, thetaT, fvec1, A1, m);
+      for (let k = 0; k < q; k++) theta[P.free[k]] = trial[k];
+      const fvec1 = nxt.r;
+      const ok = evaluate(P, theta, fvec1, nxt.A, m, nxt);
       const fnorm1 = ok ? norm2(fvec1, 0, n) : Infinity;
+      // actual and predicted reductions (MINPACK), the latter for the shortened step α p
+      // actred = (‖r‖² − ‖r₁‖²)/‖r‖² as Σ (r − r₁)(r + r₁): free of the cancellation of 1 − (‖r₁‖/‖r‖)² near the minimum
+      let actred = -1;
+      let prered = 0;
+      let dirder = 0;
+      let ratio = 0;
+      if (ok) {
+        if (0.1 * fnorm1 < fnorm) actred = diffOfSquares(fvec, fvec1, n) / fnorm / fnorm;
+        wa3.fill(0, 0, sub.k);
+        for (let j = 0; j < sub.k; j++) {
+          const temp = step[sub.ipvt[j]];
+          for (let i = 0; i <= j; i++) wa3[i] += sub.r[j * sub.k + i] * temp;
+        }
+        const temp1 = norm2(wa3, 0, sub.k) / fnorm;
+        const temp2 = (Math.sqrt(par) * pnormLM) / fnorm;
+        prered = alpha * (2 - alpha) * temp1 * temp1 + 2 * alpha * temp2 * temp2;
+        dirder = -alpha * (temp1 * temp1 + temp2 * temp2);
+        ratio = prered !== 0 ? actred / prered : 0;
+      }
       if (!ok) {
         // reject explicitly and shrink the region
         delta = 0.25 * Math.min(delta, pnorm > 0 ? pnorm : delta);
@@ -326,22 +354,6 @@ function lmRun(P: Prepared, xStart: Float64Array, scaling: Scaling): RunResult {
         }
         continue;
       }
-      // actual and predicted reductions (MINPACK), the latter for the shortened step α p
-      // actred = (‖r‖² − ‖r₁‖²)/‖r‖² as Σ (r − r₁)(r + r₁): free of the cancellation of 1 − (‖r₁‖/‖r‖)² near the minimum
-      let actred = -1;
-      if (0.1 * fnorm1 < fnorm) {
-        actred = diffOfSquares(fvec, fvec1, n) / fnorm / fnorm;
-      }
-      wa3.fill(0, 0, sub.k);
-      for (let j = 0; j < sub.k; j++) {
-        const temp = step[sub.ipvt[j]];
-        for (let i = 0; i <= j; i++) wa3[i] += sub.r[j * sub.k + i] * temp;
-      }
-      const temp1 = norm2(wa3, 0, sub.k) / fnorm;
-      const temp2 = (Math.sqrt(par) * pnormLM) / fnorm;
-      const prered = alpha * (2 - alpha) * temp1 * temp1 + 2 * alpha * temp2 * temp2;
-      const dirder = -alpha * (temp1 * temp1 + temp2 * temp2);
-      const ratio = prered !== 0 ? actred / prered : 0;
       if (ratio <= 0.25) {
         let temp = actred >= 0 ? 0.5 : (0.5 * dirder) / (dirder + 0.5 * actred);
         if (0.1 * fnorm1 >= fnorm || temp < 0.1) temp = 0.1;
@@ -354,10 +366,12 @@ function lmRun(P: Prepared, xStart: Float64Array, scaling: Scaling): RunResult {
       }
       const accepted = ratio >= 1e-4;
       if (accepted) {
-        x = Float64Array.from(trial);
+        x.set(trial);
         xnorm = scaledNorm(diagAll, x);
-        const tf = fvec; fvec = fvec1; fvec1 = tf;
-        const tA = A; A = A1; A1 = tA;
+        nxt.ok = true;
+        const t = cur; cur = nxt; nxt = t;
+        fvec = cur.r;
+        A = cur.A;
         fnorm = fnorm1;
         iter++;
         if (P.onIteration) P.onIteration(iter, fnorm * fnorm, fullTheta(P, x));
@@ -565,11 +579,10 @@ function qrsolv(n: number, r: Float64Array, ldr: number, ipvt: Int32Array, diag:
 function polish(P: Prepared, run: RunResult): void {
   const { n, q } = P;
   const m = Math.max(n, q);
-  const r = new Float64Array(m);
-  const A = new Float64Array(m * q);
-  const r1 = new Float64Array(m);
-  const A1 = new Float64Array(m * q);
-  if (!evaluate(P, fullTheta(P, run.x), r, A, m)) return;
+  if (!run.at.ok) return;
+  // the run's evaluation at its solution starts the polish; trial points go to the spare buffers, swapped when taken
+  let r = run.at.r;
+  let A = run.at.A;
   let fnorm = norm2(r, 0, n);
   const tolAbs = 16 * EPS * norm2(weightedY(P), 0, n);
   const lo = P.free.map((j) => P.lower[j]);
@@ -638,13 +651,17 @@ function polish(P: Prepared, run: RunResult): void {
       xNew[k] = v;
     }
     if (!changed) return;
-    if (!evaluate(P, fullTheta(P, xNew), r1, A1, m)) return;
-    const fnorm1 = norm2(r1, 0, n);
+    const trial = run.spare;
+    if (!evaluate(P, fullTheta(P, xNew), trial.r, trial.A, m, trial)) return;
+    const fnorm1 = norm2(trial.r, 0, n);
     if (!(fnorm1 <= fnorm + tolAbs)) return;
     run.x = xNew;
     run.fnorm = fnorm1;
-    r.set(r1);
-    A.set(A1);
+    trial.ok = true;
+    run.spare = run.at;
+    run.at = trial;
+    r = trial.r;
+    A = trial.A;
     fnorm = Math.min(fnorm, fnorm1);
     prevZ = zn;
     if (zn <= 1e-15 * xs) return;

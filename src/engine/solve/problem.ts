@@ -78,9 +78,14 @@ export function prepare(problem: LsqProblem, opts: SolveOptions, defaultMaxItera
 /**
  * Evaluate at the full parameter vector θ: writes r (length m ≥ n, rows ≥ n zero) and, when A is given, the
  * weighted Jacobian of the free parameters (m×q column-major). Returns false when anything is NaN/±Inf.
+ * The model's raw f and J go to `raw` (default: the scratch buffers P.f, P.J).
  */
-export function evaluate(P: Prepared, theta: Float64Array, r: Float64Array, A: Float64Array | null, m: number): boolean {
-  const { n, sw, f, J, free, problem } = P;
+export function evaluate(
+  P: Prepared, theta: Float64Array, r: Float64Array, A: Float64Array | null, m: number,
+  raw: { f: Float64Array; J: Float64Array } = P,
+): boolean {
+  const { n, sw, free, problem } = P;
+  const { f, J } = raw;
   P.evaluations++;
   f.fill(NaN);
   if (A) J.fill(NaN);

@@ -69,6 +69,7 @@ async function timedRun(spec: object, name: string): Promise<{ phases: [string, 
   let t = performance.now();
   const t0 = t;
   const res = await runSpecFile(specPath, {
+    workspaceRoot: dir,
     onProgress: (msg) => {
       const now = performance.now();
       phases.push([label, (now - t) / 1000]);

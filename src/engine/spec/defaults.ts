@@ -31,6 +31,10 @@ export const DEFAULTS = {
   analysis: {
     /** Levenberg–Marquardt iterations of each constrained refit while profiling (a count of work) */
     profileIterations: 200,
+    /** Gauss–Newton steps of one profile point by continuation before it falls back to a Levenberg–Marquardt refit */
+    profileSteps: 10,
+    /** profile points (τ evaluations) per side of one parameter: the walk outwards and the root search together */
+    profilePoints: 40,
     /** Levenberg–Marquardt iterations of each cross-validation refit (a count of work) */
     cvIterations: 50,
     /** wall-clock guard of profiling one model, seconds: stops only a runaway profile (problem `profile-incomplete`) */

@@ -294,6 +294,10 @@ export function fitreportSchema(): Schema {
     bic: nnum('Bayesian information criterion.'),
     cvRmse: nnum('Cross-validated RMSE.'),
     cvFolds: { type: ['integer', 'null'], description: 'Folds of the cross-validation.' },
+    cvMethod: {
+      type: ['string', 'null'], enum: ['downdate', 'refit', null],
+      description: `How the held-out predictions were made: "downdate" = exact block downdate of a linear fit (equal to refitting without each fold, to rounding); "refit" = refits started from the full-data estimate, at most ${DEFAULTS.analysis.cvIterations} Levenberg–Marquardt iterations each. null when not cross-validated.`,
+    },
   }, ['n', 'dof', 'sse', 'sigma', 'rmse', 'r2', 'adjR2', 'chi2', 'reducedChi2', 'logLik', 'aic', 'aicc', 'bic', 'cvRmse', 'cvFolds']);
   const residualTests = {
     description: 'Tests on the residuals, or null.',

@@ -207,6 +207,12 @@ export interface FitStats {
   /** cross-validated RMSE and the number of folds it used */
   cvRmse: number | null;
   cvFolds: number | null;
+  /**
+   * how the held-out predictions were made: 'downdate' = exact block downdate of a linear fit (the same numbers as
+   * refitting without each fold, to rounding); 'refit' = refits from the full-data estimate, at most
+   * DEFAULTS.analysis.cvIterations Levenberg–Marquardt iterations each; null when not cross-validated
+   */
+  cvMethod?: 'downdate' | 'refit' | null;
 }
 
 /** Tests on the residuals in row order: runs (pattern), normality and Durbin–Watson (autocorrelation); each null when it cannot be computed. */

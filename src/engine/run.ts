@@ -506,7 +506,7 @@ function failedModel(
     correlation: null,
     stats: {
       n: 0, dof: 0, sse: NaN, sigma: null, rmse: NaN, r2: null, adjR2: null, chi2: null, reducedChi2: null,
-      logLik: null, aic: null, aicc: null, bic: null, cvRmse: null, cvFolds: null,
+      logLik: null, aic: null, aicc: null, bic: null, cvRmse: null, cvFolds: null, cvMethod: null,
     },
     residualTests: null,
     band: null,

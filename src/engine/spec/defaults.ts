@@ -36,7 +36,7 @@ export const DEFAULTS = {
     /** profile points (τ evaluations) per side of one parameter: the walk outwards and the root search together */
     profilePoints: 40,
     /** Levenberg–Marquardt iterations of each cross-validation refit (a count of work) */
-    cvIterations: 50,
+    cvIterations: 8,
     /** wall-clock guard of profiling one model, seconds: stops only a runaway profile (problem `profile-incomplete`) */
     profileSeconds: 10,
     /** wall-clock guard of cross-validating one model, seconds: stops only a runaway run (problem `cv-incomplete`) */

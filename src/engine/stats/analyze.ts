@@ -214,6 +214,7 @@ export function analyzeModel(input: ModelAnalysisInput): ModelReport {
     });
     report.stats.cvRmse = cv.rmse;
     report.stats.cvFolds = cv.folds;
+    report.stats.cvMethod = cv.method;
     if (cv.rmse === null && cv.reason === 'timeout') {
       problems.push({
         code: 'cv-incomplete',

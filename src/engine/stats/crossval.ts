@@ -1,9 +1,15 @@
-// k-fold cross-validated RMSE with deterministic folds shared by every model of a spec: rows sorted by the first x
-// variable (ties by row order), fold = rank mod k, k = min(10, n) (common practice; DESIGN.md "Cross-validation").
-// Nonlinear refits are warm-started from the full-data estimate with a shorter iteration cap; linear refits skip the
-// iterative refinement (their estimates are not reported, only their predictions of the held-out rows).
+// k-fold cross-validated RMSE by exact block downdates for linear models (deleted-block residuals e₋f = (I − H_ff)⁻¹ e_f with H_ff = Q_f Q_fᵀ from the thin QR of the weighted design, by the Woodbury identity; Belsley, Kuh & Welsch 1980 §2.1) and warm-started Levenberg–Marquardt refits with a fixed iteration cap for nonlinear ones.
+//
+// Folds are deterministic and shared by every model of a spec: rows sorted by the first x variable (ties by row
+// order), fold = rank mod k, k = min(10, n) (common practice; DESIGN.md "Cross-validation").
+// - linear (no bound on a free parameter, full rank): e₋f = e_f + Q_f (I − Q_fᵀQ_f)⁻¹ Q_fᵀ e_f, a q×q solve per fold,
+//   O(n q²) in all — the held-out residuals of the refit without fold f, exactly (to rounding) and without refitting.
+// - nonlinear (or linear with bounds, or rank-deficient): a refit on the other folds from the full-data estimate,
+//   at most DEFAULTS.analysis.cvIterations Levenberg–Marquardt iterations and no polish (a count, the same on every
+//   machine); the report's `cvMethod` says which was used.
 import type { CompiledFormula } from '../formula/types';
 import { solve } from '../solve';
+import { qrFactor, applyQ, rankTolerance } from '../solve/linalg';
 import { DEFAULTS } from '../spec/defaults';
 import { sortedOrder } from '../data/order';
 
@@ -51,6 +57,8 @@ export interface CvContext {
   upper: ArrayLike<number>;
   fixed: boolean[];
   linear: boolean;
+  /** 'refit': refit every fold even where a linear model could be downdated (tests compare the two) */
+  method?: CvMethod;
   /** sortedOrder(X[0]) when the caller has it already */
   order?: Int32Array;
   maxIterations?: number;
@@ -58,22 +66,130 @@ export interface CvContext {
   shouldStop?: () => boolean;
 }
 
-export type CvResult = { rmse: number; folds: number } | { rmse: null; folds: number | null; reason: 'too-few-rows' | 'timeout' | 'failed' };
+/** how the held-out predictions were obtained: exact downdate of the linear fit, or warm-started capped refits */
+export type CvMethod = 'downdate' | 'refit';
+
+export type CvResult =
+  | { rmse: number; folds: number; method: CvMethod }
+  | { rmse: null; folds: number | null; method: CvMethod | null; reason: 'too-few-rows' | 'timeout' | 'failed' };
+
+/** Σ_f ‖e₋f‖² by block downdates of the full linear fit (see file header), or null when a refit is needed. */
+function downdatedSum(ctx: CvContext, k: number, testRows: Int32Array, start: Int32Array): number | null {
+  const n = ctx.y.length;
+  const p = ctx.theta.length;
+  const free: number[] = [];
+  for (let j = 0; j < p; j++) {
+    if (ctx.fixed[j]) continue;
+    if (Number.isFinite(ctx.lower[j]) || Number.isFinite(ctx.upper[j])) return null; // a refit could meet the bound
+    free.push(j);
+  }
+  const q = free.length;
+  if (q === 0 || n <= q) return null;
+  const f = new Float64Array(n);
+  const J = new Float64Array(n * p);
+  ctx.compiled.evaluateWithJacobian(ctx.theta, ctx.X, f, J);
+  const e = new Float64Array(n);
+  const A = new Float64Array(n * q);
+  for (let i = 0; i < n; i++) {
+    const sw = Math.sqrt(ctx.w ? ctx.w[i] : 1);
+    e[i] = sw * (ctx.y[i] - f[i]);
+    for (let t = 0; t < q; t++) A[t * n + i] = sw * J[free[t] * n + i];
+  }
+  const qr = qrFactor(A, n, q, true);
+  const tol = rankTolerance(n, q) * Math.abs(qr.rdiag[0]);
+  for (let t = 0; t < q; t++) if (!(Math.abs(qr.rdiag[t]) > tol)) return null;
+  // thin Q (n×q, column-major), column t = Q e_t
+  const Q = new Float64Array(n * q);
+  for (let t = 0; t < q; t++) {
+    const col = Q.subarray(t * n, t * n + n);
+    col[t] = 1;
+    applyQ(qr, col);
+  }
+  let sum = 0;
+  const G = new Float64Array(q * q);
+  const u = new Float64Array(q);
+  for (let fIdx = 0; fIdx < k; fIdx++) {
+    const rows = testRows.subarray(start[fIdx], start[fIdx + 1]);
+    // G = I − Q_fᵀQ_f, u = Q_fᵀ e_f
+    G.fill(0);
+    u.fill(0);
+    for (const i of rows) {
+      for (let a = 0; a < q; a++) {
+        const qa = Q[a * n + i];
+        u[a] += qa * e[i];
+        for (let b = 0; b <= a; b++) G[a * q + b] += qa * Q[b * n + i];
+      }
+    }
+    for (let a = 0; a < q; a++) {
+      for (let b = 0; b < a; b++) G[b * q + a] = G[a * q + b] = -G[a * q + b];
+      G[a * q + a] = 1 - G[a * q + a];
+    }
+    const z = cholSolve(G, u, q);
+    if (!z) return null; // the fold holds (nearly) all the leverage of a direction: the refit tells what happens
+    for (const i of rows) {
+      let d = e[i];
+      for (let a = 0; a < q; a++) d += Q[a * n + i] * z[a];
+      if (!Number.isFinite(d)) return null;
+      sum += d * d;
+    }
+  }
+  return sum;
+}
+
+/** Solve G z = u for symmetric positive definite G (q×q) by Cholesky; null when G is not positive definite to rounding. */
+function cholSolve(G: Float64Array, u: Float64Array, q: number): Float64Array | null {
+  const L = new Float64Array(q * q);
+  for (let j = 0; j < q; j++) {
+    let d = G[j * q + j];
+    for (let t = 0; t < j; t++) d -= L[j * q + t] * L[j * q + t];
+    if (!(d > 64 * Number.EPSILON * G[j * q + j])) return null;
+    const ljj = Math.sqrt(d);
+    L[j * q + j] = ljj;
+    for (let i = j + 1; i < q; i++) {
+      let s = G[i * q + j];
+      for (let t = 0; t < j; t++) s -= L[i * q + t] * L[j * q + t];
+      L[i * q + j] = s / ljj;
+    }
+  }
+  const z = Float64Array.from(u);
+  for (let i = 0; i < q; i++) {
+    let s = z[i];
+    for (let t = 0; t < i; t++) s -= L[i * q + t] * z[t];
+    z[i] = s / L[i * q + i];
+  }
+  for (let i = q - 1; i >= 0; i--) {
+    let s = z[i];
+    for (let t = i + 1; t < q; t++) s -= L[t * q + i] * z[t];
+    z[i] = s / L[i * q + i];
+  }
+  return z;
+}
 
 /** √(Σ w_i (y_i − ŷ_(−i))² / n), ŷ_(−i) from the fit without row i's fold. */
 export function crossValidate(ctx: CvContext): CvResult {
   const n = ctx.y.length;
   const pFree = ctx.fixed.filter((f) => !f).length;
-  if (n < 2) return { rmse: null, folds: null, reason: 'too-few-rows' };
+  if (n < 2) return { rmse: null, folds: null, method: null, reason: 'too-few-rows' };
   const x = ctx.X[0] ?? new Float64Array(n);
   const { fold, k } = cvFolds(x, 10, ctx.order && ctx.order.length === n ? ctx.order : sortedOrder(x));
   // the smallest training set must leave at least one residual degree of freedom
-  if (n - Math.ceil(n / k) <= pFree) return { rmse: null, folds: k, reason: 'too-few-rows' };
+  if (n - Math.ceil(n / k) <= pFree) return { rmse: null, folds: k, method: null, reason: 'too-few-rows' };
   const { test: testRows, start } = foldRows(fold, k);
+  if (ctx.linear && ctx.method !== 'refit') {
+    const s = downdatedSum(ctx, k, testRows, start);
+    if (s !== null) return { rmse: Math.sqrt(s / n), folds: k, method: 'downdate' };
+  }
+  return refitFolds(ctx, fold, k, testRows, start);
+}
+
+/** the held-out predictions of capped, warm-started refits without each fold */
+function refitFolds(ctx: CvContext, fold: Int32Array, k: number, testRows: Int32Array, start: Int32Array): CvResult {
+  const n = ctx.y.length;
+  const method: CvMethod = 'refit';
   const train = new Int32Array(n);
   let sum = 0;
   for (let f = 0; f < k; f++) {
-    if (Date.now() > ctx.deadline || ctx.shouldStop?.()) return { rmse: null, folds: k, reason: 'timeout' };
+    if (Date.now() > ctx.deadline || ctx.shouldStop?.()) return { rmse: null, folds: k, method, reason: 'timeout' };
     const test = testRows.subarray(start[f], start[f + 1]);
     let m = 0;
     for (let i = 0; i < n; i++) if (fold[i] !== f) train[m++] = i;
@@ -94,16 +210,16 @@ export function crossValidate(ctx: CvContext): CvResult {
         seconds: Math.max(0.05, (ctx.deadline - Date.now()) / 1000), shouldStop: ctx.shouldStop,
       },
     );
-    if (res.termination === 'cancelled' || res.termination === 'time-limit') return { rmse: null, folds: k, reason: 'timeout' };
+    if (res.termination === 'cancelled' || res.termination === 'time-limit') return { rmse: null, folds: k, method, reason: 'timeout' };
     const Xv = ctx.X.map((col) => gather(col, test));
     const pred = new Float64Array(test.length);
     compiled.evaluate(res.theta, Xv, pred);
     for (let t = 0; t < test.length; t++) {
       const i = test[t];
       const e = ctx.y[i] - pred[t];
-      if (!Number.isFinite(e)) return { rmse: null, folds: k, reason: 'failed' };
+      if (!Number.isFinite(e)) return { rmse: null, folds: k, method, reason: 'failed' };
       sum += (ctx.w ? ctx.w[i] : 1) * e * e;
     }
   }
-  return { rmse: Math.sqrt(sum / n), folds: k };
+  return { rmse: Math.sqrt(sum / n), folds: k, method };
 }

@@ -35,7 +35,7 @@ export function emptyStats(n: number, dof: number, sse: number): FitStats {
     sigma: dof > 0 && Number.isFinite(sse) ? Math.sqrt(sse / dof) : null,
     rmse: n > 0 ? Math.sqrt(sse / n) : NaN,
     r2: null, adjR2: null, chi2: null, reducedChi2: null, logLik: null, aic: null, aicc: null, bic: null,
-    cvRmse: null, cvFolds: null,
+    cvRmse: null, cvFolds: null, cvMethod: null,
   };
 }
 

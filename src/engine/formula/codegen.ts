@@ -1,6 +1,9 @@
 // Code generation: JavaScript source built ONLY from the checked expression graph — identifiers become array
 // indices (theta[j], X[k][i]), numbers round-trip literals, functions come from a fixed table — then `new Function`.
-// One loop over the points per call; subexpressions free of the variables are hoisted out of the loop.
+// One loop over the points per call; subexpressions free of the variables are hoisted out of the loop; common
+// subexpressions are shared by the hash-consed graph, and a power a^(b−1) of the power rule reuses a^b already
+// computed in the same kernel as a^b / a (one Math.pow per power; Math.pow itself where a = 0 or a^b is not a normal
+// finite number, so zeros, subnormals and overflow keep their exact limits).
 // Large graphs (a product of hundreds of parameters has a Jacobian of O(p²) nodes) keep their intermediate values in
 // one Float64Array instead of local constants: a function with a hundred thousand locals overflows the stack when
 // called, an array slot per node does not.
@@ -36,6 +39,8 @@ export const SLOT_THRESHOLD = 4000;
 export class Emitter {
   /** node id → index in the slot array `s`, when intermediate values live in an array */
   private slots: Map<number, number> | null = null;
+  /** nodes emitted so far in the current kernel (see begin) */
+  private emitted = new Set<number>();
 
   constructor(private readonly g: Graph) {}
 
@@ -44,6 +49,23 @@ export class Emitter {
     this.slots = new Map();
     for (const id of ids) if (!this.slots.has(id)) this.slots.set(id, this.slots.size);
     return this.slots.size;
+  }
+
+  /** start a new kernel: nothing computed yet */
+  begin(): this {
+    this.emitted.clear();
+    return this;
+  }
+
+  /** a^b computed already in this kernel, for the power a^e with e = b − 1 */
+  private sharedPower(base: number, expo: number): number | undefined {
+    const e = this.g.get(expo);
+    let b: number | undefined;
+    if (e.op === 'const') b = this.g.findConst(e.value + 1);
+    else if (e.op === 'sub' && this.g.isConst(e.args[1], 1)) b = e.args[0];
+    if (b === undefined) return undefined;
+    const w = this.g.find('pow', [base, b]);
+    return w !== undefined && this.emitted.has(w) ? w : undefined;
   }
 
   ref(id: number): string {
@@ -76,6 +98,12 @@ export class Emitter {
           if (e.value === -1) return `1 / ${a}`;
           if (e.value === -2) return `1 / (${a} * ${a})`;
         }
+        const w = this.sharedPower(n.args[0], n.args[1]);
+        if (w !== undefined) {
+          const a = r(0);
+          const v = this.ref(w);
+          return `(${a} !== 0 && Math.abs(${v}) >= 2.2250738585072014e-308 && Math.abs(${v}) < Infinity ? ${v} / ${a} : Math.pow(${a}, ${r(1)}))`;
+        }
         return `Math.pow(${r(0)}, ${r(1)})`;
       }
       case 'fn': {
@@ -107,6 +135,7 @@ export class Emitter {
       const n = this.g.get(id);
       if (n.op === 'const' || n.op === 'param' || n.op === 'var') continue;
       out.push(`${indent}${this.slots ? '' : 'const '}${this.ref(id)} = ${this.expr(n)};`);
+      this.emitted.add(id);
     }
     return out;
   }
@@ -149,7 +178,7 @@ export function generateKernels(g: Graph, f: number, d: readonly number[], slotT
   // evaluate(theta, X, out)
   const pe = plan(g, [f]);
   const ee = emitter(pe);
-  let e = ee.e;
+  let e = ee.e.begin();
   const evaluate = [
     '"use strict";',
     'return function evaluate(theta, X, out) {',
@@ -169,7 +198,7 @@ export function generateKernels(g: Graph, f: number, d: readonly number[], slotT
   // evaluateWithJacobian(theta, X, out, J): J column-major, J[j*n + i]
   const pj = plan(g, [f, ...d]);
   const ej = emitter(pj);
-  e = ej.e;
+  e = ej.e.begin();
   const jac = [
     '"use strict";',
     'return function evaluateWithJacobian(theta, X, out, J) {',
@@ -189,7 +218,7 @@ export function generateKernels(g: Graph, f: number, d: readonly number[], slotT
   ].join('\n');
 
   // at(theta, x)
-  e = ee.e;
+  e = ee.e.begin();
   const at = [
     '"use strict";',
     'return function at(theta, x) {',
@@ -203,7 +232,7 @@ export function generateKernels(g: Graph, f: number, d: readonly number[], slotT
   ].join('\n');
 
   // gradientAt(theta, x, grad) -> f
-  e = ej.e;
+  e = ej.e.begin();
   const grad = [
     '"use strict";',
     'return function gradientAt(theta, x, grad) {',

@@ -82,6 +82,16 @@ export class Graph {
     return n.op === 'const' && (v === undefined || n.value === v);
   }
 
+  /** the node op(args) if the graph has it, without creating it (code generation looks for shared powers) */
+  find(op: Op, args: readonly number[], fn = ''): number | undefined {
+    return this.table.get(`${op}|${fn}|-1|${args.join(',')}`);
+  }
+
+  /** the constant node of value v if the graph has it */
+  findConst(v: number): number | undefined {
+    return this.table.get('c' + constKey(v));
+  }
+
   private intern(op: Op, args: readonly number[], value: number, index: number, fn: string): number {
     const key = op === 'const' ? 'c' + constKey(value) : `${op}|${fn}|${index}|${args.join(',')}`;
     const hit = this.table.get(key);

@@ -128,7 +128,7 @@ export interface XYSummary {
 }
 
 /** Self-starts look at no more rows than this (an even subsample in x order above it). */
-export const MAX_SELF_START_POINTS = 2000;
+export const MAX_SELF_START_POINTS = 400;
 
 /** Keeps only rows with finite x and y (at most MAX_SELF_START_POINTS of them); null when fewer than `minPoints` remain. */
 export function summarize(x: ArrayLike<number>, y: ArrayLike<number>, minPoints: number): XYSummary | null {

@@ -16,7 +16,10 @@ function reference(t: number[], x: number): number {
 }
 
 describe('generated kernels: one pow per power', () => {
-  const c = compileFormula(F, { variables: ['x'], params: ['lower', 'upper', 'ec50', 'slope'] });
+  // compileFormula attaches the generated source (for inspection and tests) beside the CompiledFormula interface
+  const c = compileFormula(F, { variables: ['x'], params: ['lower', 'upper', 'ec50', 'slope'] }) as ReturnType<typeof compileFormula> & {
+    source: { evaluateWithJacobian: string };
+  };
 
   it('the Jacobian kernel of logistic4 has one unguarded Math.pow in its loop', () => {
     const loop = c.source.evaluateWithJacobian.split('for (let i')[1];

@@ -4,8 +4,9 @@
 // order), fold = rank mod k, k = min(10, n) (common practice; DESIGN.md "Cross-validation").
 // - linear (no bound on a free parameter, full rank): e₋f = e_f + Q_f (I − Q_fᵀQ_f)⁻¹ Q_fᵀ e_f, a q×q solve per fold,
 //   O(n q²) in all — the held-out residuals of the refit without fold f, exactly (to rounding) and without refitting.
-// - nonlinear (or linear with bounds, or rank-deficient): a refit on the other folds from the full-data estimate,
-//   at most DEFAULTS.analysis.cvIterations Levenberg–Marquardt iterations and no polish (a count, the same on every
+// - nonlinear (or linear with bounds, or rank-deficient): a refit on the other folds, started from θ̂ + δ_f, the
+//   same downdate applied to the linearised model (from θ̂ where that start does not converge), at most
+//   DEFAULTS.analysis.cvIterations Levenberg–Marquardt iterations and no polish (a count, the same on every
 //   machine); the report's `cvMethod` says which was used.
 import type { CompiledFormula } from '../formula/types';
 import { solve } from '../solve';
@@ -73,16 +74,16 @@ export type CvResult =
   | { rmse: number; folds: number; method: CvMethod }
   | { rmse: null; folds: number | null; method: CvMethod | null; reason: 'too-few-rows' | 'timeout' | 'failed' };
 
-/** Σ_f ‖e₋f‖² by block downdates of the full linear fit (see file header), or null when a refit is needed. */
-function downdatedSum(ctx: CvContext, k: number, testRows: Int32Array, start: Int32Array): number | null {
+/**
+ * Block downdates of the fit at ctx.theta (see file header): Σ_f ‖e₋f‖² and, per fold, the step δ_f of the
+ * linearised refit without it, θ₋f ≈ θ̂ + δ_f with δ_f = −P R⁻¹ (I − Q_fᵀQ_f)⁻¹ Q_fᵀ e_f (exact for a linear model);
+ * null when the Jacobian is rank-deficient or a fold holds all the leverage of a direction.
+ */
+function foldDowndates(ctx: CvContext, k: number, testRows: Int32Array, start: Int32Array): { sum: number; delta: Float64Array[] } | null {
   const n = ctx.y.length;
   const p = ctx.theta.length;
   const free: number[] = [];
-  for (let j = 0; j < p; j++) {
-    if (ctx.fixed[j]) continue;
-    if (Number.isFinite(ctx.lower[j]) || Number.isFinite(ctx.upper[j])) return null; // a refit could meet the bound
-    free.push(j);
-  }
+  for (let j = 0; j < p; j++) if (!ctx.fixed[j]) free.push(j);
   const q = free.length;
   if (q === 0 || n <= q) return null;
   const f = new Float64Array(n);
@@ -108,6 +109,7 @@ function downdatedSum(ctx: CvContext, k: number, testRows: Int32Array, start: In
   let sum = 0;
   const G = new Float64Array(q * q);
   const u = new Float64Array(q);
+  const delta: Float64Array[] = [];
   for (let fIdx = 0; fIdx < k; fIdx++) {
     const rows = testRows.subarray(start[fIdx], start[fIdx + 1]);
     // G = I − Q_fᵀQ_f, u = Q_fᵀ e_f
@@ -132,8 +134,26 @@ function downdatedSum(ctx: CvContext, k: number, testRows: Int32Array, start: In
       if (!Number.isFinite(d)) return null;
       sum += d * d;
     }
+    // δ in pivoted order: R w = −z, then θ_free[perm[t]] += w_t
+    const wv = new Float64Array(q);
+    for (let t = q - 1; t >= 0; t--) {
+      let s = -z[t];
+      for (let c = t + 1; c < q; c++) s -= qr.a[c * n + t] * wv[c];
+      wv[t] = s / qr.rdiag[t];
+    }
+    const d = new Float64Array(p);
+    for (let t = 0; t < q; t++) d[free[qr.perm[t]]] = wv[t];
+    delta.push(d);
   }
-  return sum;
+  return { sum, delta };
+}
+
+/** no finite bound on a free parameter: a linear refit could not meet one, so the downdate is the refit */
+function unbounded(ctx: CvContext): boolean {
+  for (let j = 0; j < ctx.theta.length; j++) {
+    if (!ctx.fixed[j] && (Number.isFinite(ctx.lower[j]) || Number.isFinite(ctx.upper[j]))) return false;
+  }
+  return true;
 }
 
 /** Solve G z = u for symmetric positive definite G (q×q) by Cholesky; null when G is not positive definite to rounding. */
@@ -175,15 +195,18 @@ export function crossValidate(ctx: CvContext): CvResult {
   // the smallest training set must leave at least one residual degree of freedom
   if (n - Math.ceil(n / k) <= pFree) return { rmse: null, folds: k, method: null, reason: 'too-few-rows' };
   const { test: testRows, start } = foldRows(fold, k);
-  if (ctx.linear && ctx.method !== 'refit') {
-    const s = downdatedSum(ctx, k, testRows, start);
-    if (s !== null) return { rmse: Math.sqrt(s / n), folds: k, method: 'downdate' };
+  if (ctx.linear && ctx.method !== 'refit' && unbounded(ctx)) {
+    const s = foldDowndates(ctx, k, testRows, start);
+    if (s !== null) return { rmse: Math.sqrt(s.sum / n), folds: k, method: 'downdate' };
   }
-  return refitFolds(ctx, fold, k, testRows, start);
+  // nonlinear: each refit starts from the linearised downdate of its fold (second-order close, so the capped refit
+  // converges in fewer iterations), or from θ̂ where there is none
+  const lin = ctx.linear ? null : foldDowndates(ctx, k, testRows, start);
+  return refitFolds(ctx, fold, k, testRows, start, lin ? lin.delta : null);
 }
 
 /** the held-out predictions of capped, warm-started refits without each fold */
-function refitFolds(ctx: CvContext, fold: Int32Array, k: number, testRows: Int32Array, start: Int32Array): CvResult {
+function refitFolds(ctx: CvContext, fold: Int32Array, k: number, testRows: Int32Array, start: Int32Array, delta: Float64Array[] | null): CvResult {
   const n = ctx.y.length;
   const method: CvMethod = 'refit';
   const train = new Int32Array(n);
@@ -199,17 +222,22 @@ function refitFolds(ctx: CvContext, fold: Int32Array, k: number, testRows: Int32
     const wt = ctx.w ? gather(ctx.w, trainRows) : undefined;
     const compiled = ctx.compiled;
     // refits predict held-out rows: the full-data fit is the certified one, so no refinement and a shorter cap here
-    const res = solve(
+    const refit = (theta0: Float64Array) => solve(
       {
         n: m, p: ctx.theta.length, y: yt, w: wt,
         model: (theta, out, J) => (J ? compiled.evaluateWithJacobian(theta, Xt, out, J) : compiled.evaluate(theta, Xt, out)),
       },
       {
-        theta0: ctx.theta, lower: ctx.lower, upper: ctx.upper, fixed: ctx.fixed, linear: ctx.linear, refine: false,
+        theta0, lower: ctx.lower, upper: ctx.upper, fixed: ctx.fixed, linear: ctx.linear, refine: false,
         maxIterations: Math.min(ctx.maxIterations ?? CV_MAX_ITERATIONS, CV_MAX_ITERATIONS),
         seconds: Math.max(0.05, (ctx.deadline - Date.now()) / 1000), shouldStop: ctx.shouldStop,
       },
     );
+    let res = refit(delta ? startOf(ctx, delta[f]) : ctx.theta);
+    // a linearised start outside the model's domain, or one the capped refit does not bring to convergence: from θ̂
+    if (delta && (!res.converged || !Number.isFinite(res.sse)) && res.termination !== 'cancelled' && res.termination !== 'time-limit') {
+      res = refit(ctx.theta);
+    }
     if (res.termination === 'cancelled' || res.termination === 'time-limit') return { rmse: null, folds: k, method, reason: 'timeout' };
     const Xv = ctx.X.map((col) => gather(col, test));
     const pred = new Float64Array(test.length);
@@ -222,4 +250,15 @@ function refitFolds(ctx: CvContext, fold: Int32Array, k: number, testRows: Int32
     }
   }
   return { rmse: Math.sqrt(sum / n), folds: k, method };
+}
+
+/** θ̂ + δ, inside the box (a start on the wrong side of a bound would be projected by the solver anyway) */
+function startOf(ctx: CvContext, delta: Float64Array): Float64Array {
+  const t = Float64Array.from(ctx.theta);
+  for (let j = 0; j < t.length; j++) {
+    if (ctx.fixed[j]) continue;
+    const v = t[j] + delta[j];
+    if (Number.isFinite(v)) t[j] = Math.min(ctx.upper[j], Math.max(ctx.lower[j], v));
+  }
+  return t;
 }

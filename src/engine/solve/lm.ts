@@ -19,7 +19,7 @@
 import type { LsqProblem, SolveOptions, SolveResult } from './types';
 import type { Termination } from '../report';
 import { EPS, norm2, qrFactor, applyQt, rankTolerance, dotAt, diffOfSquares } from './linalg';
-import { CONVERGED, Prepared, evaluate, prepare, solutionInfo, stopReason } from './problem';
+import { CONVERGED, Prepared, evaluate, jacobianIsRaw, prepare, solutionInfo, stopReason } from './problem';
 import { DEFAULTS } from '../spec/defaults';
 
 /** default cap on LM iterations (accepted steps, each with a new Jacobian) per scaling strategy */
@@ -60,7 +60,8 @@ interface Point {
 }
 
 function newPoint(P: Prepared, m: number): Point {
-  return { r: new Float64Array(m), A: new Float64Array(m * P.q), f: new Float64Array(P.n), J: new Float64Array(P.n * P.p), ok: false };
+  const J = new Float64Array(P.n * P.p);
+  return { r: new Float64Array(m), A: jacobianIsRaw(P, m) ? J : new Float64Array(m * P.q), f: new Float64Array(P.n), J, ok: false };
 }
 
 /**

@@ -101,7 +101,10 @@ export function evaluate(
     r[i] = ri;
   }
   for (let i = n; i < m; i++) r[i] = 0;
-  if (A) {
+  if (A === J) {
+    // unit weights, every parameter free, m = n: the weighted Jacobian is J itself (see jacobianIsRaw)
+    for (let k = 0; k < n * free.length; k++) if (!Number.isFinite(J[k])) return false;
+  } else if (A) {
     for (let k = 0; k < free.length; k++) {
       const cj = free[k] * n;
       const ck = k * m;
@@ -113,6 +116,13 @@ export function evaluate(
       for (let i = n; i < m; i++) A[ck + i] = 0;
     }
   }
+  return true;
+}
+
+/** true when A = √w J of the free parameters is J itself (unit weights, none fixed, m = n): one buffer serves both */
+export function jacobianIsRaw(P: Prepared, m: number): boolean {
+  if (P.q !== P.p || m !== P.n) return false;
+  for (let i = 0; i < P.n; i++) if (P.sw[i] !== 1) return false;
   return true;
 }
 

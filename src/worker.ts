@@ -44,6 +44,8 @@ async function runOne(req: RunRequest): Promise<void> {
     const result = await runSpecFile(req.specPath, {
       specText: req.specText,
       workspaceRoot: req.workspaceRoot ?? path.dirname(req.specPath), // no workspace folder: the spec's own folder
+      trustPaths: req.trustPaths === true,
+      trustHint: req.trustHint,
       shouldStop: () => isCancelled(req.id),
       onProgress: message => post({ type: 'progress', inReplyTo: req.id, message }),
     });
@@ -51,7 +53,7 @@ async function runOne(req: RunRequest): Promise<void> {
     let written: string | null = null;
     let writeError: string | undefined;
     if (req.writeResults && !isErrorReport(result)) {
-      try { written = await writeResults(result, req.specPath, { workspaceRoot: req.workspaceRoot ?? path.dirname(req.specPath) }); }
+      try { written = await writeResults(result, req.specPath, { workspaceRoot: req.workspaceRoot ?? path.dirname(req.specPath), trustPaths: req.trustPaths === true }); }
       catch (e) { writeError = (e as Error).message; }
     }
     const transfer = isErrorReport(result) ? [] : packPoints(result);

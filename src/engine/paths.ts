@@ -12,6 +12,8 @@ export interface BoundaryOptions {
   root: string;
   /** the user passed --trust-paths (CLI) or allowed it once (extension): files outside the root are allowed */
   trustOutside?: boolean;
+  /** how the user lifts the boundary, for the refusal's advice (default: the CLI's "run with --trust-paths …") */
+  trustHint?: string;
 }
 
 /** Case-insensitive file systems (Windows, macOS default) compare paths without case. */
@@ -57,7 +59,7 @@ export async function inputRefusal(key: string, file: string, opts: BoundaryOpti
   const root = await realOrSelf(opts.root);
   const real = await realOrSelf(file);
   if (!isInside(root, real))
-    return `${keyText(key)} names a file outside the workspace (after following links) — a spec may only read files inside the folder it runs in; move the file into the workspace, or run with --trust-paths if you trust this spec`;
+    return `${keyText(key)} names a file outside the workspace (after following links) — a spec may only read files inside the folder it runs in; move the file into the workspace, ${opts.trustHint ?? 'or run with --trust-paths if you trust this spec'}`;
   return null;
 }
 
@@ -107,7 +109,7 @@ export async function outputRefusal(
     return `${keyText(key)} ${where} is not a ${ext} file — ${kind === 'results' ? 'results go to a .json file such as "results/<name>.fitresult.json"' : 'a report goes to an .html file such as report.html'}`;
   if (/\.fitspec\.json$/i.test(real)) return `${keyText(key)} ${where} is a spec file name — results go to a separate file such as "results/<name>.fitresult.json"`;
   if (!opts.trustOutside && !isInside(root, real))
-    return `${keyText(key)} ${where} — outputs must stay inside the workspace; give a path inside it (e.g. "results/<name>.fitresult.json"), or run with --trust-paths if you really want this file`;
+    return `${keyText(key)} ${where} — outputs must stay inside the workspace; give a path inside it (e.g. "results/<name>.fitresult.json"), ${opts.trustHint ?? 'or run with --trust-paths if you really want this file'}`;
   if (isInside(root, real)) {
     const dot = path.relative(root, real).split(path.sep).slice(0, -1).find(s => s.startsWith('.'));
     if (dot) return `${keyText(key)} ${where} is inside the hidden folder ${dot}/ (such as .git) — write outputs to a visible folder, e.g. "results/"`;

@@ -46,6 +46,8 @@ export interface RunOptions {
   workspaceRoot?: string;
   /** files outside workspaceRoot allowed (the CLI's --trust-paths) */
   trustPaths?: boolean;
+  /** how the user lifts the boundary, for the refusals' advice (the extension's words; default the CLI's --trust-paths) */
+  trustHint?: string;
   /** polled during the fits; true cancels */
   shouldStop?: () => boolean;
   /** short progress notes ("fitting model 2 of 3: gompertz") */
@@ -123,10 +125,12 @@ export async function outputRefusal(
   inputs: { spec: string; data: string },
   workspaceRoot: string | undefined,
   trustPaths = false,
+  trustHint?: string,
 ): Promise<string | null> {
   return pathOutputRefusal('output', outputAbs, 'results', {
     root: workspaceRoot ?? process.cwd(),
     trustOutside: trustPaths,
+    trustHint,
     inputs: [inputs.spec, inputs.data],
   });
 }
@@ -180,10 +184,10 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
   const dataLabel = first.spec.data.fileGiven;
   const readOpts = { delimiter: first.spec.data.delimiter, decimal: first.spec.data.decimal, label: dataLabel };
   // the workspace boundary: nothing outside the root is read (after following symlinks) unless trusted
-  const dataRefusal = await inputRefusal('data.file', dataFile, { root: workspaceRoot, trustOutside: trustPaths });
+  const dataRefusal = await inputRefusal('data.file', dataFile, { root: workspaceRoot, trustOutside: trustPaths, trustHint: opts.trustHint });
   if (dataRefusal) return errorReport(name, dataRefusal, { path: ['data', 'file'], location: locationOf(text, name, ['data', 'file']) });
   if (first.spec.output) {
-    const early = await outputRefusal(first.spec.output, { spec: specPath, data: dataFile }, workspaceRoot, trustPaths);
+    const early = await outputRefusal(first.spec.output, { spec: specPath, data: dataFile }, workspaceRoot, trustPaths, opts.trustHint);
     if (early) return errorReport(name, early, { path: ['output'], location: locationOf(text, name, ['output']) });
   }
   const header = await readHeader(dataFile, readOpts);
@@ -193,7 +197,7 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
   const spec = checked.spec;
 
   if (spec.output) {
-    const refusal = await outputRefusal(spec.output, { spec: specPath, data: spec.data.file }, workspaceRoot, trustPaths);
+    const refusal = await outputRefusal(spec.output, { spec: specPath, data: spec.data.file }, workspaceRoot, trustPaths, opts.trustHint);
     if (refusal) return errorReport(name, refusal, { path: ['output'], location: locationOf(text, name, ['output']) });
   }
 

@@ -5,7 +5,9 @@ import { initLog, log } from './log';
 import { settings } from './settings';
 import { WorkerPool } from './workerPool';
 import { OwnWrites } from './ownWrites';
-import { FitService, isSpecUri, type FitEvent } from './fitService';
+import { FitService, boundaryFiles, isSpecUri, type FitEvent } from './fitService';
+import { OutsideConsent, type OutsideVerdict } from './outsideConsent';
+import type { OutsidePermission } from './trust';
 import { DiagnosticsController } from './diagnostics';
 import { FitStatusBar } from './statusBar';
 import { PanelController, type PanelState } from './panel';
@@ -28,6 +30,13 @@ export interface CurvewrightApi {
   statusText(): string;
   poolStats(): { started: number; terminated: number; runs: number; cancelled: number; size: number };
   fitCsv(options: import('./fitCsvCommand').FitCsvOptions): Promise<FitCsvResult[]>;
+  /** what the fit service decides for a spec's files outside the workspace (the function it calls before each run);
+   *  `trusted` defaults to vscode.workspace.isTrusted */
+  outsideVerdict(spec: vscode.Uri | string, opts?: { trusted?: boolean }): Promise<OutsideVerdict>;
+  /** the remembered answer to the outside-the-workspace question (workspace state) */
+  outsidePermission(): OutsidePermission | undefined;
+  /** set the remembered answer, as the modal question's buttons do (tests cannot press a modal's buttons) */
+  setOutsidePermission(p: OutsidePermission | undefined): Promise<void>;
 }
 
 const SPEC_SELECTOR: vscode.DocumentSelector = [{ scheme: 'file', pattern: '**/*.fitspec.json' }];
@@ -44,7 +53,8 @@ export function activate(context: vscode.ExtensionContext): CurvewrightApi {
   });
   context.subscriptions.push({ dispose: () => pool.dispose() });
   const ownWrites = new OwnWrites();
-  const fits = new FitService(pool, ownWrites);
+  const consent = new OutsideConsent(context.workspaceState);
+  const fits = new FitService(pool, ownWrites, consent);
   const docsUri = vscode.Uri.joinPath(context.extensionUri, 'docs', 'problems.md');
   const diagnostics = new DiagnosticsController(docsUri);
   const panels = new PanelController(context.extensionUri, fits);
@@ -90,6 +100,11 @@ export function activate(context: vscode.ExtensionContext): CurvewrightApi {
       if (spec) fits.cancel(spec); else for (const s of fits.specs) fits.cancel(s);
     }),
     vscode.commands.registerCommand('curvewright.showLog', () => log.show()),
+    vscode.commands.registerCommand('curvewright.forgetOutsideAnswer', async () => {
+      await consent.setPermission(undefined);
+      void vscode.window.showInformationMessage('Curvewright will ask again before a spec uses files outside this workspace.');
+      for (const s of fits.specs) fits.schedule(s, 0);
+    }),
   );
 
   const toUri = (u: vscode.Uri | string) => (typeof u === 'string' ? (/^[a-z][a-z0-9+.-]+:/i.test(u) && !/^[a-z]:\\/i.test(u) ? vscode.Uri.parse(u) : vscode.Uri.file(u)) : u);
@@ -113,6 +128,15 @@ export function activate(context: vscode.ExtensionContext): CurvewrightApi {
     statusText: () => status.text,
     poolStats: () => ({ ...pool.stats, size: pool.size }),
     fitCsv: o => fitCsv.run(o),
+    outsideVerdict: async (u, opts = {}) => {
+      const uri = toUri(u);
+      const doc = vscode.workspace.textDocuments.find(d => d.uri.toString() === uri.toString() && !d.isClosed);
+      const text = doc ? doc.getText() : Buffer.from(await vscode.workspace.fs.readFile(uri)).toString('utf8');
+      const files = boundaryFiles(uri, text);
+      return consent.verdict(files.root, files, opts.trusted ?? vscode.workspace.isTrusted);
+    },
+    outsidePermission: () => consent.permission,
+    setOutsidePermission: p => consent.setPermission(p),
   };
 }
 

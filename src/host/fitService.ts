@@ -1,6 +1,7 @@
 // Keeps every live spec fitted: debounced refits on editor changes (live, unsaved text), on saves, and on CSV
 // changes on disk; latest-wins cancellation through the worker pool; progress with cancel for long fits.
 import { mayWriteResults } from './trust';
+import type { OutsideConsent } from './outsideConsent';
 import * as vscode from 'vscode';
 import * as path from 'path';
 import { Disposable } from './disposable';
@@ -46,7 +47,7 @@ export class FitService extends Disposable {
   readonly onDidChangeState = this._onDidChangeState.event;
   private readonly largeApproved = new Set<string>();
 
-  constructor(readonly pool: WorkerPool, readonly ownWrites: OwnWrites) {
+  constructor(readonly pool: WorkerPool, readonly ownWrites: OwnWrites, readonly consent?: OutsideConsent) {
     super();
     this._register(vscode.workspace.onDidOpenTextDocument(d => { if (isSpecUri(d.uri)) this.schedule(d.uri, 0); }));
     this._register(vscode.workspace.onDidChangeTextDocument(e => {
@@ -112,13 +113,17 @@ export class FitService extends Disposable {
     let text: string;
     try { text = doc ? doc.getText() : Buffer.from(await vscode.workspace.fs.readFile(uri)).toString('utf8'); }
     catch (err) { log.warn(`cannot read ${uri.fsPath}: ${(err as Error).message}`); return undefined; }
-    const files = specFiles(text);
-    const dir = path.dirname(uri.fsPath);
-    e.dataFile = files.dataFile ? path.resolve(dir, files.dataFile) : undefined;
-    e.output = files.output ? path.resolve(dir, files.output) : undefined;
+    const files = boundaryFiles(uri, text);
+    e.dataFile = files.dataFile;
+    e.output = files.output;
     if (e.dataFile && !(await this.largeFileOk(e))) { this._onDidChangeState.fire({ uri, state: this.state(uri) }); return undefined; }
     const cfg = settings(uri);
     const folder = vscode.workspace.getWorkspaceFolder(uri);
+    // files outside the workspace: used only when the user allowed it for this (trusted) workspace; asks once
+    const boundary = this.consent
+      ? await this.consent.resolve(uri, files.root, files, opts)
+      : { trustPaths: false, trustHint: undefined };
+    if (this.entries.get(uri.toString()) !== e) return undefined; // forgotten while the question was open
     if (e.output && cfg.writeResults) this.ownWrites.mark(e.output);
     e.running = true;
     this._onDidChangeState.fire({ uri, state: 'fitting', message: 'fitting' });
@@ -139,6 +144,8 @@ export class FitService extends Disposable {
       specPath: uri.fsPath,
       specText: doc ? text : undefined,
       workspaceRoot: folder?.uri.fsPath,
+      trustPaths: boundary.trustPaths,
+      trustHint: boundary.trustHint,
       writeResults: mayWriteResults({ trusted: vscode.workspace.isTrusted, setting: cfg.writeResults, dirty: !!doc?.isDirty }),
     }, m => { progressReport?.(m); this._onDidChangeState.fire({ uri, state: 'fitting', message: m }); });
     clearTimeout(progressTimer);
@@ -220,6 +227,18 @@ export class FitService extends Disposable {
     for (const e of this.entries.values()) if (e.timer) clearTimeout(e.timer);
     super.dispose();
   }
+}
+
+/** The workspace root of a spec (its workspace folder, else its own folder) and its data file and output as absolute
+ *  paths (from the live text), as the fit service checks them against the boundary. */
+export function boundaryFiles(uri: vscode.Uri, text: string): { root: string; dataFile?: string; output?: string } {
+  const files = specFiles(text);
+  const dir = path.dirname(uri.fsPath);
+  return {
+    root: vscode.workspace.getWorkspaceFolder(uri)?.uri.fsPath ?? dir,
+    dataFile: files.dataFile ? path.resolve(dir, files.dataFile) : undefined,
+    output: files.output ? path.resolve(dir, files.output) : undefined,
+  };
 }
 
 export function stateOf(r: RunResult): FitState {

@@ -153,6 +153,10 @@ export interface RunRequest {
   workspaceRoot?: string;
   /** also write the spec's `output` results file after a successful run (engine's writeResults) */
   writeResults?: boolean;
+  /** the user allowed files outside the workspace for this workspace (trusted workspaces only; src/host/trust.ts) */
+  trustPaths?: boolean;
+  /** the advice boundary errors give (how to lift the boundary in the editor) */
+  trustHint?: string;
 }
 
 /** Stop run `id` as soon as possible (the engine polls shouldStop); answered by a 'result' whose models end 'cancelled', or a 'cancelled'. */

@@ -4,7 +4,7 @@ import * as assert from 'assert';
 import * as fs from 'fs';
 import * as os from 'os';
 import * as path from 'path';
-import { mayWriteResults } from '../../src/host/trust';
+import { boundaryHint, decideOutside, mayWriteResults, outsideFiles } from '../../src/host/trust';
 import { escapeMarkdown } from '../../src/host/markdownText';
 import { cleanStaleTemps, inputRefusal, isInside, outputRefusal, REPORT_MARKER, tmpName } from '../../src/engine/paths';
 
@@ -99,6 +99,35 @@ describe('Workspace Trust decision (src/host/trust.ts)', () => {
     assert.strictEqual(mayWriteResults({ trusted: false, setting: true, dirty: false }), false);
     assert.strictEqual(mayWriteResults({ trusted: true, setting: false, dirty: false }), false);
     assert.strictEqual(mayWriteResults({ trusted: true, setting: true, dirty: true }), false);
+  });
+
+  it('files outside the workspace: asked once in a trusted workspace, never lifted in an untrusted one', () => {
+    const out = ['output'];
+    assert.strictEqual(decideOutside({ outside: [], trusted: true }), 'inside');
+    assert.strictEqual(decideOutside({ outside: [], trusted: false }), 'inside');
+    assert.strictEqual(decideOutside({ outside: out, trusted: true }), 'ask');
+    assert.strictEqual(decideOutside({ outside: out, trusted: true, permission: 'allowed' }), 'trusted');
+    assert.strictEqual(decideOutside({ outside: out, trusted: true, permission: 'declined' }), 'confined');
+    for (const permission of ['allowed', 'declined', undefined, 'junk'])
+      assert.strictEqual(decideOutside({ outside: out, trusted: false, permission }), 'confined', `untrusted, ${permission}`);
+    assert.strictEqual(decideOutside({ outside: out, trusted: true, permission: 'junk' }), 'ask', 'an unknown stored value asks again');
+    assert.doesNotMatch(boundaryHint(true) + boundaryHint(false), /--trust-paths/);
+  });
+
+  it('outsideFiles follows symlinks: a link inside the workspace to a file outside counts as outside', async () => {
+    const base = fs.mkdtempSync(path.join(os.tmpdir(), 'cw-outside-'));
+    const ws = path.join(base, 'ws');
+    fs.mkdirSync(path.join(ws, 'results'), { recursive: true });
+    fs.writeFileSync(path.join(base, 'secret.csv'), 'a,b\n1,2\n');
+    fs.writeFileSync(path.join(ws, 'in.csv'), 'a,b\n1,2\n');
+    fs.symlinkSync(path.join(base, 'secret.csv'), path.join(ws, 'link.csv'));
+    const keys = async (f: { dataFile?: string; output?: string }) => (await outsideFiles(ws, f)).map(o => o.key);
+    assert.deepStrictEqual(await keys({ dataFile: path.join(ws, 'in.csv'), output: path.join(ws, 'results', 'r.json') }), []);
+    assert.deepStrictEqual(await keys({ dataFile: path.join(ws, 'link.csv') }), ['data.file']);
+    assert.deepStrictEqual(await keys({ dataFile: path.join(ws, '..', 'secret.csv'), output: path.join(base, 'r.json') }), ['data.file', 'output']);
+    const [o] = await outsideFiles(ws, { dataFile: path.join(ws, 'link.csv') });
+    assert.strictEqual(o.resolved, fs.realpathSync(path.join(base, 'secret.csv')));
+    fs.rmSync(base, { recursive: true, force: true });
   });
 });
 

@@ -12,6 +12,7 @@ import { log } from './log';
 import { dataFileOf } from './diagnostics';
 import type { ExportRequest, HostToWebview, SnapshotMessage, ThemeKind, WebviewState, WebviewToHost } from '../shared/protocol';
 import { PROTOCOL_VERSION } from '../shared/protocol';
+import { checkWebviewMessage, plainFileName } from '../shared/protocolCheck';
 import { panelHtml } from '../shared/html';
 import type { FitReport, RunResult } from '../engine/report';
 import { isErrorReport } from '../engine/report';
@@ -108,7 +109,12 @@ export class PanelController extends Disposable implements vscode.WebviewPanelSe
     if (fs.existsSync(icon.fsPath)) panel.iconPath = icon;
     panel.webview.html = this.html(panel.webview);
     entry.disposables.push(
-      panel.webview.onDidReceiveMessage((m: WebviewToHost) => this.onMessage(entry, m)),
+      panel.webview.onDidReceiveMessage((raw: unknown) => {
+        // every message is checked at run time (type, fields, sizes, export name); a malformed one is dropped
+        const c = checkWebviewMessage(raw);
+        if (c.ok) return this.onMessage(entry, c.message);
+        log.warn(`dropped a message from the panel of ${path.basename(specUri.fsPath)}: ${c.reason}`);
+      }),
       panel.onDidDispose(() => {
         entry.disposables.forEach(d => d.dispose());
         if (this.panels.get(specUri.toString()) === entry) this.panels.delete(specUri.toString());
@@ -190,7 +196,7 @@ export class PanelController extends Disposable implements vscode.WebviewPanelSe
   private async export(p: PanelEntry, m: ExportRequest): Promise<void> {
     const last = this.fits.last(p.specUri)?.result;
     const base = path.basename(p.specUri.fsPath).replace(/\.fitspec\.json$/i, '');
-    const name = m.suggestedName || `${base}${m.model ? '-' + m.model : ''}.${m.format === 'json' ? 'fitresult.json' : m.format}`;
+    const name = m.suggestedName || plainFileName(`${base}${m.model ? '-' + m.model : ''}${m.format === 'json' ? '.fitresult' : ''}`, m.format);
     try {
       let bytes: Uint8Array;
       if (m.format === 'png') {

@@ -28,7 +28,7 @@ export const COMMANDS: CommandDef[] = [
     usage: 'curvewright fit <spec...> [--json] [--verbose] [--jobs N]',
     summary: 'fit every model of each spec, write its results file, print a summary',
     details: [
-      'Each spec\'s "output" results file is written atomically (a temporary file, then rename).',
+      'Each spec\'s "output" results file is written atomically (a temporary file, then rename), one writer at a time (a lock file beside it).',
       'A <spec> may be a file, a folder (its *.fitspec.json files) or a pattern like examples/*.fitspec.json.',
       'Exits 0 when every spec ran, even if a model failed to converge (the summary says so); 2 for bad input.',
     ],

@@ -179,3 +179,67 @@ export async function cleanStaleTemps(file: string): Promise<number> {
   }
   return removed;
 }
+
+/** Lock-file name of `file`'s writers: `.<name>.curvewright-lock` beside it (holds the writer's pid). */
+export function lockName(file: string): string {
+  return path.join(path.dirname(file), `.${path.basename(file)}.curvewright-lock`);
+}
+
+/** A lock older than this is stale even when its pid seems alive (a pid reused, or a lock from another machine). */
+export const LOCK_STALE_MS = 10 * 60 * 1000;
+
+/** Another live process holds the lock of a file beyond the wait. */
+export class LockBusyError extends Error {
+  constructor(readonly file: string, readonly lock: string, readonly pid: number | null) {
+    super(
+      `another Curvewright process${pid !== null ? ` (pid ${pid})` : ''} is writing ${path.basename(file)} — run again when it has finished` +
+        ` (if no such process runs, remove ${path.basename(lock)} beside it)`,
+    );
+  }
+}
+
+/**
+ * Runs `fn` holding an exclusive lock on `file` (created with O_EXCL: one writer at a time, across processes).
+ * A lock whose process no longer runs, or older than LOCK_STALE_MS, is removed and taken; a live one is waited for
+ * (polling every 25 ms) up to `waitMs` (default 10 s), then LockBusyError. The lock is removed when `fn` settles.
+ */
+export async function withFileLock<T>(file: string, fn: () => Promise<T>, opts: { waitMs?: number } = {}): Promise<T> {
+  const lock = lockName(file);
+  const deadline = Date.now() + (opts.waitMs ?? 10000);
+  for (;;) {
+    try {
+      const h = await fsp.open(lock, 'wx');
+      try {
+        await h.writeFile(`${process.pid}\n`, 'utf8');
+      } finally {
+        await h.close();
+      }
+      break;
+    } catch (e) {
+      if ((e as NodeJS.ErrnoException).code !== 'EEXIST') throw e;
+    }
+    let pid: number | null = null;
+    let stale = false;
+    try {
+      const [text, st] = await Promise.all([fsp.readFile(lock, 'utf8'), fsp.stat(lock)]);
+      const n = Number(text.trim());
+      pid = Number.isInteger(n) && n > 0 ? n : null;
+      const age = Date.now() - st.mtimeMs;
+      // no pid yet: a writer between open and write (give it a second), or a lock left half-written
+      stale = age > LOCK_STALE_MS || (pid === null ? age > 1000 : pid !== process.pid && !alive(pid));
+    } catch {
+      continue; // removed meanwhile: try again at once
+    }
+    if (stale) {
+      await fsp.unlink(lock).catch(() => undefined);
+      continue;
+    }
+    if (Date.now() > deadline) throw new LockBusyError(file, lock, pid);
+    await new Promise(r => setTimeout(r, 25));
+  }
+  try {
+    return await fn();
+  } finally {
+    await fsp.unlink(lock).catch(() => undefined);
+  }
+}

@@ -37,7 +37,7 @@ import { derivedFor } from './stats/derived';
 import { jointFormula, jointModelSpec } from './joint';
 import { sharingTest } from './stats/sharing';
 import { DEFAULTS } from './spec/defaults';
-import { cleanStaleTemps, inputRefusal, outputRefusal as pathOutputRefusal, realOrSelf, tmpName } from './paths';
+import { cleanStaleTemps, inputRefusal, LockBusyError, outputRefusal as pathOutputRefusal, realOrSelf, tmpName, withFileLock } from './paths';
 
 export interface RunOptions {
   /** spec text to use instead of the file on disk (e.g. unsaved editor text) */
@@ -747,7 +747,7 @@ export async function specFiles(specPath: string, specText?: string): Promise<{ 
 export async function writeResults(
   report: FitReport,
   specPath: string,
-  opts: { workspaceRoot?: string; specText?: string; trustPaths?: boolean; claimed?: Set<string>; inputs?: string[] } = {},
+  opts: { workspaceRoot?: string; specText?: string; trustPaths?: boolean; claimed?: Set<string>; inputs?: string[]; lockWaitMs?: number } = {},
 ): Promise<string | null> {
   const { output, data, outputPoints } = await specFiles(specPath, opts.specText);
   if (!output) return null;
@@ -764,30 +764,40 @@ export async function writeResults(
   const { main, sidecar } = splitReport(reportForFile(report), outputPoints, path.basename(side));
   // the points file first, the results file last: a reader that finds the new results file finds its points too
   const files = [...(sidecar ? [{ file: side, text: serializeReport(sidecar as unknown as RunResult, { pretty: true }) }] : []), { file: output, text: serializeReport(main, { pretty: true }) }];
-  const pending: { file: string; tmp: string }[] = [];
+  // one writer at a time per results file, across processes (an O_EXCL lock file beside it; stale locks removed)
+  const lockTarget = await realOrSelf(output);
   try {
-    for (const { file, text } of files) {
+    await fsp.mkdir(path.dirname(lockTarget), { recursive: true });
+    await withFileLock(lockTarget, async () => {
+      const pending: { file: string; tmp: string }[] = [];
       try {
-        if ((await fsp.readFile(file, 'utf8')) === text) continue;
-      } catch {
-        /* not there yet */
+        for (const { file, text } of files) {
+          try {
+            if ((await fsp.readFile(file, 'utf8')) === text) continue;
+          } catch {
+            /* not there yet */
+          }
+          const target = await realOrSelf(file); // a symlinked results file is written through, the link kept
+          const dir = path.dirname(target);
+          const tmp = tmpName(target, randomBytes(4).toString('hex'));
+          await fsp.mkdir(dir, { recursive: true });
+          await cleanStaleTemps(target);
+          const mode = await fsp.stat(target).then(st => st.mode & 0o7777, () => undefined);
+          pending.push({ file: target, tmp });
+          await fsp.writeFile(tmp, text, { encoding: 'utf8', ...(mode !== undefined ? { mode } : {}) });
+          if (mode !== undefined) await fsp.chmod(tmp, mode);
+        }
+        while (pending.length) {
+          await fsp.rename(pending[0].tmp, pending[0].file);
+          pending.shift();
+        }
+      } catch (e) {
+        await Promise.all(pending.map(p => fsp.unlink(p.tmp).catch(() => undefined)));
+        throw e;
       }
-      const target = await realOrSelf(file); // a symlinked results file is written through, the link kept
-      const dir = path.dirname(target);
-      const tmp = tmpName(target, randomBytes(4).toString('hex'));
-      await fsp.mkdir(dir, { recursive: true });
-      await cleanStaleTemps(target);
-      const mode = await fsp.stat(target).then(st => st.mode & 0o7777, () => undefined);
-      pending.push({ file: target, tmp });
-      await fsp.writeFile(tmp, text, { encoding: 'utf8', ...(mode !== undefined ? { mode } : {}) });
-      if (mode !== undefined) await fsp.chmod(tmp, mode);
-    }
-    while (pending.length) {
-      await fsp.rename(pending[0].tmp, pending[0].file);
-      pending.shift();
-    }
+    }, { waitMs: opts.lockWaitMs });
   } catch (e) {
-    await Promise.all(pending.map(p => fsp.unlink(p.tmp).catch(() => undefined)));
+    if (e instanceof LockBusyError) throw new OutputError(`cannot write the results file ${path.basename(output)}: ${e.message}`);
     const code = (e as NodeJS.ErrnoException).code;
     const why = code === 'EACCES' || code === 'EPERM' ? 'permission denied' : code === 'ENOSPC' ? 'the disk is full' : code === 'ENOTDIR' ? 'a part of the path is a file, not a folder' : code === 'EISDIR' ? 'it is a folder' : (e as Error).message;
     throw new OutputError(`cannot write the results file ${path.basename(output)}: ${why} — check that its folder exists, is writable and has space`);

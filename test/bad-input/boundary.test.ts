@@ -77,6 +77,9 @@ const CASES: Case[] = [
   { name: 'output under a regular file', spec: spec({ output: 'notes.txt/r.json' }), files: { 'notes.txt': 'mine\n' }, args: ['fit'], code: 2, says: ['lies under notes.txt, which is a file, not a folder'] },
   { name: 'two specs naming the same output', spec: spec({ output: 'r.json' }), files: { 't.fitspec.json': JSON.stringify(spec({ output: 'r.json' })) }, args: ['fit', 's.fitspec.json', 't.fitspec.json'], code: 2, says: ['already the output of another spec in this run', 'its own output file'], mayWrite: ['r.json'] },
   { name: 'output outside even with --trust-paths stays out of dot-folders', spec: spec({ output: '.git/r.json' }), args: ['fit', '--trust-paths'], code: 2, says: ['hidden folder .git/'] },
+  // ---- concurrent writers of one results file (an O_EXCL lock file beside it)
+  { name: 'results file locked by a live writer', spec: spec({ output: 'r.json' }), setup: ws => fs.writeFileSync(path.join(ws, '.r.json.curvewright-lock'), `${process.pid}\n`), args: ['fit'], code: 2, says: ['another Curvewright process', `pid ${process.pid}`, 'run again when it has finished'] },
+  { name: 'stale lock of a writer that no longer runs is cleaned', spec: spec({ output: 'r.json' }), setup: ws => fs.writeFileSync(path.join(ws, '.r.json.curvewright-lock'), '999999999\n'), args: ['fit'], code: 0, says: ['line'], mayWrite: ['r.json', '.r.json.curvewright-lock'] },
   // ---- report -o
   { name: 'report -o onto the data file', spec: spec({}), args: ['report', '-o', 'd.csv'], code: 2, says: ['"-o"', 'not a .html file'] },
   { name: 'report -o onto a spec', spec: spec({}), args: ['report', 's.fitspec.json', '-o', 's.fitspec.json'], code: 2, says: ['"-o"', 'not a .html file'] },

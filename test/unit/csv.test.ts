@@ -241,6 +241,32 @@ describe('csv: readTable', () => {
   });
 });
 
+describe('csv: a data file changed while it is read', () => {
+  const rows = (n: number, from = 0) => Array.from({ length: n }, (_, i) => `${from + i},${2 * (from + i) + 1}`).join('\n') + '\n';
+
+  it('rows appended during the read: refused with "changed while being read; run again", not fitted as a mixture', async () => {
+    const f = write('growing.csv', 'x,y\n' + rows(200000));
+    const reading = readTable(f, { columns: ['x', 'y'] }); // the size is taken before the first await
+    fs.appendFileSync(f, rows(1000, 200000));
+    await rejects(reading, /growing\.csv changed while being read/, /run again/);
+  });
+
+  it('the file replaced (renamed over) during the read is refused too', async () => {
+    const f = write('replaced.csv', 'x,y\n' + rows(100000));
+    const reading = readTable(f, { columns: ['x', 'y'] });
+    const tmp = path.join(dir, 'replaced.tmp');
+    fs.writeFileSync(tmp, 'x,y\n' + rows(100000, 7)); // same size class, other content
+    fs.renameSync(tmp, f);
+    await rejects(reading, /changed while being read/);
+  });
+
+  it('control: the same file left alone reads completely', async () => {
+    const f = write('still.csv', 'x,y\n' + rows(200000));
+    const t = await readTable(f, { columns: ['x', 'y'] });
+    assert.strictEqual(t.totalRows, 200000);
+  });
+});
+
 describe('csv: never crashes on arbitrary bytes (property test, fast-check)', () => {
   it('readTable either returns a table or throws a DataError', async () => {
     await fc.assert(

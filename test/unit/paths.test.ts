@@ -6,7 +6,7 @@ import * as os from 'os';
 import * as path from 'path';
 import { boundaryHint, decideOutside, mayWriteResults, outsideFiles } from '../../src/host/trust';
 import { escapeMarkdown } from '../../src/host/markdownText';
-import { cleanStaleTemps, inputRefusal, isInside, outputRefusal, REPORT_MARKER, tmpName } from '../../src/engine/paths';
+import { cleanStaleTemps, inputRefusal, isInside, LockBusyError, lockName, LOCK_STALE_MS, outputRefusal, REPORT_MARKER, tmpName, withFileLock } from '../../src/engine/paths';
 
 describe('workspace boundary (engine paths)', () => {
   let base: string, ws: string, out: string;
@@ -90,6 +90,56 @@ describe('workspace boundary (engine paths)', () => {
     assert.ok(fs.existsSync(live));
     assert.ok(!fs.existsSync(dead));
     assert.ok(fs.existsSync(path.join(ws, '.other.curvewright-tmp-999999999-c')), 'other files\' temporaries are not touched');
+  });
+});
+
+describe('results-file lock (withFileLock)', () => {
+  let base: string;
+  before(() => { base = fs.mkdtempSync(path.join(os.tmpdir(), 'cw-lock-')); });
+  after(() => fs.rmSync(base, { recursive: true, force: true }));
+
+  it('serialises writers of one file: the second starts only after the first has finished', async () => {
+    const f = path.join(base, 'r.fitresult.json');
+    const log: string[] = [];
+    const job = (name: string, ms: number) => withFileLock(f, async () => {
+      log.push(`${name} start`);
+      assert.ok(fs.existsSync(lockName(f)), 'the lock file exists while a writer holds it');
+      await new Promise(r => setTimeout(r, ms));
+      log.push(`${name} end`);
+    });
+    await Promise.all([job('a', 60), job('b', 0)]);
+    assert.deepStrictEqual(log, ['a start', 'a end', 'b start', 'b end']);
+    assert.ok(!fs.existsSync(lockName(f)), 'the lock is removed afterwards');
+  });
+
+  it('a lock of a live process is waited for, then refused with the pid and the fix', async () => {
+    const f = path.join(base, 'busy.fitresult.json');
+    fs.writeFileSync(lockName(f), `${process.ppid}\n`); // the parent process: alive
+    await assert.rejects(withFileLock(f, async () => assert.fail('must not run'), { waitMs: 100 }), (e: unknown) => {
+      assert.ok(e instanceof LockBusyError);
+      assert.match(e.message, new RegExp(`pid ${process.ppid}`));
+      assert.match(e.message, /run again when it has finished/);
+      return true;
+    });
+    assert.ok(fs.existsSync(lockName(f)), 'a live lock is left alone');
+    fs.unlinkSync(lockName(f));
+  });
+
+  it('a stale lock (its process gone, or older than LOCK_STALE_MS) is removed and taken', async () => {
+    const f = path.join(base, 'stale.fitresult.json');
+    fs.writeFileSync(lockName(f), '999999999\n');
+    assert.strictEqual(await withFileLock(f, async () => 'ran', { waitMs: 0 }), 'ran');
+    fs.writeFileSync(lockName(f), `${process.ppid}\n`);
+    const old = new Date(Date.now() - LOCK_STALE_MS - 1000);
+    fs.utimesSync(lockName(f), old, old);
+    assert.strictEqual(await withFileLock(f, async () => 'ran', { waitMs: 0 }), 'ran');
+    assert.ok(!fs.existsSync(lockName(f)));
+  });
+
+  it('the lock is released when the writer fails', async () => {
+    const f = path.join(base, 'fails.fitresult.json');
+    await assert.rejects(withFileLock(f, async () => { throw new Error('boom'); }), /boom/);
+    assert.ok(!fs.existsSync(lockName(f)));
   });
 });
 

@@ -344,7 +344,7 @@ function checkHeader(fields: string[], label: string, line: number): string[] {
   return names;
 }
 
-function statFile(file: string, label: string): void {
+function statFile(file: string, label: string): fs.Stats {
   let st: fs.Stats;
   try {
     st = fs.statSync(file);
@@ -355,6 +355,20 @@ function statFile(file: string, label: string): void {
   }
   if (st.isDirectory()) throw new DataError(`${label} is a folder, not a CSV file — point data.file at the CSV file`, { file: label });
   if (st.size === 0) throw new DataError(`${label} is empty — it needs a header row with column names and at least one data row`, { file: label });
+  return st;
+}
+
+/** The file changed while it was read (size, modification time or the file itself differ before and after, or fewer
+ *  or more bytes were read than it had): its rows may mix two versions, so nothing of it is used. */
+function changedWhileRead(file: string, before: fs.Stats, bytesRead: number | null, label: string): DataError | null {
+  let after: fs.Stats | undefined;
+  try {
+    after = fs.statSync(file);
+  } catch {
+    /* removed meanwhile */
+  }
+  const same = !!after && after.size === before.size && after.mtimeMs === before.mtimeMs && after.ino === before.ino && (bytesRead === null || bytesRead === before.size);
+  return same ? null : new DataError(`${label} changed while being read (its size or modification time differ before and after the read); run again once whatever writes it has finished`, { file: label });
 }
 
 /** The header row's column names (trimmed). Throws DataError for a missing, empty, binary file or duplicate names. */
@@ -383,7 +397,7 @@ export async function readTable(file: string, opts: ReadTableOptions): Promise<T
   const decimal = opts.decimal ?? '.';
   if (decimal === ',' && opts.delimiter === ',')
     throw new DataError(`with decimal "," the delimiter of ${label} cannot also be "," — set data.delimiter to ";" or "\\t"`, { file: label });
-  statFile(file, label);
+  const before = statFile(file, label);
   const badRows = opts.badRows ?? 'drop';
   const maxProblems = opts.maxProblems ?? 20;
   const wanted = [...new Set(opts.columns)];
@@ -427,7 +441,7 @@ export async function readTable(file: string, opts: ReadTableOptions): Promise<T
       });
   };
 
-  const { hash, sawHeader } = await streamRows(file, { ...opts }, {
+  const { hash, bytes, sawHeader } = await streamRows(file, { ...opts }, {
     header: (fields, line) => {
       header = checkHeader(fields, label, line);
       index = wanted.map((c) => header.indexOf(c));
@@ -488,6 +502,9 @@ export async function readTable(file: string, opts: ReadTableOptions): Promise<T
       linesOut.push(line);
     },
   });
+  // read to the end (a hash) or stopped early (ragged rows): compare what was read with the file before and after
+  const changed = changedWhileRead(file, before, hash ? bytes : null, label);
+  if (changed) throw changed;
   if (!sawHeader) throw new DataError(`${label} is empty — it needs a header row with column names and at least one data row`, { file: label });
   if (ragged.length > 0)
     throw new DataError(

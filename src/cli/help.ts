@@ -92,7 +92,10 @@ export const COMMANDS: CommandDef[] = [
     name: 'report',
     usage: 'curvewright report <spec...> -o report.html',
     summary: 'fit the specs and write one self-contained HTML report (plots, tables, problems)',
-    details: ['The page needs no network and no server: open it in any browser or attach it to a review.'],
+    details: [
+      'The page needs no network and no server: open it in any browser or attach it to a review.',
+      'Above 20,000 points per model the page embeds a decimated set (extremes of y and residual per x interval) and says so.',
+    ],
     options: [
       { name: 'output', short: 'o', value: true, meta: 'FILE', help: 'HTML file to write (default: report.html)' },
       { name: 'jobs', short: 'j', value: true, meta: 'N', help: 'run up to N specs at once on worker threads (default: number of CPUs)' },

@@ -8,6 +8,7 @@ import { UsageError, type Parsed } from './args';
 import { inOrder, runInputs, specsOf } from './fit';
 import { outputRefusal, REPORT_MARKER } from '../engine/paths';
 import { errorText } from './format';
+import { forHtmlReport } from './reportPoints';
 import { ioReason, shown, writeAtomic, type Io } from './io';
 
 /** The installed package's root folder (holds package.json with name "curvewright"). */
@@ -54,7 +55,7 @@ export async function reportCommand(parsed: Parsed, io: Io): Promise<number> {
   const results: RunResult[] = [];
   let code = 0;
   await inOrder(specs, jobs, io, async (i, r) => {
-    results.push(r);
+    results.push(forHtmlReport(r)); // large data: a bounded, decimated set of points per model (the report says so)
     if (isErrorReport(r)) {
       code = 2;
       io.err(errorText(r, shown(specs[i], io.cwd)));

@@ -27,7 +27,7 @@ import { FormulaError } from './formula/types';
 import { suggest } from './formula';
 import { parseSpecText, validateSpec, locatePath } from './spec';
 import type { NormalizedSpec } from './spec/types';
-import { DataError, columnPaths, columnsNeeded, prepareData, readHeader, readTable, whereTextColumns } from './data';
+import { DataError, columnPaths, columnsNeeded, prepareData, headerShape, readHeader, readTable, whereTextColumns } from './data';
 import type { Table } from './data/types';
 import { buildModel, fitModel } from './models';
 import { analyzeModel, compareModels, dataCorrelation, resolveThresholds } from './stats';
@@ -135,6 +135,31 @@ export async function outputRefusal(
   });
 }
 
+// ------------------------------------------------------------------ header in messages
+
+/** Whether messages may quote the header (src/engine/data/csv.ts headerShape), as validateSpec's context. */
+function shapeContext(file: string, header: string[]): { columnsHidden?: string; otherDelimiter?: string } {
+  const shape = headerShape(file, header);
+  return shape.shown ? (shape.otherDelimiter !== undefined ? { otherDelimiter: shape.otherDelimiter } : {}) : { columnsHidden: shape.why };
+}
+
+/** A spec checked again with its data file's header, or null when the file may not or cannot be read. */
+async function validateWithColumns(
+  raw: unknown,
+  data: { file: string; fileGiven: string; delimiter: NormalizedSpec['data']['delimiter']; decimal: NormalizedSpec['data']['decimal'] },
+  ctx: { file: string; text: string; workspaceRoot: string; trustPaths: boolean },
+  trustHint?: string,
+): Promise<ReturnType<typeof validateSpec> | null> {
+  if (await inputRefusal('data.file', data.file, { root: ctx.workspaceRoot, trustOutside: ctx.trustPaths, trustHint })) return null;
+  let header: string[];
+  try {
+    header = await readHeader(data.file, { delimiter: data.delimiter, decimal: data.decimal, label: data.fileGiven });
+  } catch {
+    return null; // the first problems stand; the data file's own problem comes once the spec is fixed
+  }
+  return validateSpec(raw, { ...ctx, columns: header, dataLabel: data.fileGiven, ...shapeContext(data.file, header) });
+}
+
 // ------------------------------------------------------------------ the run
 
 /** Run a spec given by its file (or its text in opts.specText). Resolves to a FitReport or an ErrorReport; never rejects for user input. */
@@ -178,8 +203,16 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
   // 2. shape, without and then with the data file's columns
   const workspaceRoot = opts.workspaceRoot ?? process.cwd();
   const trustPaths = opts.trustPaths === true;
-  const first = validateSpec(parsed.raw, { file: specPath, text, workspaceRoot, trustPaths });
-  if (!first.spec || first.problems.some(p => p.severity === 'error')) return fromProblems(name, [...parsed.problems, ...first.problems]);
+  let first = validateSpec(parsed.raw, { file: specPath, text, workspaceRoot, trustPaths });
+  const failed = (v: typeof first) => !v.spec || v.problems.some(p => p.severity === 'error');
+  if (failed(first)) {
+    // check again with the data file's header when it can be read (inside the boundary): every problem in one pass,
+    // and names that only the header settles (a column "time h" written as is) accepted
+    const again = first.data ? await validateWithColumns(parsed.raw, first.data, { file: specPath, text, workspaceRoot, trustPaths }, opts.trustHint) : null;
+    if (!again || failed(again)) return fromProblems(name, [...parsed.problems, ...(again ? again.problems : first.problems)]);
+    first = again;
+  }
+  if (!first.spec) return fromProblems(name, [...parsed.problems, ...first.problems]);
   const dataFile = first.spec.data.file;
   const dataLabel = first.spec.data.fileGiven;
   const readOpts = { delimiter: first.spec.data.delimiter, decimal: first.spec.data.decimal, label: dataLabel };
@@ -191,7 +224,7 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
     if (early) return errorReport(name, early, { path: ['output'], location: locationOf(text, name, ['output']) });
   }
   const header = await readHeader(dataFile, readOpts);
-  const checked = validateSpec(parsed.raw, { file: specPath, text, columns: header, workspaceRoot, dataLabel, trustPaths });
+  const checked = validateSpec(parsed.raw, { file: specPath, text, columns: header, workspaceRoot, dataLabel, trustPaths, ...shapeContext(dataFile, header) });
   const specProblems = [...parsed.problems, ...checked.problems];
   if (!checked.spec || specProblems.some(p => p.severity === 'error')) return fromProblems(name, specProblems);
   const spec = checked.spec;

@@ -122,13 +122,14 @@ class TextStage extends Transform {
       if (this.first && chunk.indexOf(0) !== -1) throw new Error('NUL');
       text = this.decoder.decode(chunk, { stream: true });
     } catch {
+      // binary (NUL bytes, or not UTF-8 already in the first line): not a text file; a bad byte further on (a file
+      // saved in another encoding, e.g. Latin-1 'é' in a later row): its line and column
+      const nul = wasFirst && chunk.indexOf(0) !== -1;
+      const at = nul ? null : this.badByteAt(chunk);
       done(
-        new DataError(
-          wasFirst
-            ? `${this.label} does not look like a text CSV file (it contains ${chunk.indexOf(0) !== -1 ? 'NUL bytes' : 'bytes that are not UTF-8 text'}) — export the data as CSV (UTF-8) and point data.file at it`
-            : `${this.label} line ${this.badByteAt(chunk).line}, column ${this.badByteAt(chunk).column}: bytes that are not UTF-8 text — save the file as UTF-8 CSV`,
-          wasFirst ? { file: this.label } : { file: this.label, line: this.badByteAt(chunk).line },
-        ),
+        nul || !at || at.line === 1
+          ? new DataError(`${this.label} does not look like a text CSV file (it contains ${nul ? 'NUL bytes' : 'bytes that are not UTF-8 text'}) — export the data as CSV (UTF-8) and point data.file at it`, { file: this.label })
+          : new DataError(`${this.label} line ${at.line}, column ${at.column}: bytes that are not UTF-8 text — save the file as UTF-8 CSV`, { file: this.label, line: at.line }),
       );
       return;
     }
@@ -371,6 +372,33 @@ function changedWhileRead(file: string, before: fs.Stats, bytesRead: number | nu
   return same ? null : new DataError(`${label} changed while being read (its size or modification time differ before and after the read); run again once whatever writes it has finished`, { file: label });
 }
 
+const TABLE_EXT = /\.(csv|tsv|txt)$/i;
+/** A header name longer than this is not a column name (a line of text, a key, a token). */
+const MAX_NAME_SHOWN = 100;
+
+export type HeaderShape = { shown: true; otherDelimiter?: string } | { shown: false; why: string };
+
+/**
+ * May a message quote this file's header? Only when the file is a table by its name (.csv, .tsv, .txt, also after
+ * following links) and its first line has the shape of column names: several fields, or one field holding another
+ * delimiter (then `otherDelimiter`). Anything else — a key file, a credentials or .env file named as data — has its
+ * first line kept out of every message.
+ */
+export function headerShape(file: string, header: readonly string[]): HeaderShape {
+  let real = file;
+  try {
+    real = fs.realpathSync(file);
+  } catch {
+    /* the name as given */
+  }
+  if (!TABLE_EXT.test(file) || !TABLE_EXT.test(real)) return { shown: false, why: 'is not a .csv, .tsv or .txt file' };
+  if (header.some((h) => h.length > MAX_NAME_SHOWN)) return { shown: false, why: 'has a first line that is not a row of column names' };
+  if (header.length >= 2) return { shown: true };
+  const other = [';', ',', '\t', '|'].find((d) => (header[0] ?? '').includes(d));
+  if (other) return { shown: true, otherDelimiter: other };
+  return { shown: false, why: 'has a single column in its first line' };
+}
+
 /** The header row's column names (trimmed). Throws DataError for a missing, empty, binary file or duplicate names. */
 export async function readHeader(file: string, opts: ReadOptions = {}): Promise<string[]> {
   const label = opts.label ?? file;
@@ -452,12 +480,15 @@ export async function readTable(file: string, opts: ReadTableOptions): Promise<T
         if (ix >= 0) want[ix] = k;
       });
       if (missing.length > 0) {
+        const shape = headerShape(file, header);
+        if (!shape.shown)
+          throw new DataError(`${label} has no column ${missing.map((m) => `'${m}'`).join(', ')} — ${label} ${shape.why}, so none of its content is shown; check that data.file names the CSV table`, { file: label, line, column: missing[0] });
         const parts = missing.map((m) => {
-          const s = suggest(m, header);
+          const s = shape.otherDelimiter ? undefined : suggest(m, header);
           return s !== undefined ? `'${m}' (did you mean '${s}'?)` : `'${m}'`;
         });
         const shown = header.slice(0, 15).map((h) => `'${h}'`).join(', ') + (header.length > 15 ? ', …' : '');
-        const hint = header.length === 1 && /[,;\t]/.test(header[0]) ? ' — the delimiter may be wrong: set data.delimiter' : '';
+        const hint = shape.otherDelimiter ? ` — the delimiter may be wrong: the header holds ${JSON.stringify(shape.otherDelimiter)}; set data.delimiter to it` : '';
         throw new DataError(`${label} has no column ${parts.join(', ')} — its columns are ${shown}${hint}`, { file: label, line, column: missing[0] });
       }
     },

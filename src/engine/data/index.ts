@@ -1,5 +1,5 @@
 // Data: streamed CSV reading, column expressions, filters, weights and data problems.
 export { DataError } from './errors';
-export { readHeader, readTable, parseNumber, type ReadOptions, type ReadTableOptions, type Delimiter, type Decimal } from './csv';
+export { headerShape, readHeader, readTable, parseNumber, type HeaderShape, type ReadOptions, type ReadTableOptions, type Delimiter, type Decimal } from './csv';
 export { prepareData, columnsNeeded, columnPaths, whereTextColumns, type PreparedData } from './prepare';
 export type { Table } from './types';

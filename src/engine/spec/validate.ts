@@ -23,6 +23,11 @@ export interface ValidateContext {
   trustPaths?: boolean;
   /** display name of the data file in messages (default: data.file as written) */
   dataLabel?: string;
+  /** the header must not be quoted (the file is not a table by its name or shape: src/engine/data/csv.ts headerShape);
+   *  the reason, e.g. "is not a .csv, .tsv or .txt file" */
+  columnsHidden?: string;
+  /** the header is one field holding this other delimiter: the spec's delimiter is probably wrong */
+  otherDelimiter?: string;
 }
 
 export interface ValidateResult {
@@ -79,6 +84,12 @@ function typeName(v: unknown): string {
 function quoteList(names: readonly string[], max = 8): string {
   const shown = names.slice(0, max).map((n) => `'${n}'`).join(', ');
   return names.length > max ? `${shown}, … (${names.length} in all)` : shown;
+}
+/** The end of an unknown-column message: the columns (when the header may be quoted) or why they are not shown. */
+function columnsNote(ctx: ValidateContext, label: string, columns: readonly string[], extra = ''): string {
+  if (ctx.columnsHidden !== undefined) return ` — ${label} ${ctx.columnsHidden}, so none of its content is shown; check that data.file names the CSV table`;
+  const delim = ctx.otherDelimiter !== undefined ? ` — the delimiter may be wrong: the header holds ${JSON.stringify(ctx.otherDelimiter)}; set data.delimiter to it` : '';
+  return ` (columns: ${quoteList(columns, 12)}${extra})${delim}`;
 }
 function didYouMean(word: string, candidates: readonly string[]): string {
   const s = suggest(word, candidates);
@@ -204,6 +215,8 @@ function checkExpression(c: Checker, ctx: ValidateContext, text: string, p: Json
       let hint = '';
       const odd = columns?.find((name) => !PLAIN_IDENT.test(name) && text.includes(name));
       if (odd !== undefined) hint = ` (a column name with spaces or symbols is written in backticks: \`${odd}\`)`;
+      else if (!columns && !text.includes('`') && /[\p{L}\p{N}_] +[\p{L}\p{N}_]/u.test(text))
+        hint = ` (if a column name has spaces or symbols, write it in backticks, e.g. \`${text.trim()}\`)`;
       c.add('spec-expression', p, `${role} ${JSON.stringify(text)} is not a valid expression: ${e.message}${hint}`, { charIndex: e.span.start });
       return undefined;
     }
@@ -217,8 +230,9 @@ function checkExpression(c: Checker, ctx: ValidateContext, text: string, p: Json
       const extra = env.extra.length > 0 ? ` (or ${quoteList(env.extra)})` : '';
       // e.g. log(od-600) reads as od - 600: point at the column name that needs backticks
       const odd = columns.find((name) => !PLAIN_IDENT.test(name) && name.startsWith(id.name) && text.includes(name));
-      const hint = odd !== undefined ? ` — write the column \`${odd}\` in backticks` : didYouMean(id.name, known);
-      c.add('spec-unknown-column', p, `${role} uses '${id.name}', which is not a column of ${label}${hint} (columns: ${quoteList(columns, 12)}${extra})`, {
+      const hidden = ctx.columnsHidden !== undefined || ctx.otherDelimiter !== undefined;
+      const hint = odd !== undefined ? ` — write the column \`${odd}\` in backticks` : hidden ? '' : didYouMean(id.name, known);
+      c.add('spec-unknown-column', p, `${role} uses '${id.name}', which is not a column of ${label}${hint}${columnsNote(ctx, label, columns, extra)}`, {
         charIndex: id.span.start,
       });
     }
@@ -559,7 +573,7 @@ function checkData(c: Checker, ctx: ValidateContext, d: Obj, specDir: string, se
         groupBy.forEach((g, k) => {
           if (!ctx.columns!.includes(g))
             c.add('spec-unknown-column', typeof d.groupBy === 'string' ? ['data', 'groupBy'] : ['data', 'groupBy', k],
-              `data.groupBy names '${g}', which is not a column of ${label}${didYouMean(g, ctx.columns!)} (columns: ${quoteList(ctx.columns!, 12)})`);
+              `data.groupBy names '${g}', which is not a column of ${label}${ctx.columnsHidden !== undefined || ctx.otherDelimiter !== undefined ? '' : didYouMean(g, ctx.columns!)}${columnsNote(ctx, label, ctx.columns!)}`);
         });
       }
     }

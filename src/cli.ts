@@ -11,12 +11,12 @@ import { InternalError, isCliWorker, startCliWorker } from './cli/pool';
 function internal(e: unknown): void {
   const detail = e instanceof InternalError ? e.detail : e instanceof Error ? e.stack : undefined;
   const message = e instanceof Error ? e.message : String(e);
-  process.stderr.write(
+  processIo.err(
     `curvewright: internal error: ${message}\n` +
       '  This is a bug in Curvewright, not a problem with your files. Please report it with the command you ran\n' +
       '  (and, if you can, the spec and data). Set CURVEWRIGHT_DEBUG=1 to print the details.\n',
   );
-  if (process.env.CURVEWRIGHT_DEBUG && detail) process.stderr.write(detail + '\n');
+  if (process.env.CURVEWRIGHT_DEBUG && detail) processIo.err(detail);
   process.exitCode = 3;
 }
 
@@ -39,11 +39,11 @@ if (isCliWorker()) {
     e => {
       const io = e as NodeJS.ErrnoException;
       if (e instanceof UsageError) {
-        process.stderr.write(`curvewright: ${e.message}\n`);
+        processIo.err(`curvewright: ${e.message}`);
         process.exitCode = 2;
       } else if (io && typeof io.code === 'string' && USER_IO.has(io.code)) {
         // a user's I/O mistake (folder, permission, full disk), not a bug: exit 2 with the path and the fix
-        process.stderr.write(`curvewright: cannot write or read ${io.path ?? 'a file'}: ${ioReason(e)} — check the path, its permissions and the free space\n`);
+        processIo.err(`curvewright: cannot write or read ${io.path ?? 'a file'}: ${ioReason(e)} — check the path, its permissions and the free space`);
         process.exitCode = 2;
       } else internal(e);
     },

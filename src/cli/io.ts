@@ -1,8 +1,10 @@
-// Where the command line writes: stdout for results, stderr for problems, and the folder it runs in.
+// Where the command line writes: stdout for results, stderr for problems (every line through toTerminal), and the
+// folder it runs in.
 import { promises as fsp } from 'fs';
 import * as path from 'path';
 import { randomBytes } from 'crypto';
 import { cleanStaleTemps, realOrSelf, tmpName } from '../engine/paths';
+import { terminalText } from '../shared/terminalText';
 
 export interface Io {
   out(text: string): void;
@@ -10,9 +12,21 @@ export interface Io {
   cwd: string;
 }
 
+/**
+ * Every line the CLI prints to a terminal passes here: control characters, DEL, C1 and bidirectional controls become
+ * visible \u escapes (src/shared/terminalText.ts) and a carriage return not followed by a line feed becomes \r, so
+ * nothing printed can move the cursor, recolour, hide or reorder text, or overwrite a line — a backstop behind the
+ * per-field escaping of the summary and the annotations. JSON lines stay valid JSON (an escape inside a string is the
+ * same character; JSON has no such characters outside strings). Ends the text with a line break.
+ */
+export function toTerminal(text: string): string {
+  const t = terminalText(text).replace(/\r(?!\n)/g, '\\r');
+  return t.endsWith('\n') ? t : t + '\n';
+}
+
 export const processIo: Io = {
-  out: text => { process.stdout.write(text.endsWith('\n') ? text : text + '\n'); },
-  err: text => { process.stderr.write(text.endsWith('\n') ? text : text + '\n'); },
+  out: text => { process.stdout.write(toTerminal(text)); },
+  err: text => { process.stderr.write(toTerminal(text)); },
   cwd: process.cwd(),
 };
 

@@ -96,5 +96,7 @@ export const INPUT_CASES: BadInputCase[] = [
   c('token line named .txt', 'no-echo', { 'h.fitspec.json': JSON.stringify({ data: { ...DATA, file: 'notes.txt' }, models: [LINE] }), 'notes.txt': 'ghp_' + 'A'.repeat(120) + ',x\n1,2\n' }, /data\.x/, /not a row of column names/, { secret: 'ghp_AAAA' }),
   // ---- output sanitised
   c('model name with newline and escape', 'terminal', withSpec(JSON.stringify({ data: DATA, models: [{ name: 'l\n\u001b[2Kcheck: 99 passed, 0 failed', polynomial: 1 }, { name: 'l\n\u001b[2Kcheck: 99 passed, 0 failed', polynomial: 2 }] })), /models\[1\]\.name/, /must be unique/),
+  c('spec argument with escape sequences and a carriage return', 'terminal', withSpec(spec({})), /no\\u001b\[2Jsuch\\rfake/, /check the path/, { args: ['fit', 'no\u001b[2Jsuch\rfake: 9 passed.fitspec.json'] }),
+  c('command with an escape sequence', 'terminal', withSpec(spec({})), /fi\\u001bt/, /did you mean 'fit'/, { args: ['fi\u001bt'] }),
   c('title with bidi override', 'terminal', withSpec(JSON.stringify({ title: 'safe\u202eevil', data: { ...DATA, y: 'od601' }, models: [LINE] })), /data\.y/, /did you mean 'od600'/),
 ];

@@ -4,7 +4,7 @@
 import { UsageError } from './cli/args';
 import { ioReason, processIo } from './cli/io';
 
-const USER_IO = new Set(['EACCES', 'EPERM', 'EROFS', 'ENOSPC', 'ENOTDIR', 'EISDIR', 'ENOENT', 'EEXIST']);
+const USER_IO = new Set(['EACCES', 'EPERM', 'EROFS', 'ENOSPC', 'ENOTDIR', 'EISDIR', 'ENOENT', 'EEXIST', 'EBUSY']);
 import { main } from './cli/main';
 import { InternalError, isCliWorker, startCliWorker } from './cli/pool';
 

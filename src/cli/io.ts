@@ -3,7 +3,7 @@
 import { promises as fsp } from 'fs';
 import * as path from 'path';
 import { randomBytes } from 'crypto';
-import { cleanStaleTemps, realOrSelf, tmpName } from '../engine/paths';
+import { cleanStaleTemps, realOrSelf, tmpName, withFileLock } from '../engine/paths';
 import { terminalText } from '../shared/terminalText';
 
 export interface Io {
@@ -42,23 +42,26 @@ export function ioReason(e: unknown): string {
 
 /**
  * Writes a file atomically: a temporary file (.<name>.curvewright-tmp-<pid>-<random>) in the same folder, then
- * rename. A symlink is written through (its target replaced, the link kept); the file's mode is kept.
+ * rename, one writer at a time (the lock file of src/engine/paths.ts withFileLock). A symlink is written through (its
+ * target replaced, the link kept); the file's mode is kept.
  */
 export async function writeAtomic(file: string, text: string): Promise<void> {
   const target = await realOrSelf(file);
   const dir = path.dirname(target);
   const tmp = tmpName(target, randomBytes(4).toString('hex'));
   await fsp.mkdir(dir, { recursive: true });
-  await cleanStaleTemps(target);
-  const mode = await fsp.stat(target).then(st => st.mode & 0o7777, () => undefined);
-  try {
-    await fsp.writeFile(tmp, text, { encoding: 'utf8', ...(mode !== undefined ? { mode } : {}) });
-    if (mode !== undefined) await fsp.chmod(tmp, mode);
-    await fsp.rename(tmp, target);
-  } catch (e) {
-    await fsp.unlink(tmp).catch(() => undefined);
-    throw e;
-  }
+  await withFileLock(target, async () => {
+    await cleanStaleTemps(target);
+    const mode = await fsp.stat(target).then(st => st.mode & 0o7777, () => undefined);
+    try {
+      await fsp.writeFile(tmp, text, { encoding: 'utf8', ...(mode !== undefined ? { mode } : {}) });
+      if (mode !== undefined) await fsp.chmod(tmp, mode);
+      await fsp.rename(tmp, target);
+    } catch (e) {
+      await fsp.unlink(tmp).catch(() => undefined);
+      throw e;
+    }
+  });
 }
 
 /** Path for messages: relative to the working folder when inside it, with forward slashes. */

@@ -190,11 +190,15 @@ export const LOCK_STALE_MS = 10 * 60 * 1000;
 
 /** Another live process holds the lock of a file beyond the wait. */
 export class LockBusyError extends Error {
+  /** as a Node I/O error: the file is busy (the CLI reports it as a user's I/O problem, exit 2) */
+  readonly code = 'EBUSY';
+  readonly path: string;
   constructor(readonly file: string, readonly lock: string, readonly pid: number | null) {
     super(
       `another Curvewright process${pid !== null ? ` (pid ${pid})` : ''} is writing ${path.basename(file)} — run again when it has finished` +
         ` (if no such process runs, remove ${path.basename(lock)} beside it)`,
     );
+    this.path = file;
   }
 }
 

@@ -80,6 +80,7 @@ const CASES: Case[] = [
   // ---- concurrent writers of one results file (an O_EXCL lock file beside it)
   { name: 'results file locked by a live writer', spec: spec({ output: 'r.json' }), setup: ws => fs.writeFileSync(path.join(ws, '.r.json.curvewright-lock'), `${process.pid}\n`), args: ['fit'], code: 2, says: ['another Curvewright process', `pid ${process.pid}`, 'run again when it has finished'] },
   { name: 'stale lock of a writer that no longer runs is cleaned', spec: spec({ output: 'r.json' }), setup: ws => fs.writeFileSync(path.join(ws, '.r.json.curvewright-lock'), '999999999\n'), args: ['fit'], code: 0, says: ['line'], mayWrite: ['r.json', '.r.json.curvewright-lock'] },
+  { name: 'report -o locked by a live writer', spec: spec({}), setup: ws => fs.writeFileSync(path.join(ws, '.r.html.curvewright-lock'), `${process.pid}\n`), args: ['report', '-o', 'r.html'], code: 2, says: ['cannot write the report r.html', 'another Curvewright process', 'run again when it has finished'] },
   // ---- report -o
   { name: 'report -o onto the data file', spec: spec({}), args: ['report', '-o', 'd.csv'], code: 2, says: ['"-o"', 'not a .html file'] },
   { name: 'report -o onto a spec', spec: spec({}), args: ['report', 's.fitspec.json', '-o', 's.fitspec.json'], code: 2, says: ['"-o"', 'not a .html file'] },

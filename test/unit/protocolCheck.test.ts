@@ -28,7 +28,7 @@ describe('webview → host message checks', () => {
   });
 
   it('refuses unknown types and non-objects', () => {
-    for (const m of [null, undefined, 42, 'ready', [], { type: 'writeFile', path: '/etc/passwd' }, { type: 'constructor' }, { type: '__proto__' }, { type: 'toString' }, {}])
+    for (const m of [null, undefined, 42, 'ready', [], { type: 'writeFile', path: '../x' }, { type: 'constructor' }, { type: '__proto__' }, { type: 'toString' }, {}])
       refused(m, /not an object|unknown message type/);
   });
 
@@ -51,7 +51,7 @@ describe('webview → host message checks', () => {
 
   it('refuses an export name that is not a plain file name of the format', () => {
     for (const [name, why] of [
-      ['../../.bashrc.png', /separator/], ['sub/plot.png', /separator/], ['..\\plot.png', /separator/], ['/tmp/plot.png', /separator/],
+      ['../../.bashrc.png', /separator/], ['sub/plot.png', /separator/], ['..\\plot.png', /separator/], ['/abs/plot.png', /separator/],
       ['..', /dot/], ['.hidden.png', /dot/], ['C:plot.png', /:/], ['plot.png:stream', /:/], ['plot\u0000.png', /control/],
       ['evil\u202egnp.csv', /control/], ['plot.png ', /ends/], ['plot.png.', /ends/], ['NUL.png', /device/], ['com1.csv', /device/],
       ['plot.sh', /\.png/], ['plot.png.sh', /\.png/], ['', /empty/], ['a'.repeat(MESSAGE_LIMITS.exportName - 3) + '.png', /longer/],

@@ -101,6 +101,7 @@ export const PROBLEMS = {
   'expect-not-met': { severity: ['check'], title: 'An expectation is not met' },
   'stale-results': { severity: ['check'], title: 'The committed results are missing or out of date' },
   'output-failed': { severity: ['check'], title: 'The results file could not be written' },
+  'report-points-decimated': { severity: ['info'], title: 'The HTML report shows a decimated set of points' },
 } as const satisfies Record<string, ProblemInfo>;
 
 /** A problem code: a key of PROBLEMS (a typo is a type error). */

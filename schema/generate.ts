@@ -89,6 +89,24 @@ export function fitspecSchema(): Schema {
         { type: 'string', minLength: 1 },
         { minItems: 1, uniqueItems: true },
       ),
+      loss: {
+        type: 'string',
+        enum: ['squares', 'huber', 'soft_l1', 'cauchy'],
+        default: 'squares',
+        description:
+          'The loss minimised: "squares" (least squares) or a robust loss, fitted by iteratively reweighted least squares from the least-squares fit; standard errors by the sandwich estimator (docs/robust.md).',
+        enumDescriptions: [
+          'Least squares.',
+          'Quadratic up to the threshold, linear beyond (Huber; tuning 1.345).',
+          'Smooth approximation to absolute error (pseudo-Huber; tuning 1.345).',
+          'Logarithmic beyond the threshold: far points get little weight (tuning 2.385).',
+        ],
+      },
+      lossScale: {
+        description:
+          'Robust loss only: the residual size where the loss turns from quadratic (SciPy f_scale), in units of the weighted residual; "mad" (default): tuning × 1.4826 × the median absolute least-squares residual; "mad-iterated": re-estimated from the residuals at every step.',
+        oneOf: [{ type: 'number', exclusiveMinimum: 0 }, { type: 'string', enum: ['mad', 'mad-iterated'] }],
+      },
     },
     required: ['name'],
     additionalProperties: false,
@@ -334,6 +352,7 @@ export function fitreportSchema(): Schema {
     cooks: numbers("Cook's distances."),
     weight: numbers('Weights used (omitted when unweighted): precision weights, data.count not included.'),
     count: numbers('data.count of each row: identical observations it stands for (omitted without data.count).'),
+    lossWeight: numbers('With a robust loss: the final loss weight of each row, in (0, 1] (1 = a well-fitting row).'),
   }, ['row', 'x', 'y', 'fitted', 'residual', 'standardized', 'leverage', 'cooks']);
   const band = {
     description: 'Fitted curve with confidence and prediction bands (single-variable models), or null.',
@@ -395,6 +414,23 @@ export function fitreportSchema(): Schema {
     predictions: arr('Predictions at spec.predict.', prediction),
     inverse: arr('Inverse predictions at spec.solveFor.', inverse),
     problems: arr('Problems of this model.', { $ref: '#/definitions/problem' }),
+    robust: obj('With a robust loss (models[].loss): how it was fitted and which rows it down-weighted.', {
+      loss: { type: 'string', enum: ['huber', 'soft_l1', 'cauchy'], description: 'The loss.' },
+      tuning: num('Tuning constant c: the threshold is c × scale.'),
+      scale: nnum('Robust scale of the weighted residuals (1.4826 × MAD); null when lossScale gave the threshold.'),
+      scaleSource: { type: 'string', enum: ['mad', 'mean-abs', 'exact', 'spec'], description: 'mad: from the MAD; mean-abs: the MAD was 0, mean absolute residual × √(π/2); exact: every residual 0; spec: lossScale.' },
+      threshold: num('Residual size where the loss turns from quadratic (c × scale, or lossScale).'),
+      iterations: int('Weighted least-squares refits.'),
+      converged: bool('The reweighting settled.'),
+      objective: num('Σ t²·ρ((r/t)²) at the solution.'),
+      weights: obj('Loss weights.', {
+        min: num('Smallest.'),
+        median: num('Median.'),
+        below: num('A row with a weight below this counts as down-weighted.'),
+        downWeighted: int('Rows below it.'),
+      }, ['min', 'median', 'below', 'downWeighted']),
+      downWeightedRows: arr('Data rows with a weight below weights.below.', { type: 'integer' }),
+    }, ['loss', 'tuning', 'scale', 'scaleSource', 'threshold', 'iterations', 'converged', 'objective', 'weights', 'downWeightedRows']),
   }, ['name', 'kind', 'formula', 'linear', 'status', 'termination', 'iterations', 'paramOrder', 'params', 'covariance', 'correlation', 'stats', 'residualTests', 'band', 'predictions', 'inverse', 'problems']);
   const ranking = arr('Models ranked by AICc.', obj('One model.', {
     name: str('Model name.'),

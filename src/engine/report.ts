@@ -35,6 +35,10 @@ export interface ModelSpec {
   solver?: SolverSpec;
   /** with data.groupBy: parameters common to all groups; the model is fitted once to all groups together */
   shared?: string[];
+  /** "squares" (default, least squares) or a robust loss fitted by iteratively reweighted least squares */
+  loss?: 'squares' | 'huber' | 'soft_l1' | 'cauchy';
+  /** robust loss: the residual size where the loss turns from quadratic (a positive number, in units of the weighted residual), or "mad" (default: tuning × 1.4826·MAD of the least-squares residuals) or "mad-iterated" (re-estimated every step) */
+  lossScale?: number | 'mad' | 'mad-iterated';
 }
 
 export interface ExcludeSpec {
@@ -238,6 +242,8 @@ export interface PointsReport {
   weight?: number[];
   /** data.count of each row (omitted without data.count) */
   count?: number[];
+  /** with a robust loss (models[].loss): the loss's final weight of each row, in (0, 1] (1 = a well-fitting row) */
+  lossWeight?: number[];
 }
 
 /** Fitted curve with confidence (ciLow/ciHigh) and prediction (piLow/piHigh) bands on a grid of x. */
@@ -310,6 +316,30 @@ export interface ModelReport {
   predictions: PredictionReport[];
   inverse: InverseReport[];
   problems: Problem[];
+  /** with models[].loss other than "squares": the robust fit's loss, scale and weights (docs/robust.md) */
+  robust?: RobustReport;
+}
+
+/** A robust-loss fit (models[].loss): iteratively reweighted least squares, standard errors by the sandwich. */
+export interface RobustReport {
+  loss: 'huber' | 'soft_l1' | 'cauchy';
+  /** tuning constant c: the loss turns from quadratic at |r| = c·scale */
+  tuning: number;
+  /** robust scale s of the weighted residuals (1.4826·MAD), null when lossScale gave the threshold */
+  scale: number | null;
+  /** where the scale comes from: mad (of the least-squares residuals, or re-estimated with lossScale "mad-iterated"), mean-abs (MAD was 0), exact (all residuals 0), spec (lossScale a number) */
+  scaleSource: 'mad' | 'mean-abs' | 'exact' | 'spec';
+  /** the residual size t = c·s where the loss turns from quadratic (SciPy's f_scale) */
+  threshold: number;
+  /** weighted least-squares refits of the reweighting */
+  iterations: number;
+  converged: boolean;
+  /** Σ t²·ρ((r/t)²) at the solution */
+  objective: number;
+  /** loss weights: smallest, median, the cut below which a row counts as down-weighted, and how many are below it */
+  weights: { min: number; median: number; below: number; downWeighted: number };
+  /** data rows with a loss weight below weights.below */
+  downWeightedRows: number[];
 }
 
 /** The models ranked by AICc (Akaike weights), F-tests between nested pairs, and the pick with its reason. */

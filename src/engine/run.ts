@@ -29,7 +29,9 @@ import { parseSpecText, validateSpec, locatePath } from './spec';
 import type { NormalizedSpec } from './spec/types';
 import { DataError, columnPaths, columnsNeeded, prepareData, headerShape, readHeader, readTable, whereTextColumns } from './data';
 import type { Table } from './data/types';
-import { buildModel, fitModel } from './models';
+import { buildModel, fitModel, modelProblem } from './models';
+import { solveLinear, solveNonlinear } from './solve';
+import { applyRobust, robustFit } from './stats/robust';
 import { analyzeModel, compareModels, dataCorrelation, resolveThresholds } from './stats';
 import type { AnalysisOptions, ModelAnalysisInput } from './stats/api';
 import { sidecarPath, splitReport, type OutputPoints } from './pointsFile';
@@ -282,13 +284,16 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
         continue;
       }
       try {
-        const result = fitModel(built, sub, {
+        const ls = fitModel(built, sub, {
           maxIterations: m.solver.maxIterations,
           seconds: m.solver.seconds,
           multiStart: m.solver.multiStart,
           seed: RUN_SEED,
           shouldStop: opts.shouldStop,
         });
+        // a robust loss: iteratively reweighted least squares from the least-squares fit (stats/robust.ts)
+        const rob = m.loss && ls.converged ? robustFit(m.loss, m.lossScale ?? 'mad', sub, ls, refitWith(built, sub, m, opts.shouldStop)) : null;
+        const result = rob ? { ...ls, ...rob.result, startValues: ls.startValues, startSource: ls.startSource } : ls;
         const input: ModelAnalysisInput = {
           index: i,
           name: m.name,
@@ -305,7 +310,7 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
           variables: prepared.variables,
           X: sub.X,
           y: sub.y,
-          w: sub.w,
+          w: rob ? rob.w : sub.w,
           count: sub.count,
           precision: sub.precision,
           rows: sub.rows,
@@ -320,9 +325,11 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
           thresholds,
           solverOptions: { maxIterations: m.solver.maxIterations, seconds: m.solver.seconds },
           shouldStop: opts.shouldStop,
-          options: { ...ANALYSIS_DEFAULTS, ...opts.analysis },
+          options: { ...ANALYSIS_DEFAULTS, ...opts.analysis, ...(rob ? { profile: false } : {}) },
         };
-        const report = withGroup(analyzeModel(input), group);
+        const analysedReport = analyzeModel(input);
+        if (rob && m.loss) applyRobust(analysedReport, input, rob, sub, m.loss, typeof m.lossScale === 'number');
+        const report = withGroup(analysedReport, group);
         // a shared model's separate fits are not reported: they start its joint fit and are its sharing test's baseline
         if (group !== undefined && m.shared) hidden.push({ index: i, report });
         else {
@@ -492,6 +499,15 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
 function fitWeights(w: Float64Array | null, count: Float64Array | null): Float64Array | null {
   if (!count) return w;
   return Float64Array.from(count, (c, i) => c * (w ? w[i] : 1));
+}
+
+/** A weighted refit of a built model from θ0 with its bounds and fixed parameters (the steps of a robust fit). */
+function refitWith(built: ReturnType<typeof buildModel>, sub: Subset, m: NormalizedSpec['models'][number], shouldStop?: () => boolean) {
+  return (w: Float64Array, theta0: Float64Array) => {
+    const problem = modelProblem(built, { X: sub.X, y: sub.y, w });
+    const o = { theta0, lower: built.lower, upper: built.upper, fixed: built.fixed, maxIterations: m.solver.maxIterations, seconds: m.solver.seconds, shouldStop };
+    return built.compiled.linear ? solveLinear(problem, o) : solveNonlinear(problem, o);
+  };
 }
 
 /** Errors thrown by buildModel with a user message (not a bug): plain Errors whose name says so. */

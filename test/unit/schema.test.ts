@@ -19,7 +19,7 @@ const reportSchema = JSON.parse(fs.readFileSync(path.join(root, 'schema', 'fitre
 // Exact<> checks below reject a key of the type that is not listed (tsc --noEmit runs over tests).
 const FIT_KEYS = ['title', 'data', 'models', 'confidence', 'predict', 'solveFor', 'predictWeight', 'output', 'outputPoints', 'expect', 'thresholds', 'derived'] as const satisfies readonly (keyof FitSpec)[];
 const DATA_KEYS = ['file', 'x', 'y', 'sigma', 'weight', 'count', 'sigmaMode', 'where', 'exclude', 'delimiter', 'decimal', 'badRows', 'groupBy'] as const satisfies readonly (keyof DataSpec)[];
-const MODEL_KEYS = ['name', 'builtin', 'polynomial', 'formula', 'params', 'solver', 'shared'] as const satisfies readonly (keyof ModelSpec)[];
+const MODEL_KEYS = ['name', 'builtin', 'polynomial', 'formula', 'params', 'solver', 'shared', 'loss', 'lossScale'] as const satisfies readonly (keyof ModelSpec)[];
 const PARAM_KEYS = ['start', 'min', 'max', 'fixed'] as const satisfies readonly (keyof ParamSpec)[];
 const SOLVER_KEYS = ['maxIterations', 'multiStart', 'seconds'] as const satisfies readonly (keyof SolverSpec)[];
 const EXCLUDE_KEYS = ['row', 'reason'] as const satisfies readonly (keyof ExcludeSpec)[];

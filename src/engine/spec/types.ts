@@ -28,6 +28,8 @@ export interface NormalizedModel extends ModelSpec {
    */
   params?: Record<string, ParamSpec>;
   solver: Required<SolverSpec>;
+  /** a robust loss (absent for least squares: "squares" is normalised away) */
+  loss?: 'huber' | 'soft_l1' | 'cauchy';
 }
 
 export interface NormalizedSpec extends FitSpec {

@@ -43,7 +43,7 @@ export interface ValidateResult {
 
 const TOP_KEYS = ['$schema', 'title', 'data', 'models', 'confidence', 'predict', 'solveFor', 'predictWeight', 'output', 'outputPoints', 'expect', 'thresholds', 'derived'];
 const DATA_KEYS = ['file', 'x', 'y', 'sigma', 'weight', 'count', 'sigmaMode', 'where', 'exclude', 'delimiter', 'decimal', 'badRows', 'groupBy'];
-const MODEL_KEYS = ['name', 'builtin', 'polynomial', 'formula', 'params', 'solver', 'shared'];
+const MODEL_KEYS = ['name', 'builtin', 'polynomial', 'formula', 'params', 'solver', 'shared', 'loss', 'lossScale'];
 const PARAM_KEYS = ['start', 'min', 'max', 'fixed'];
 const SOLVER_KEYS = ['maxIterations', 'multiStart', 'seconds'];
 const EXPECT_KEYS = ['value', 'tol', 'rel'];
@@ -847,9 +847,25 @@ function checkModel(c: Checker, ctx: ValidateContext, m: unknown, i: number, var
     }
   }
 
+  // loss: least squares (default) or a robust loss; lossScale: where it turns from quadratic (docs/robust.md)
+  const loss = c.oneOf(m, 'loss', P, ['squares', 'huber', 'soft_l1', 'cauchy'] as const);
+  let lossScale: NormalizedModel['lossScale'];
+  if (m.lossScale !== undefined) {
+    const q: JsonPath = [...P, 'lossScale'];
+    const v = m.lossScale;
+    if (v === 'mad' || v === 'mad-iterated') lossScale = v;
+    else if (isNum(v) && v > 0 && Number.isFinite(v)) lossScale = v;
+    else c.add('spec-loss', q, `models[${i}].lossScale must be a positive number (the residual size where the loss turns from quadratic, in units of y or of the weighted residual), "mad" or "mad-iterated", not ${typeName(v)}`);
+    if (loss === undefined || loss === 'squares')
+      c.add('spec-loss', q, `models[${i}].lossScale only applies to a robust loss — add "loss": "huber" (or "soft_l1", "cauchy"), or remove lossScale`);
+  }
+  if (loss !== undefined && loss !== 'squares' && m.shared !== undefined)
+    c.add('spec-loss', [...P, 'loss'], `models[${i}]: a robust loss is not available for a joint fit of the groups (shared) yet — remove "shared" to fit each group robustly, or use "loss": "squares"`);
   if (c.errors > errorsBefore || name === undefined || kind === undefined) return undefined;
   const out: NormalizedModel = { name, kind, index: i, solver };
   if (shared) out.shared = shared;
+  if (loss !== undefined && loss !== 'squares') out.loss = loss;
+  if (lossScale !== undefined) out.lossScale = lossScale;
   if (rp !== undefined) out.params = nparams;
   if (kind === 'builtin') out.builtin = m.builtin as string;
   if (kind === 'polynomial') out.polynomial = m.polynomial as number;

@@ -1,0 +1,84 @@
+// Edges of the robust fits (solve/irls.ts, stats/robust.ts) through a spec: an exact fit (scale 0 must not divide
+// by zero), a MAD of 0 with some residuals non-zero (the mean-absolute fallback), every point an outlier (a tiny
+// given threshold), a redescending loss; and the loss functions themselves against their closed forms.
+import { strict as assert } from 'assert';
+import * as fs from 'fs';
+import * as os from 'os';
+import * as path from 'path';
+import { runSpecFile } from '../../src/engine/run';
+import { isErrorReport, type FitReport } from '../../src/engine/report';
+import { rho, robustScale, weightedMedianAbs, choleskyInverse } from '../../src/engine/solve/irls';
+
+async function fit(csv: string, models: object[], data: object = {}): Promise<FitReport> {
+  const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'cw-irls-'));
+  fs.writeFileSync(path.join(dir, 'd.csv'), csv);
+  fs.writeFileSync(path.join(dir, 's.fitspec.json'), JSON.stringify({ data: { file: 'd.csv', x: 'x', y: 'y', ...data }, models }));
+  const r = await runSpecFile(path.join(dir, 's.fitspec.json'), { workspaceRoot: dir });
+  if (isErrorReport(r)) assert.fail(r.error.message);
+  return r as FitReport;
+}
+const csvOf = (pts: [number, number][]) => 'x,y\n' + pts.map(([a, b]) => `${a},${b}`).join('\n') + '\n';
+
+describe('robust loss: edges', () => {
+  it('loss functions: ρ, ρ′ and ρ″ of SciPy least_squares at z = 0.25 and 4', () => {
+    assert.deepEqual(rho('huber', 0.25), [0.25, 1, 0]);
+    assert.deepEqual(rho('huber', 4), [3, 0.5, -0.5 / 8]);
+    const [a, b, c] = rho('soft_l1', 4);
+    assert.ok(Math.abs(a - 2 * (Math.sqrt(5) - 1)) < 1e-15 && Math.abs(b - 1 / Math.sqrt(5)) < 1e-15 && Math.abs(c + 0.5 / 5 ** 1.5) < 1e-15);
+    assert.deepEqual(rho('cauchy', 4), [Math.log(5), 0.2, -1 / 25]);
+  });
+
+  it('median of |r| with frequency weights, and the scale fallbacks', () => {
+    assert.equal(weightedMedianAbs([3, -1, 2], null), 2);
+    assert.equal(weightedMedianAbs([3, -1, 2, 10], null), 2.5);
+    assert.equal(weightedMedianAbs([1, 5], [3, 1]), 1);
+    assert.deepEqual(robustScale([0, 0, 0, 2], null).from, 'mean-abs');
+    assert.deepEqual(robustScale([0, 0, 0], null), { s: 0, from: 'exact' });
+    assert.equal(choleskyInverse(Float64Array.from([1, 2, 2, 1]), 2), null, 'indefinite → null');
+    const inv = choleskyInverse(Float64Array.from([4, 2, 2, 3]), 2)!;
+    [0.375, -0.25, -0.25, 0.5].forEach((v, k) => assert.ok(Math.abs(inv[k] - v) < 1e-15));
+  });
+
+  it('an exact fit: scale 0, the least-squares solution, every weight 1, no division by zero', async () => {
+    const r = await fit(csvOf([1, 2, 3, 4, 5, 6].map((x) => [x, 2 + 3 * x])), [{ name: 'h', formula: 'b0 + b1*x', loss: 'huber' }]);
+    const m = r.models[0];
+    assert.equal(m.status, 'converged');
+    assert.equal(m.robust!.scaleSource, 'exact');
+    assert.equal(m.robust!.scale, 0);
+    assert.equal(m.robust!.iterations, 0);
+    assert.ok(Math.abs(m.params.b1.value - 3) < 1e-12 && Math.abs(m.params.b0.value - 2) < 1e-12, JSON.stringify(m.params));
+    assert.ok(m.points!.lossWeight!.every((u) => u === 1));
+    assert.equal(m.robust!.downWeightedRows.length, 0);
+  });
+
+  it('seven points on a line and one far off, scale re-estimated: the residual scale collapses towards 0 without a division by zero, the line is found', async () => {
+    const pts: [number, number][] = [1, 2, 3, 4, 5, 6, 7, 8].map((x) => [x, 1 + x]);
+    pts[7][1] = 30;
+    const r = await fit(csvOf(pts), [{ name: 'h', formula: 'b0 + b1*x', loss: 'huber', lossScale: 'mad-iterated' }]);
+    const m = r.models[0];
+    assert.equal(m.status, 'converged');
+    assert.ok(m.robust!.scale! < 1e-3, String(m.robust!.scale));
+    assert.ok(Math.abs(m.params.b1.value - 1) < 1e-6, `slope ${m.params.b1.value}: the line's 1, not least squares' 2.6`);
+    assert.deepEqual(m.robust!.downWeightedRows, [8]);
+    assert.ok(Object.values(m.params).every((p) => p.se === null || Number.isFinite(p.se)));
+  });
+
+  it('every point beyond a tiny given threshold: huber tends to the L1 line (exact through two points), the others listed', async () => {
+    const pts: [number, number][] = [1, 2, 3, 4, 5, 6, 7, 8, 9, 10].map((x) => [x, 1 + 2 * x + Math.sin(1.7 * x)]);
+    const r = await fit(csvOf(pts), [{ name: 'h', formula: 'b0 + b1*x', loss: 'huber', lossScale: 1e-7 }, { name: 'c', formula: 'b0 + b1*x', loss: 'cauchy', lossScale: 1e-3 }]);
+    const h = r.models[0];
+    assert.equal(h.status, 'converged');
+    assert.ok(h.robust!.downWeightedRows.length >= 8, JSON.stringify(h.robust));
+    const p = h.problems.find((q) => q.code === 'robust-down-weighted')!;
+    assert.match(p.message, /of 10 rows/);
+    assert.ok(r.models[1].robust && r.models[1].robust.threshold === 1e-3, 'the cauchy fit reports its given threshold');
+  });
+
+  it('least squares by name equals no loss at all (byte-identical report)', async () => {
+    const pts: [number, number][] = [1, 2, 3, 4, 5, 6].map((x) => [x, 1 + 2 * x + 0.1 * Math.sin(x)]);
+    const a = await fit(csvOf(pts), [{ name: 'l', polynomial: 1 }]);
+    const b = await fit(csvOf(pts), [{ name: 'l', polynomial: 1, loss: 'squares' }]);
+    assert.equal(JSON.stringify(a.models), JSON.stringify(b.models));
+    assert.equal(a.models[0].robust, undefined);
+  });
+});

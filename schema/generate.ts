@@ -140,6 +140,7 @@ export function fitspecSchema(): Schema {
       },
       y: str('Column name or expression over columns, e.g. "od600" or "log(od600)".', { minLength: 1 }),
       sigma: str('Column or expression of the standard deviations of y; the weights are 1/sigma². Not together with "weight".', { minLength: 1 }),
+      sigmaX: str('Errors in x: column or expression (or a constant such as "0.05") of the standard deviations of x, for an orthogonal-distance fit (Deming regression for a straight line with constant σ). Needs "sigma" or "weight" for y and a single x variable (docs/robust.md).', { minLength: 1 }),
       weight: str('Expression of inverse-variance (precision) weights over columns, x and y, e.g. "1/y^2": weight w means y has variance σ²/w. Not together with "sigma". For replicate counts use "count".', { minLength: 1 }),
       count: str('Column or expression of frequency weights: each row stands for that many identical observations (a whole number ≥ 1); dof, standard errors, likelihood and intervals are those of the expanded data. Combines with sigma or weight.', { minLength: 1 }),
       sigmaMode: {
@@ -352,6 +353,7 @@ export function fitreportSchema(): Schema {
     cooks: numbers("Cook's distances."),
     weight: numbers('Weights used (omitted when unweighted): precision weights, data.count not included.'),
     count: numbers('data.count of each row: identical observations it stands for (omitted without data.count).'),
+    xAdjusted: numbers('With data.sigmaX: the fitted x of each point, x + δ, of the orthogonal-distance fit.'),
     lossWeight: numbers('With a robust loss: the final loss weight of each row, in (0, 1] (1 = a well-fitting row).'),
   }, ['row', 'x', 'y', 'fitted', 'residual', 'standardized', 'leverage', 'cooks']);
   const band = {
@@ -431,6 +433,14 @@ export function fitreportSchema(): Schema {
       }, ['min', 'median', 'below', 'downWeighted']),
       downWeightedRows: arr('Data rows with a weight below weights.below.', { type: 'integer' }),
     }, ['loss', 'tuning', 'scale', 'scaleSource', 'threshold', 'iterations', 'converged', 'objective', 'weights', 'downWeightedRows']),
+    errorsInX: obj('With data.sigmaX: the orthogonal-distance (errors-in-x) fit. stats.sse is its objective; points.residual the orthogonal residual in units of y.', {
+      method: { type: 'string', enum: ['deming', 'odr'], description: 'deming: straight line, constant σ_x and σ_y (closed form); odr: general orthogonal distance regression.' },
+      sigmaX: str('data.sigmaX as written.'),
+      lambda: nnum("Deming's λ = σ_y²/σ_x²; null for odr."),
+      objective: num('Σ w_y (y − f(x+δ))² + w_x δ² at the solution.'),
+      iterations: int('Solver iterations of the augmented problem.'),
+      maxShift: num('Largest |δ|, in units of x.'),
+    }, ['method', 'sigmaX', 'lambda', 'objective', 'iterations', 'maxShift']),
   }, ['name', 'kind', 'formula', 'linear', 'status', 'termination', 'iterations', 'paramOrder', 'params', 'covariance', 'correlation', 'stats', 'residualTests', 'band', 'predictions', 'inverse', 'problems']);
   const ranking = arr('Models ranked by AICc.', obj('One model.', {
     name: str('Model name.'),

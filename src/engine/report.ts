@@ -52,6 +52,11 @@ export interface DataSpec {
   x: string | Record<string, string>;
   y: string;
   sigma?: string;
+  /**
+   * errors in x: the standard deviation of each x value (a column or expression, or a constant such as "0.05"),
+   * for an orthogonal-distance fit (Deming regression for a straight line); needs data.sigma or data.weight for y
+   */
+  sigmaX?: string;
   /** inverse-variance (precision) weights: weight w means the row's y has variance σ²/w */
   weight?: string;
   /**
@@ -244,6 +249,8 @@ export interface PointsReport {
   count?: number[];
   /** with a robust loss (models[].loss): the loss's final weight of each row, in (0, 1] (1 = a well-fitting row) */
   lossWeight?: number[];
+  /** with data.sigmaX: the fitted ("true") x of each point, x + δ, of the orthogonal-distance fit */
+  xAdjusted?: number[];
 }
 
 /** Fitted curve with confidence (ciLow/ciHigh) and prediction (piLow/piHigh) bands on a grid of x. */
@@ -318,6 +325,27 @@ export interface ModelReport {
   problems: Problem[];
   /** with models[].loss other than "squares": the robust fit's loss, scale and weights (docs/robust.md) */
   robust?: RobustReport;
+  /** with data.sigmaX: the errors-in-x (orthogonal distance) fit (docs/robust.md) */
+  errorsInX?: ErrorsInXReport;
+}
+
+/**
+ * An errors-in-x fit: min Σ w_y (y − f(x+δ))² + w_x δ² over the parameters and every δ. stats.sse is that sum;
+ * points.residual is the orthogonal residual in units of y, e·(1 + w_y f′²/w_x), whose weighted squares add to it.
+ */
+export interface ErrorsInXReport {
+  /** deming: a straight line with constant σ_x and σ_y (closed form, then confirmed by the general solve); odr: the general orthogonal-distance fit */
+  method: 'deming' | 'odr';
+  /** data.sigmaX as written */
+  sigmaX: string;
+  /** Deming's λ = σ_y²/σ_x², null for odr */
+  lambda: number | null;
+  /** Σ w_y (y − f(x+δ))² + w_x δ² at the solution (= stats.sse) */
+  objective: number;
+  /** solver iterations of the augmented problem */
+  iterations: number;
+  /** the largest |δ|, the shift of an x value, in units of x */
+  maxShift: number;
 }
 
 /** A robust-loss fit (models[].loss): iteratively reweighted least squares, standard errors by the sandwich. */

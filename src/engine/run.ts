@@ -32,6 +32,8 @@ import type { Table } from './data/types';
 import { buildModel, fitModel, modelProblem } from './models';
 import { solveLinear, solveNonlinear } from './solve';
 import { applyRobust, robustFit } from './stats/robust';
+import { applyErrorsInX, errorsInXFit } from './stats/errorsInX';
+import { MAX_ODR_ROWS } from './solve/odr';
 import { analyzeModel, compareModels, dataCorrelation, resolveThresholds } from './stats';
 import type { AnalysisOptions, ModelAnalysisInput } from './stats/api';
 import { sidecarPath, splitReport, type OutputPoints } from './pointsFile';
@@ -263,6 +265,8 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
     const hidden: Fitted['hidden'] = [];
     const analysed: Fitted['analysed'] = [];
     const inGroup = group !== undefined ? ` in group '${group}'` : '';
+    if (sub.wx && sub.y.length > MAX_ODR_ROWS)
+      return errorReport(name, `data.sigmaX: an errors-in-x fit handles up to ${MAX_ODR_ROWS} rows${inGroup}, and ${spec.data.fileGiven} has ${sub.y.length} there — fit a subset (data.where), average replicates, or drop sigmaX`, { path: ['data', 'sigmaX'], location: locationOf(text, name, ['data', 'sigmaX']) });
     for (let i = 0; i < spec.models.length; i++) {
       const m = spec.models[i];
       progress(`fitting model ${i + 1} of ${spec.models.length}: ${m.name}${inGroup}`);
@@ -292,8 +296,10 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
           shouldStop: opts.shouldStop,
         });
         // a robust loss: iteratively reweighted least squares from the least-squares fit (stats/robust.ts)
+        // errors in x (data.sigmaX): the orthogonal-distance fit from the least-squares one (stats/errorsInX.ts)
+        const eiv = sub.wx && ls.converged && sub.w ? errorsInXFit(built, sub.X[0], sub.y, sub.w, sub.wx, ls, { maxIterations: m.solver.maxIterations, seconds: m.solver.seconds, shouldStop: opts.shouldStop }) : null;
         const rob = m.loss && ls.converged ? robustFit(m.loss, m.lossScale ?? 'mad', sub, ls, refitWith(built, sub, m, opts.shouldStop)) : null;
-        const result = rob ? { ...ls, ...rob.result, startValues: ls.startValues, startSource: ls.startSource } : ls;
+        const result = rob || eiv ? { ...ls, ...(rob ?? eiv)!.result, startValues: ls.startValues, startSource: ls.startSource } : ls;
         const input: ModelAnalysisInput = {
           index: i,
           name: m.name,
@@ -310,7 +316,7 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
           variables: prepared.variables,
           X: sub.X,
           y: sub.y,
-          w: rob ? rob.w : sub.w,
+          w: rob ? rob.w : eiv ? eiv.wEff : sub.w,
           count: sub.count,
           precision: sub.precision,
           rows: sub.rows,
@@ -325,10 +331,11 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
           thresholds,
           solverOptions: { maxIterations: m.solver.maxIterations, seconds: m.solver.seconds },
           shouldStop: opts.shouldStop,
-          options: { ...ANALYSIS_DEFAULTS, ...opts.analysis, ...(rob ? { profile: false } : {}) },
+          options: { ...ANALYSIS_DEFAULTS, ...opts.analysis, ...(rob ? { profile: false } : {}), ...(eiv ? { profile: false, crossValidate: false } : {}) },
         };
         const analysedReport = analyzeModel(input);
         if (rob && m.loss) applyRobust(analysedReport, input, rob, sub, m.loss, typeof m.lossScale === 'number');
+        if (eiv) applyErrorsInX(analysedReport, eiv, spec.data.sigmaX as string, prepared.variables[0]);
         const report = withGroup(analysedReport, group);
         // a shared model's separate fits are not reported: they start its joint fit and are its sharing test's baseline
         if (group !== undefined && m.shared) hidden.push({ index: i, report });
@@ -407,7 +414,7 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
   let comparison: FitReport['comparison'] = null;
   let groups: GroupReport[] | undefined;
   if (!prepared.groups) {
-    const fitted = fitAll({ ...data, count: prepared.count, precision: prepared.w, rows: prepared.rows });
+    const fitted = fitAll({ ...data, count: prepared.count, precision: prepared.w, rows: prepared.rows, wx: prepared.wx ?? null });
     if ('error' in fitted) return fitted;
     models.push(...fitted.models);
     comparison = compare(fitted.analysed, '');
@@ -583,7 +590,7 @@ function withGroup(report: ModelReport, group: string | undefined): ModelReport 
 
 /** The points of `members` (indices into the prepared arrays) as data of their own. */
 /** The rows one fit uses: x, y, the weights the fit minimises with (w), frequency weights and precision weights. */
-interface Subset { X: Float64Array[]; y: Float64Array; w: Float64Array | null; count: Float64Array | null; precision: Float64Array | null; rows: Int32Array }
+interface Subset { X: Float64Array[]; y: Float64Array; w: Float64Array | null; count: Float64Array | null; precision: Float64Array | null; rows: Int32Array; wx?: Float64Array | null }
 
 function subset(prepared: ReturnType<typeof prepareData>, members: number[]): Subset {
   const pick = <T extends Float64Array | Int32Array>(a: T, make: (n: number) => T): T => {
@@ -601,6 +608,7 @@ function subset(prepared: ReturnType<typeof prepareData>, members: number[]): Su
     count,
     precision,
     rows: pick(prepared.rows, n => new Int32Array(n)),
+    wx: prepared.wx ? pick(prepared.wx, f64) : null,
   };
 }
 

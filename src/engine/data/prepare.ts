@@ -15,6 +15,8 @@ export interface PreparedData {
   w: Float64Array | null;
   /** data.count: how many identical observations each row stands for, or null (one each) */
   count: Float64Array | null;
+  /** data.sigmaX: weights 1/σ_x² of the x values (errors in x), or null without data.sigmaX */
+  wx?: Float64Array | null;
   /** 1-based data row of each used point */
   rows: Int32Array;
   /** 1-based file line of each used point */
@@ -189,6 +191,7 @@ export function columnsNeeded(spec: NormalizedSpec, header?: readonly string[]):
   for (const t of Object.values(d.x)) add(expressionColumns(t, false, header, []));
   add(expressionColumns(d.y, false, header, []));
   if (d.sigma !== undefined) add(expressionColumns(d.sigma, false, header, []));
+  if (d.sigmaX !== undefined) add(expressionColumns(d.sigmaX, false, header, []));
   if (d.weight !== undefined) add(expressionColumns(d.weight, false, header, extra));
   if (d.count !== undefined) add(expressionColumns(d.count, false, header, extra));
   // columns a where filter compares with quoted text are read as text (textColumns), not as numbers
@@ -212,6 +215,7 @@ export function columnPaths(spec: NormalizedSpec, header?: readonly string[]): R
   for (const v of vars) add(expressionColumns(d.x[v], false, header, []), vars.length === 1 && v === 'x' ? ['data', 'x'] : ['data', 'x', v]);
   add(expressionColumns(d.y, false, header, []), ['data', 'y']);
   if (d.sigma !== undefined) add(expressionColumns(d.sigma, false, header, []), ['data', 'sigma']);
+  if (d.sigmaX !== undefined) add(expressionColumns(d.sigmaX, false, header, []), ['data', 'sigmaX']);
   if (d.weight !== undefined) add(expressionColumns(d.weight, false, header, extra), ['data', 'weight']);
   if (d.count !== undefined) add(expressionColumns(d.count, false, header, extra), ['data', 'count']);
   if (d.where !== undefined) add(expressionColumns(d.where, true, header, extra), ['data', 'where']);
@@ -270,6 +274,7 @@ export function prepareData(spec: NormalizedSpec, table: Table): PreparedData {
   const Xall: (Float64Array | null)[] = variables.map((v) => evaluate(d.x[v], false, xPath(v), `data.x.${v}`));
   const yAll = evaluate(d.y, false, ['data', 'y'], 'data.y');
   const sigmaAll = d.sigma !== undefined ? evaluate(d.sigma, false, ['data', 'sigma'], 'data.sigma') : null;
+  const sigmaXAll = d.sigmaX !== undefined ? evaluate(d.sigmaX, false, ['data', 'sigmaX'], 'data.sigmaX') : null;
   // x variables and y become names for weight and where (a column of the same name wins)
   variables.forEach((v, k) => {
     const col = Xall[k];
@@ -319,7 +324,7 @@ export function prepareData(spec: NormalizedSpec, table: Table): PreparedData {
     dropped: [...table.dropped],
     problems,
   });
-  if (Xall.some((c) => c === null) || !yAll || (d.sigma !== undefined && !sigmaAll) || (d.weight !== undefined && !weightAll) || (d.where !== undefined && !whereAll) || (d.count !== undefined && !countAll))
+  if (Xall.some((c) => c === null) || !yAll || (d.sigma !== undefined && !sigmaAll) || (d.sigmaX !== undefined && !sigmaXAll) || (d.weight !== undefined && !weightAll) || (d.where !== undefined && !whereAll) || (d.count !== undefined && !countAll))
     return empty();
 
   // exclusions by data row
@@ -459,6 +464,13 @@ export function prepareData(spec: NormalizedSpec, table: Table): PreparedData {
         reason = { column: d.sigma as string, reason: `sigma = ${s} is so small that its weight 1/σ² is infinite` };
       }
     }
+    if (!reason && sigmaXAll) {
+      const s = sigmaXAll[i];
+      if (!(Number.isFinite(s) && s > 0) || !Number.isFinite(1 / (s * s))) {
+        badEntry('data.sigmaX', d.sigmaX as string, ['data', 'sigmaX'], 'bad-sigma', 'is not a positive finite number (σ of x must be positive; an x without error has no place in an errors-in-x fit)').note(row);
+        reason = { column: d.sigmaX as string, reason: `sigmaX = ${s} (must be a positive number)` };
+      }
+    }
     if (!reason && weightAll) {
       const w = weightAll[i];
       if (!(Number.isFinite(w) && w > 0)) {
@@ -504,6 +516,7 @@ export function prepareData(spec: NormalizedSpec, table: Table): PreparedData {
   const y = new Float64Array(n);
   const w = sigmaAll || weightAll ? new Float64Array(n) : null;
   const count = countAll ? new Float64Array(n) : null;
+  const wx = sigmaXAll ? new Float64Array(n) : null;
   const rows = new Int32Array(n);
   const lines = new Int32Array(n);
   const of = new Int32Array(groupCols.length ? n : 0);
@@ -514,6 +527,7 @@ export function prepareData(spec: NormalizedSpec, table: Table): PreparedData {
     y[j] = yAll[i];
     if (w) w[j] = sigmaAll ? 1 / (sigmaAll[i] * sigmaAll[i]) : (weightAll as Float64Array)[i];
     if (count) count[j] = countAll![i];
+    if (wx) wx[j] = 1 / (sigmaXAll![i] * sigmaXAll![i]);
     rows[j] = table.row[i];
     lines[j] = table.line[i];
     j++;
@@ -527,5 +541,5 @@ export function prepareData(spec: NormalizedSpec, table: Table): PreparedData {
     });
   const dropped = [...table.dropped, ...newlyDropped].sort((a, b) => a.row - b.row);
   const groups = groupCols.length ? { groups: { ids: groupIds, keys: groupKeys, rows: groupRows, of } } : {};
-  return { variables, X, y, w, count, rows, lines, excluded, filtered, dropped, problems, ...groups };
+  return { variables, X, y, w, count, ...(wx ? { wx } : {}), rows, lines, excluded, filtered, dropped, problems, ...groups };
 }

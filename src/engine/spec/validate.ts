@@ -42,7 +42,7 @@ export interface ValidateResult {
 }
 
 const TOP_KEYS = ['$schema', 'title', 'data', 'models', 'confidence', 'predict', 'solveFor', 'predictWeight', 'output', 'outputPoints', 'expect', 'thresholds', 'derived'];
-const DATA_KEYS = ['file', 'x', 'y', 'sigma', 'weight', 'count', 'sigmaMode', 'where', 'exclude', 'delimiter', 'decimal', 'badRows', 'groupBy'];
+const DATA_KEYS = ['file', 'x', 'y', 'sigma', 'sigmaX', 'weight', 'count', 'sigmaMode', 'where', 'exclude', 'delimiter', 'decimal', 'badRows', 'groupBy'];
 const MODEL_KEYS = ['name', 'builtin', 'polynomial', 'formula', 'params', 'solver', 'shared', 'loss', 'lossScale'];
 const PARAM_KEYS = ['start', 'min', 'max', 'fixed'];
 const SOLVER_KEYS = ['maxIterations', 'multiStart', 'seconds'];
@@ -291,7 +291,7 @@ export function validateSpec(raw: unknown, ctx: ValidateContext): ValidateResult
   else {
     const seen = new Map<string, number>();
     ms.forEach((m, i) => {
-      const nm = checkModel(c, ctx, m, i, variables, seen, isObj(raw.data) && raw.data.groupBy !== undefined);
+      const nm = checkModel(c, ctx, m, i, variables, seen, isObj(raw.data) && raw.data.groupBy !== undefined, isObj(raw.data) && raw.data.sigmaX !== undefined);
       if (nm) {
         models.push(nm);
       }
@@ -559,6 +559,14 @@ function checkData(c: Checker, ctx: ValidateContext, d: Obj, specDir: string, se
   const count = c.str(d, 'count', P, { nonEmpty: true });
   if (d.sigma !== undefined && d.weight !== undefined)
     c.add('spec-sigma-weight', ['data', 'weight'], 'data gives both "sigma" and "weight" — keep one: sigma (standard deviations, weights 1/σ²) or weight (weights directly)');
+  const sigmaX = c.str(d, 'sigmaX', P, { nonEmpty: true });
+  if (d.sigmaX !== undefined) {
+    if (d.sigma === undefined && d.weight === undefined)
+      c.add('spec-sigma-x', ['data', 'sigmaX'], 'data.sigmaX (errors in x) needs the errors of y too: the orthogonal-distance fit weighs x against y — add data.sigma (a column, or a constant such as "1") or data.weight');
+    if (isObj(d.x) && Object.keys(d.x).length > 1)
+      c.add('spec-sigma-x', ['data', 'sigmaX'], 'data.sigmaX (errors in x) needs a single x variable, but data.x binds several — fit one x, or drop sigmaX');
+    if (d.count !== undefined) c.add('spec-sigma-x', ['data', 'sigmaX'], 'data.sigmaX cannot be combined with data.count yet — expand the counted rows, or drop one of the two');
+  }
   const where = c.str(d, 'where', P, { nonEmpty: true });
   let groupBy: string[] | undefined;
   if (d.groupBy !== undefined) {
@@ -637,6 +645,7 @@ function checkData(c: Checker, ctx: ValidateContext, d: Obj, specDir: string, se
   Object.assign(x, nx);
   const ny = y !== undefined ? checkExpression(c, ectx, y, ['data', 'y'], 'data.y', { extra: [] }) : undefined;
   const nsigma = sigma !== undefined ? checkExpression(c, ectx, sigma, ['data', 'sigma'], 'data.sigma', { extra: [] }) : undefined;
+  const nsigmaX = sigmaX !== undefined ? checkExpression(c, ectx, sigmaX, ['data', 'sigmaX'], 'data.sigmaX', { extra: [] }) : undefined;
   const extra = [...variables, 'y'];
   const nweight = weight !== undefined ? checkExpression(c, ectx, weight, ['data', 'weight'], 'data.weight', { extra }) : undefined;
   const nwhere = where !== undefined ? checkExpression(c, ectx, where, ['data', 'where'], 'data.where', { extra, logic: true }) : undefined;
@@ -655,6 +664,7 @@ function checkData(c: Checker, ctx: ValidateContext, d: Obj, specDir: string, se
     badRows: badRows ?? DEFAULTS.data.badRows,
   };
   if (nsigma !== undefined) out.sigma = nsigma;
+  if (nsigmaX !== undefined) out.sigmaX = nsigmaX;
   if (nweight !== undefined) out.weight = nweight;
   if (nwhere !== undefined) out.where = nwhere;
   if (groupBy !== undefined) out.groupBy = groupBy;
@@ -662,7 +672,7 @@ function checkData(c: Checker, ctx: ValidateContext, d: Obj, specDir: string, se
   return out;
 }
 
-function checkModel(c: Checker, ctx: ValidateContext, m: unknown, i: number, variables: string[], seen: Map<string, number>, grouped: boolean): NormalizedModel | undefined {
+function checkModel(c: Checker, ctx: ValidateContext, m: unknown, i: number, variables: string[], seen: Map<string, number>, grouped: boolean, sigmaX = false): NormalizedModel | undefined {
   const P: JsonPath = ['models', i];
   if (!isObj(m)) {
     c.type(P, 'an object { "name": …, "builtin" | "polynomial" | "formula": … }', m);
@@ -859,6 +869,10 @@ function checkModel(c: Checker, ctx: ValidateContext, m: unknown, i: number, var
     if (loss === undefined || loss === 'squares')
       c.add('spec-loss', q, `models[${i}].lossScale only applies to a robust loss — add "loss": "huber" (or "soft_l1", "cauchy"), or remove lossScale`);
   }
+  if (loss !== undefined && loss !== 'squares' && sigmaX)
+    c.add('spec-loss', [...P, 'loss'], `models[${i}]: a robust loss cannot be combined with data.sigmaX (errors in x) yet — use one of the two`);
+  if (sigmaX && m.shared !== undefined)
+    c.add('spec-sigma-x', [...P, 'shared'], `models[${i}]: a joint fit of the groups (shared) cannot be combined with data.sigmaX (errors in x) yet — remove shared, or data.sigmaX`);
   if (loss !== undefined && loss !== 'squares' && m.shared !== undefined)
     c.add('spec-loss', [...P, 'loss'], `models[${i}]: a robust loss is not available for a joint fit of the groups (shared) yet — remove "shared" to fit each group robustly, or use "loss": "squares"`);
   if (c.errors > errorsBefore || name === undefined || kind === undefined) return undefined;

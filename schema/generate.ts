@@ -139,7 +139,19 @@ export function fitspecSchema(): Schema {
         ],
       },
       y: str('Column name or expression over columns, e.g. "od600" or "log(od600)".', { minLength: 1 }),
-      sigma: str('Column or expression of the standard deviations of y; the weights are 1/sigma². Not together with "weight".', { minLength: 1 }),
+      sigma: {
+        description:
+          'Standard deviations of y: a column or expression (the weights are 1/sigma²), or a variance function { "power": θ | "estimate" } for σ ∝ |fitted value|^θ, refitted until the weights settle (θ estimated from replicate x values with "estimate"). Not together with "weight".',
+        oneOf: [
+          { type: 'string', minLength: 1 },
+          obj('Variance function σ ∝ |fitted|^θ (docs/robust.md).', {
+            power: {
+              description: 'θ: a number (0 = constant σ, 0.5 = Poisson-like, 1 = constant CV) or "estimate" (from replicates: x values measured two or more times).',
+              oneOf: [{ type: 'number', minimum: -5, maximum: 5 }, { type: 'string', enum: ['estimate'] }],
+            },
+          }, ['power']),
+        ],
+      },
       sigmaX: str('Errors in x: column or expression (or a constant such as "0.05") of the standard deviations of x, for an orthogonal-distance fit (Deming regression for a straight line with constant σ). Needs "sigma" or "weight" for y and a single x variable (docs/robust.md).', { minLength: 1 }),
       weight: str('Expression of inverse-variance (precision) weights over columns, x and y, e.g. "1/y^2": weight w means y has variance σ²/w. Not together with "sigma". For replicate counts use "count".', { minLength: 1 }),
       count: str('Column or expression of frequency weights: each row stands for that many identical observations (a whole number ≥ 1); dof, standard errors, likelihood and intervals are those of the expanded data. Combines with sigma or weight.', { minLength: 1 }),
@@ -433,6 +445,14 @@ export function fitreportSchema(): Schema {
       }, ['min', 'median', 'below', 'downWeighted']),
       downWeightedRows: arr('Data rows with a weight below weights.below.', { type: 'integer' }),
     }, ['loss', 'tuning', 'scale', 'scaleSource', 'threshold', 'iterations', 'converged', 'objective', 'weights', 'downWeightedRows']),
+    variance: obj('With data.sigma a variance function: the scheme and θ.', {
+      scheme: { type: 'string', enum: ['power'], description: 'σ ∝ |fitted|^θ.' },
+      theta: num('The power θ used; weights |fitted|^(−2θ), normalised to mean 1 (points.weight).'),
+      estimated: bool('θ estimated from the replicates, or given.'),
+      replicateGroups: int('Replicated x values that informed θ (or that exist when θ is given).'),
+      iterations: int('Weighted refits.'),
+      converged: bool('The weights settled.'),
+    }, ['scheme', 'theta', 'estimated', 'replicateGroups', 'iterations', 'converged']),
     errorsInX: obj('With data.sigmaX: the orthogonal-distance (errors-in-x) fit. stats.sse is its objective; points.residual the orthogonal residual in units of y.', {
       method: { type: 'string', enum: ['deming', 'odr'], description: 'deming: straight line, constant σ_x and σ_y (closed form); odr: general orthogonal distance regression.' },
       sigmaX: str('data.sigmaX as written.'),

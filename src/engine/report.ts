@@ -51,7 +51,11 @@ export interface DataSpec {
   /** string: column or expression bound to `x`; object: variable name -> column or expression */
   x: string | Record<string, string>;
   y: string;
-  sigma?: string;
+  /**
+   * standard deviations of y: a column or expression, or a variance function estimated with the fit,
+   * { "power": θ | "estimate" } for σ ∝ |fitted value|^θ (θ estimated from replicates with "estimate")
+   */
+  sigma?: string | VarianceSpec;
   /**
    * errors in x: the standard deviation of each x value (a column or expression, or a constant such as "0.05"),
    * for an orthogonal-distance fit (Deming regression for a straight line); needs data.sigma or data.weight for y
@@ -72,6 +76,11 @@ export interface DataSpec {
   badRows?: 'drop' | 'fail';
   /** a column or several: each distinct value (combination, joined by '/') is a group, fitted separately */
   groupBy?: string | string[];
+}
+
+/** data.sigma as a variance function: σ_i = σ·|μ_i|^θ, μ the fitted value; θ a number or "estimate" (from replicates). */
+export interface VarianceSpec {
+  power: number | 'estimate';
 }
 
 export type ExpectSpec = { value: number; tol: number } | { value: number; rel: number };
@@ -325,8 +334,24 @@ export interface ModelReport {
   problems: Problem[];
   /** with models[].loss other than "squares": the robust fit's loss, scale and weights (docs/robust.md) */
   robust?: RobustReport;
+  /** with data.sigma a variance function: the scheme, θ and how it was found (docs/robust.md) */
+  variance?: VarianceReport;
   /** with data.sigmaX: the errors-in-x (orthogonal distance) fit (docs/robust.md) */
   errorsInX?: ErrorsInXReport;
+}
+
+/** Weights from a variance function σ ∝ |fitted|^θ (data.sigma { "power": … }), fitted by iterative reweighting. */
+export interface VarianceReport {
+  scheme: 'power';
+  /** the power θ used: σ_i ∝ |μ̂_i|^θ, weights |μ̂_i|^(−2θ) (normalised to mean 1, in points.weight) */
+  theta: number;
+  /** θ estimated from the replicates (data.sigma.power "estimate"), or given */
+  estimated: boolean;
+  /** replicate groups (x values measured two or more times) that informed θ, or that exist when θ is given */
+  replicateGroups: number;
+  /** weighted refits */
+  iterations: number;
+  converged: boolean;
 }
 
 /**

@@ -34,6 +34,7 @@ import { solveLinear, solveNonlinear } from './solve';
 import { applyRobust, robustFit } from './stats/robust';
 import { applyErrorsInX, errorsInXFit } from './stats/errorsInX';
 import { MAX_ODR_ROWS } from './solve/odr';
+import { MIN_REPLICATE_GROUPS, informativeGroups, replicateGroups, varianceFit } from './data/variance';
 import { analyzeModel, compareModels, dataCorrelation, resolveThresholds } from './stats';
 import type { AnalysisOptions, ModelAnalysisInput } from './stats/api';
 import { sidecarPath, splitReport, type OutputPoints } from './pointsFile';
@@ -296,10 +297,21 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
           shouldStop: opts.shouldStop,
         });
         // a robust loss: iteratively reweighted least squares from the least-squares fit (stats/robust.ts)
+        // data.sigma a variance function: weights |μ̂|^(−2θ) refitted to a fixed point (data/variance.ts)
+        const variance = spec.data.variance;
+        if (variance && variance.power === 'estimate' && ls.converged && informativeGroups(replicateGroups(sub.X, sub.y.length), sub.y, ls.f) < MIN_REPLICATE_GROUPS) {
+          const P: JsonPath = ['data', 'sigma', 'power'];
+          return errorReport(name,
+            `data.sigma.power "estimate" needs replicates${inGroup}: θ comes from the scatter of y at x values measured two or more times, and at least ${MIN_REPLICATE_GROUPS} such x values with some scatter are needed (found ${informativeGroups(replicateGroups(sub.X, sub.y.length), sub.y, ls.f)}) — measure replicates, give θ as a number (e.g. "power": 1 for a constant CV), or use data.weight (e.g. "1/y^2")`,
+            { path: P, location: locationOf(text, name, P) });
+        }
+        const vf = variance && ls.converged ? varianceFit(variance.power, ls, sub.X, sub.y, refitWith(built, sub, m, opts.shouldStop)) : null;
+        const subW = vf ? { ...sub, w: vf.w, precision: vf.w } : sub;
         // errors in x (data.sigmaX): the orthogonal-distance fit from the least-squares one (stats/errorsInX.ts)
         const eiv = sub.wx && ls.converged && sub.w ? errorsInXFit(built, sub.X[0], sub.y, sub.w, sub.wx, ls, { maxIterations: m.solver.maxIterations, seconds: m.solver.seconds, shouldStop: opts.shouldStop }) : null;
-        const rob = m.loss && ls.converged ? robustFit(m.loss, m.lossScale ?? 'mad', sub, ls, refitWith(built, sub, m, opts.shouldStop)) : null;
-        const result = rob || eiv ? { ...ls, ...(rob ?? eiv)!.result, startValues: ls.startValues, startSource: ls.startSource } : ls;
+        const rob = m.loss && ls.converged ? robustFit(m.loss, m.lossScale ?? 'mad', subW, vf ? vf.result : ls, refitWith(built, sub, m, opts.shouldStop)) : null;
+        const final = rob?.result ?? eiv?.result ?? vf?.result;
+        const result = final ? { ...ls, ...final, startValues: ls.startValues, startSource: ls.startSource } : ls;
         const input: ModelAnalysisInput = {
           index: i,
           name: m.name,
@@ -316,7 +328,7 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
           variables: prepared.variables,
           X: sub.X,
           y: sub.y,
-          w: rob ? rob.w : eiv ? eiv.wEff : sub.w,
+          w: rob ? rob.w : eiv ? eiv.wEff : vf ? vf.w : sub.w,
           count: sub.count,
           precision: sub.precision,
           rows: sub.rows,
@@ -334,7 +346,13 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
           options: { ...ANALYSIS_DEFAULTS, ...opts.analysis, ...(rob ? { profile: false } : {}), ...(eiv ? { profile: false, crossValidate: false } : {}) },
         };
         const analysedReport = analyzeModel(input);
-        if (rob && m.loss) applyRobust(analysedReport, input, rob, sub, m.loss, typeof m.lossScale === 'number');
+        if (vf) analysedReport.variance = { scheme: 'power', theta: vf.theta, estimated: vf.estimated, replicateGroups: vf.groups, iterations: vf.iterations, converged: vf.converged };
+        if (vf && !vf.converged)
+          analysedReport.problems.push({
+            code: 'variance-no-convergence', severity: 'warning', path: ['data', 'sigma'],
+            message: `${m.name}${inGroup}: the weights of the variance function (σ ∝ |fitted|^θ, θ = ${vf.theta.toPrecision(4)}) did not settle within ${vf.iterations} refits, so the estimates are those of the last refit — give θ as a number, or check the replicates for outliers`,
+          });
+        if (rob && m.loss) applyRobust(analysedReport, input, rob, subW, m.loss, typeof m.lossScale === 'number');
         if (eiv) applyErrorsInX(analysedReport, eiv, spec.data.sigmaX as string, prepared.variables[0]);
         const report = withGroup(analysedReport, group);
         // a shared model's separate fits are not reported: they start its joint fit and are its sharing test's baseline

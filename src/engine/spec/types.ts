@@ -1,5 +1,5 @@
 // The checked, defaulted form of a fit spec that everything after validation reads.
-import type { DataSpec, ExcludeSpec, FitSpec, ModelSpec, ParamSpec, SolverSpec, Thresholds } from '../report';
+import type { DataSpec, VarianceSpec, ExcludeSpec, FitSpec, ModelSpec, ParamSpec, SolverSpec, Thresholds } from '../report';
 
 export interface NormalizedData extends DataSpec {
   /** absolute path of the CSV file (resolved against the spec file's folder) */
@@ -13,6 +13,10 @@ export interface NormalizedData extends DataSpec {
   delimiter: 'auto' | ',' | ';' | '\t';
   decimal: '.' | ',';
   badRows: 'drop' | 'fail';
+  /** data.sigma as σ values (a column or expression); a variance function is in `variance` instead */
+  sigma?: string;
+  /** data.sigma as a variance function { power: θ | "estimate" } */
+  variance?: VarianceSpec;
   /** data.groupBy as a list of columns (absent without groups) */
   groupBy?: string[];
 }

@@ -2,7 +2,7 @@
 // normalises it: defaults filled, data.x always an object, file paths absolute.
 import * as path from 'path';
 import { formulaIdentifiers, formulaParameters, parseFormula, suggest, FormulaError, CONSTANTS, FUNCTIONS } from '../formula';
-import type { ExcludeSpec, FileLocation, JsonPath, ParamSpec, Problem, ProblemCode, Severity } from '../report';
+import type { ExcludeSpec, VarianceSpec, FileLocation, JsonPath, ParamSpec, Problem, ProblemCode, Severity } from '../report';
 import { BUILTIN_IDS, BUILTIN_PARAMS, isBuiltinId, polynomialParams } from './catalogue';
 import { DEFAULTS, THRESHOLD_KEYS } from './defaults';
 import { LIMITS } from './limits';
@@ -554,7 +554,22 @@ function checkData(c: Checker, ctx: ValidateContext, d: Obj, specDir: string, se
   if (variables.length > 0) setVariables(variables);
 
   const y = c.str(d, 'y', P, { required: 'the y column or expression, e.g. "od600"', nonEmpty: true });
-  const sigma = c.str(d, 'sigma', P, { nonEmpty: true });
+  // data.sigma: σ values (a column or expression), or a variance function { "power": θ | "estimate" }
+  let variance: VarianceSpec | undefined;
+  const sigma = isObj(d.sigma) ? undefined : c.str(d, 'sigma', P, { nonEmpty: true });
+  if (isObj(d.sigma)) {
+    const q: JsonPath = ['data', 'sigma'];
+    c.keys(d.sigma, ['power'], q, 'data.sigma');
+    const pw = d.sigma.power;
+    if (pw === undefined) c.required([...q, 'power'], 'the power θ of σ ∝ |fitted value|^θ: a number (1 = constant CV, 0.5 = Poisson-like) or "estimate" (from replicates)');
+    else if (pw === 'estimate' || (isNum(pw) && Number.isFinite(pw) && Math.abs(pw) <= 5)) variance = { power: pw as number | 'estimate' };
+    else c.add('spec-variance', [...q, 'power'], `data.sigma.power must be a number between −5 and 5 (θ in σ ∝ |fitted value|^θ; 1 = constant CV) or "estimate", not ${typeName(pw)}`);
+    if (d.sigmaMode === 'absolute')
+      c.add('spec-variance', ['data', 'sigmaMode'], 'sigmaMode "absolute" needs known σ values, but data.sigma is a variance function (known only up to a factor) — give σ values in data.sigma, or remove sigmaMode');
+    if (d.sigmaX !== undefined)
+      c.add('spec-variance', q, 'data.sigmaX (errors in x) needs data.sigma as σ values of y (a column, or a constant such as "1"), not a variance function');
+    if (d.count !== undefined) c.add('spec-variance', q, 'a variance function in data.sigma cannot be combined with data.count yet — expand the counted rows (they are the replicates), or give σ values');
+  }
   const weight = c.str(d, 'weight', P, { nonEmpty: true });
   const count = c.str(d, 'count', P, { nonEmpty: true });
   if (d.sigma !== undefined && d.weight !== undefined)
@@ -664,6 +679,7 @@ function checkData(c: Checker, ctx: ValidateContext, d: Obj, specDir: string, se
     badRows: badRows ?? DEFAULTS.data.badRows,
   };
   if (nsigma !== undefined) out.sigma = nsigma;
+  if (variance !== undefined) out.variance = variance;
   if (nsigmaX !== undefined) out.sigmaX = nsigmaX;
   if (nweight !== undefined) out.weight = nweight;
   if (nwhere !== undefined) out.where = nwhere;

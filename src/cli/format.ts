@@ -110,6 +110,8 @@ export function summaryText(r: FitReport, specShown: string, written: string | n
     for (const more of rest) rows.push(['', ...(grouped ? [''] : []), '', '', more, '', '', '']);
   }
   out.push(...table(rows));
+  const how = fitMethodLine(r);
+  if (how) out.push(how);
   if (shown.length < r.models.length) {
     const failed = r.models.filter(m => m.status !== 'converged').length;
     out.push(`  … ${r.models.length - shown.length} more rows not shown (${r.models.length} fits in all: ${r.models.length - failed} converged, ${failed} failed; failed fits are always among the rows shown, up to ${MAX_GROUP_ROWS / 2}) — see --json or the results file`);
@@ -176,6 +178,26 @@ export function summaryText(r: FitReport, specShown: string, written: string | n
   if (written) out.push(`  wrote ${written}`);
   // user text (title, names, messages quoting them) can hold control characters: each line is one escaped line
   return out.map(oneLine).join('\n');
+}
+
+/** One line naming every fit that is not plain least squares: robust loss, errors in x, variance function (first fit of each model). */
+export function fitMethodLine(r: FitReport): string | null {
+  const parts: string[] = [];
+  const seen = new Set<string>();
+  for (const m of r.models) {
+    if (seen.has(m.name)) continue;
+    const bits: string[] = [];
+    if (m.robust) {
+      const down = m.robust.downWeightedRows.length;
+      bits.push(`${m.robust.loss} loss, threshold ${num(m.robust.threshold, 4)}${m.robust.scaleSource === 'spec' ? ' (lossScale)' : ` (${num(m.robust.tuning, 4)} × MAD scale ${num(m.robust.scale, 4)})`}, ${down} row${down === 1 ? '' : 's'} down-weighted${down ? ` (${m.robust.downWeightedRows.slice(0, 8).join(', ')}${down > 8 ? ', …' : ''})` : ''}`);
+    }
+    if (m.errorsInX) bits.push(m.errorsInX.method === 'deming' ? `errors in x: Deming regression, λ = σy²/σx² = ${num(m.errorsInX.lambda, 4)}` : 'errors in x: orthogonal distance regression');
+    if (m.variance) bits.push(`weights from σ ∝ |fitted|^θ, θ = ${num(m.variance.theta, 4)} ${m.variance.estimated ? `estimated from ${m.variance.replicateGroups} replicated x values` : 'given'}`);
+    if (!bits.length) continue;
+    seen.add(m.name);
+    parts.push(`${m.name}: ${bits.join('; ')}`);
+  }
+  return parts.length ? `  fitted by: ${parts.join(' | ')}` : null;
 }
 
 export function expectText(e: FitReport['expect'][number]): string {

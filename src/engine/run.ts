@@ -422,7 +422,14 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
   const compare = (analysed: Fitted['analysed'], inGroup: string): FitReport['comparison'] => {
     if (analysed.length === 0) return null;
     try {
-      return compareModels(analysed.map(a => a.input), analysed.map(a => a.report), thresholds);
+      const c = compareModels(analysed.map(a => a.input), analysed.map(a => a.report), thresholds);
+      // robust-loss fits have no likelihood and no residual sum of squares to test: out of the F-tests and the pick
+      const robust = new Set(analysed.filter(a => a.report.robust).map(a => a.report.name));
+      if (robust.size === 0) return c;
+      c.fTests = c.fTests.filter(t => !robust.has(t.simpler) && !robust.has(t.richer));
+      const note = `${[...robust].map(n => `'${n}'`).join(', ')} ${robust.size === 1 ? 'uses a robust loss, which has' : 'use robust losses, which have'} no likelihood, so AICc does not rank ${robust.size === 1 ? 'it' : 'them'} — compare the estimates and the down-weighted rows instead.`;
+      c.reason = c.best ? `${c.reason.replace(' is the only model that converged.', ' is the only model ranked by AICc.')} ${note}` : note;
+      return c;
     } catch (e) {
       runProblems.push({ code: 'comparison-failed', severity: 'warning', message: internalMessage(e, `comparing the models${inGroup}`), path: ['models'] });
       return null;

@@ -6,7 +6,6 @@ import { DOWN_WEIGHT, irls, sandwichCovariance, type LossName, type RobustResult
 import type { ModelAnalysisInput } from './api';
 import { normalQuantile, normalSf, tQuantile, tTwoSidedP } from './distributions';
 import { computeBand, computeInverse, computePrediction, predictionPoint, type PredictionContext } from './predict';
-import { listRows } from './analyze';
 import { fmtMessage as fmt } from '../../shared/numberFormat';
 import { DEFAULTS } from '../spec/defaults';
 
@@ -88,6 +87,11 @@ export function applyRobust(report: ModelReport, input: ModelAnalysisInput, fit:
       path: [...base, 'loss'],
     });
   }
+  // a robust objective is not a likelihood: no information criteria, so AICc does not rank the fit (docs/robust.md)
+  report.stats.logLik = null;
+  report.stats.aic = null;
+  report.stats.aicc = null;
+  report.stats.bic = null;
   if (report.status !== 'converged') return;
 
   // ------------------------------------------------------------ sandwich covariance
@@ -165,7 +169,7 @@ export function applyRobust(report: ModelReport, input: ModelAnalysisInput, fit:
       severity: 'info',
       message:
         `${input.name}: the ${robust.loss} loss gave ${down.length === n ? 'every row' : `${down.length} of ${n} rows`} less than half the weight of a well-fitting point — ${shown.join(', ')}${down.length > 10 ? `, … (${down.length - 10} more)` : ''}. ` +
-        `They stay in the fit with less influence (rows ${listRows(down.map((i) => rows[i]))}); check them for recording or handling errors before excluding any.`,
+        `They stay in the fit with less influence; check them for recording or handling errors before excluding any (data.exclude with a reason).`,
       path: [...base, 'loss'],
       rows: down.slice(0, 100).map((i) => rows[i]),
     };

@@ -12,6 +12,8 @@ import { mulberry32, normalSource } from '../../scripts/generate-demo';
 import { CORRECT, designsFor, draw } from './falseAlarms';
 
 const CODES = ['robust-down-weighted', 'robust-no-convergence', 'robust-no-covariance', 'variance-no-convergence'];
+/** other cuts of the loss weight, to choose the threshold: rate of fits with some row below each */
+const CUTS = (process.env.CUTS ?? '').split(',').filter(Boolean).map(Number);
 const reps = Number(process.argv[2] ?? 20);
 const seed = 20261202;
 
@@ -50,6 +52,7 @@ async function main(): Promise<void> {
               const m = (rep as FitReport).models[0];
               if (m.status === 'failed') row.failed++;
               for (const c of new Set(m.problems.map((p) => p.code))) if (CODES.includes(c)) row.fired[c] = (row.fired[c] ?? 0) + 1;
+              if (m.robust) for (const cut of CUTS) if (m.robust.weights.min < cut) row.fired[`cut ${cut}`] = (row.fired[`cut ${cut}`] ?? 0) + 1;
             }
           }
         }
@@ -62,9 +65,10 @@ async function main(): Promise<void> {
   }
   const pct = (k: number | undefined, f: number) => ((100 * (k ?? 0)) / f).toFixed(1);
   console.log(`Seed ${seed}; ${reps} data sets per curve and design; the 7 curves of test/sim/falseAlarms.ts (correct models, normal noise, no outliers). Rates in % of fits.\n`);
-  console.log(`| fit | n (distinct x) | fits | failed | ${CODES.join(' | ')} |`);
-  console.log(`|---|---:|---:|---:|${CODES.map(() => '---:').join('|')}|`);
-  for (const r of rows) console.log(`| ${r.what} | ${r.n} | ${r.fits} | ${pct(r.failed, r.fits)} | ${CODES.map((c) => pct(r.fired[c], r.fits)).join(' | ')} |`);
+  const cols = [...CODES, ...CUTS.map((c) => `cut ${c}`)];
+  console.log(`| fit | n (distinct x) | fits | failed | ${cols.join(' | ')} |`);
+  console.log(`|---|---:|---:|---:|${cols.map(() => '---:').join('|')}|`);
+  for (const r of rows) console.log(`| ${r.what} | ${r.n} | ${r.fits} | ${pct(r.failed, r.fits)} | ${cols.map((c) => pct(r.fired[c], r.fits)).join(' | ')} |`);
 }
 
 void main();

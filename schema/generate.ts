@@ -22,6 +22,7 @@ const THRESHOLD_TEXT: Record<(typeof THRESHOLD_KEYS)[number], string> = {
   cooksFactor: "Cook's distance above this multiple of 1/n marks an influential point (4 gives the usual 4/n).",
   linearHint: '|r| of y with x at or above which a straight line is suggested.',
   fTestAlpha: 'Significance level of the extra-sum-of-squares F-test between nested models.',
+  lossWeight: "A robust loss's final weight (1 = a well-fitting row) below which a row is listed as down-weighted (robust-down-weighted).",
 };
 
 const str = (description: string, extra: Schema = {}): Schema => ({ type: 'string', description, ...extra });

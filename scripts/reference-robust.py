@@ -4,8 +4,8 @@
 # (1965), as R's datasets::stackloss (test/fixtures/stackloss.csv), and the treated rows of the Puromycin data
 # (Treloar 1974; R's datasets::Puromycin; test/fixtures/puromycin.csv).
 # Objective: scipy.optimize.least_squares minimises 0.5·Σ f_scale²·ρ((r/f_scale)²) with the same ρ as Curvewright,
-# so the threshold t = f_scale is set the same way: t = c·1.4826·median|r_LS| (c = 1.345 huber/soft_l1, 2.385 cauchy),
-# r_LS the least-squares residuals, or a given t. The sandwich SE is computed here independently from the formulas
+# so the threshold t = f_scale is set the same way: t = c·1.4826·median|r_i/√(1−h_i)| (c = 1.345 huber/soft_l1,
+# 2.385 cauchy), r the least-squares residuals and h their hat values (studentized), or a given t. The sandwich SE is computed here independently from the formulas
 # (HC1-scaled A⁻¹BA⁻¹, ψ = ρ'(z)·r, ψ' = ρ'(z) + 2zρ''(z)) at SciPy's solution, with SciPy's finite-difference-free
 # analytic Jacobian below.
 import csv, json, os, sys
@@ -25,6 +25,12 @@ def rho(loss, z):
     if loss == 'soft_l1':
         return (1 / np.sqrt(1 + z), -0.5 * (1 + z) ** -1.5)
     return (1 / (1 + z), -1 / (1 + z) ** 2)
+
+
+def studentized_scale(J, r):
+    Q, _ = np.linalg.qr(J)
+    h = np.sum(Q * Q, axis=1)
+    return MAD * np.median(np.abs(r / np.sqrt(1 - h)))
 
 
 def robust(fun, jac, theta_ls, loss, t, bounds=(-np.inf, np.inf)):
@@ -59,7 +65,7 @@ y = np.array([float(r['stack_loss']) for r in rows])
 fun = lambda th: X @ th - y
 jac = lambda th: X
 th_ls = np.linalg.lstsq(X, y, rcond=None)[0]
-s = MAD * np.median(np.abs(y - X @ th_ls))
+s = studentized_scale(X, X @ th_ls - y)
 out['stackloss'] = {'params': ['b0', 'b1', 'b2', 'b3'], 'ls': [float(v) for v in th_ls], 'scale': float(s)}
 for loss in TUNING:
     out['stackloss'][loss] = robust(fun, jac, th_ls, loss, TUNING[loss] * s)
@@ -71,7 +77,7 @@ y = np.array([float(r['rate']) for r in rows])
 fun = lambda th: th[0] * x / (th[1] + x) - y
 jac = lambda th: np.column_stack([x / (th[1] + x), -th[0] * x / (th[1] + x) ** 2])
 ls = least_squares(fun, [200.0, 0.1], jac=jac, method='trf', xtol=1e-15, ftol=1e-15, gtol=1e-15)
-s = MAD * np.median(np.abs(fun(ls.x)))
+s = studentized_scale(jac(ls.x), fun(ls.x))
 out['puromycin'] = {'params': ['Vm', 'K'], 'ls': [float(v) for v in ls.x], 'scale': float(s)}
 for loss in TUNING:
     out['puromycin'][loss] = robust(fun, jac, ls.x, loss, TUNING[loss] * s)
@@ -80,7 +86,7 @@ out['puromycin']['cauchy_t5'] = robust(fun, jac, ls.x, 'cauchy', 5.0)
 # (the scale from the least-squares fit under the same bound, as the spec's fit has it)
 bnd = ([-np.inf, -np.inf], [205.0, np.inf])
 lsb = least_squares(fun, [200.0, 0.1], jac=jac, method='trf', bounds=bnd, xtol=1e-15, ftol=1e-15, gtol=1e-15)
-sb = MAD * np.median(np.abs(fun(lsb.x)))
+sb = studentized_scale(jac(lsb.x), fun(lsb.x))
 out['puromycin']['huber_bound'] = robust(fun, jac, lsb.x, 'huber', TUNING['huber'] * sb, bounds=bnd)
 
 json.dump(out, sys.stdout, indent=1)

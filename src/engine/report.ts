@@ -142,6 +142,8 @@ export interface Thresholds {
   linearHint: number;
   /** significance level of the extra-sum-of-squares F-test */
   fTestAlpha: number;
+  /** a robust loss's weight below which a row is listed as down-weighted */
+  lossWeight: number;
 }
 
 // ---------------------------------------------------------------- FitReport

@@ -309,7 +309,7 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
         const subW = vf ? { ...sub, w: vf.w, precision: vf.w } : sub;
         // errors in x (data.sigmaX): the orthogonal-distance fit from the least-squares one (stats/errorsInX.ts)
         const eiv = sub.wx && ls.converged && sub.w ? errorsInXFit(built, sub.X[0], sub.y, sub.w, sub.wx, ls, { maxIterations: m.solver.maxIterations, seconds: m.solver.seconds, shouldStop: opts.shouldStop }) : null;
-        const rob = m.loss && ls.converged ? robustFit(m.loss, m.lossScale ?? 'mad', subW, vf ? vf.result : ls, refitWith(built, sub, m, opts.shouldStop)) : null;
+        const rob = m.loss && ls.converged ? robustFit(m.loss, m.lossScale ?? 'mad', subW, vf ? vf.result : ls, refitWith(built, sub, m, opts.shouldStop), built.fixed) : null;
         const final = rob?.result ?? eiv?.result ?? vf?.result;
         const result = final ? { ...ls, ...final, startValues: ls.startValues, startSource: ls.startSource } : ls;
         const input: ModelAnalysisInput = {

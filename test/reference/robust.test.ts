@@ -2,7 +2,8 @@
 // calls: SciPy's least_squares(loss=…, f_scale=t) (scripts/reference-robust.py) on the stack-loss data of Brownlee
 // (1965; R datasets::stackloss) with a linear model and on the treated Puromycin rows (Treloar 1974) with
 // Michaelis–Menten, and R's MASS::rlm (Huber, MAD scale re-estimated; scripts/reference-rlm.R) on stack loss.
-// Both objectives are set the same way (docs/robust.md): threshold t = c·1.4826·median|r_LS|, or given.
+// Both objectives are set the same way (docs/robust.md): threshold t = c·1.4826·median|r_i/√(1−h_i)| of the
+// least-squares fit (studentized), or given; MASS::rlm's re-estimated MAD of raw residuals with "mad-iterated".
 // Figures committed in test/fixtures/reference/{scipy-robust,r-rlm}.json; CI needs neither SciPy nor R.
 // Tolerances: estimates 1e-6 relative, sandwich SE 1e-5 relative, loss weights 1e-6 absolute.
 import { strict as assert } from 'assert';
@@ -58,12 +59,20 @@ describe(`robust losses vs SciPy least_squares (${S.source}) and MASS::rlm (${R.
       close('scale', m.robust!.scale, S.stackloss.scale, 1e-9, S.source);
       compare(m, STACK_NAMES, S.stackloss[loss], S.source);
     }
-    // rows 1, 3, 4 and 21 are the outliers of the robust literature (Venables & Ripley, MASS §6.5): the Huber fit
-    // gives row 21 less than half weight and lists it
+    // rows 1, 3, 4 and 21 are the outliers of the robust literature (Venables & Ripley, MASS §6.5): Huber gives
+    // rows 4 and 21 weights 0.76 and 0.55, above the default cut (thresholds.lossWeight 0.25): nothing is listed
     const h = rep.models.find((x) => x.name === 'huber')!;
+    assert.deepEqual(h.robust!.downWeightedRows, []);
+    assert.equal(h.problems.find((q) => q.code === 'robust-down-weighted'), undefined);
+  });
+
+  it('stack loss, huber with thresholds.lossWeight 0.6: row 21 listed as down-weighted, with its weight', async () => {
+    const rep = await run('stackloss.csv', { ...stackSpec([{ name: 'huber', loss: 'huber' }]), thresholds: { lossWeight: 0.6 } });
+    const h = rep.models[0];
     assert.deepEqual(h.robust!.downWeightedRows, [21]);
+    assert.equal(h.robust!.weights.below, 0.6);
     const p = h.problems.find((q) => q.code === 'robust-down-weighted')!;
-    assert.ok(p && p.rows!.includes(21) && /row 21/.test(p.message), 'the down-weighted rows are a problem naming them');
+    assert.ok(p && p.severity === 'info' && p.rows!.includes(21) && /row 21 \(0\.55/.test(p.message), p?.message);
   });
 
   it('stack loss, Huber with the scale re-estimated every step equals MASS::rlm', async () => {

@@ -11,9 +11,6 @@ export const LOSSES: readonly LossName[] = ['squares', 'huber', 'soft_l1', 'cauc
  */
 export const TUNING: Record<Exclude<LossName, 'squares'>, number> = { huber: 1.345, soft_l1: 1.345, cauchy: 2.385 };
 
-/** Rows whose final weight u_i is below this are reported as down-weighted (less than half a well-fitting row's). */
-export const DOWN_WEIGHT = 0.5;
-
 /** 1/Φ⁻¹(3/4): makes the median absolute residual a consistent estimate of σ at normal errors. */
 export const MAD_FACTOR = 1.482602218505602;
 /** √(π/2): makes the mean absolute residual consistent for σ at normal errors (the fallback when the MAD is 0). */
@@ -78,6 +75,22 @@ export function robustScale(r: ArrayLike<number>, count: ArrayLike<number> | nul
   return m > 0 ? { s: m, from: 'mean-abs' } : { s: 0, from: 'exact' };
 }
 
+/**
+ * robustScale of the studentized least-squares residuals r_i/√(1−h_i): a least-squares residual has variance
+ * σ²(1−h_i), so the raw residuals understate σ when p is not small against n (rows with h_i > 1 − 1e-9 carry no
+ * information on σ and are left out).
+ */
+export function studentizedScale(r: ArrayLike<number>, h: ArrayLike<number>, count: ArrayLike<number> | null): { s: number; from: 'mad' | 'mean-abs' | 'exact' } {
+  const rs: number[] = [];
+  const cs: number[] = [];
+  for (let i = 0; i < r.length; i++) {
+    if (!(h[i] < 1 - 1e-9)) continue;
+    rs.push(r[i] / Math.sqrt(1 - Math.max(0, h[i])));
+    cs.push(count ? count[i] : 1);
+  }
+  return robustScale(rs, count ? cs : null);
+}
+
 export interface RobustOptions {
   loss: Exclude<LossName, 'squares'>;
   /** a number: the threshold t itself (SciPy's f_scale); 'mad': c × the MAD scale of the least-squares residuals, kept; 'mad-iterated': re-estimated from the current residuals every iteration (as MASS::rlm) */
@@ -87,6 +100,8 @@ export interface RobustOptions {
   /** frequency weights (data.count), null when none */
   count: Float64Array | null;
   y: Float64Array;
+  /** hat values of the least-squares fit: the "mad" scale is taken of r_i/√(1−h_i) (rows with h ≈ 1 left out) */
+  leverage?: Float64Array | null;
   maxIterations?: number;
 }
 
@@ -131,7 +146,7 @@ export function irls(ls: SolveResult, solveWeighted: (u: Float64Array, theta0: F
   let t: number;
   if (typeof o.scale === 'number') t = o.scale;
   else {
-    const rs = robustScale(r, o.count);
+    const rs = o.scale === 'mad' && o.leverage ? studentizedScale(r, o.leverage, o.count) : robustScale(r, o.count);
     scale = rs.s;
     scaleFrom = rs.from;
     t = c * rs.s;

@@ -58,4 +58,5 @@ export const THRESHOLD_KEYS = [
   'cooksFactor',
   'linearHint',
   'fTestAlpha',
+  'lossWeight',
 ] as const;

@@ -63,6 +63,7 @@ const THRESHOLD_RANGES: Record<(typeof THRESHOLD_KEYS)[number], { min: number; m
   cooksFactor: { min: 0, lowOpen: true, text: 'a positive number', example: 4 },
   linearHint: { min: 0, max: 1, text: 'a correlation between 0 and 1', example: 0.7 },
   fTestAlpha: { min: 0, max: 1, lowOpen: true, highOpen: true, text: 'a significance level strictly between 0 and 1', example: 0.05 },
+  lossWeight: { min: 0, max: 1, lowOpen: true, text: 'a loss weight above 0 and at most 1', example: 0.25 },
 };
 
 /** highest polynomial degree accepted (the model builder's limit) */

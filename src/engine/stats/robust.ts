@@ -2,12 +2,13 @@
 // covariance, Wald intervals, band and predictions from it, the loss weights per point and the down-weighted rows.
 import type { ModelReport, Problem, RobustReport } from '../report';
 import type { SolveResult } from '../solve/types';
-import { DOWN_WEIGHT, irls, sandwichCovariance, type LossName, type RobustResult } from '../solve/irls';
+import { irls, sandwichCovariance, type LossName, type RobustResult } from '../solve/irls';
 import type { ModelAnalysisInput } from './api';
 import { normalQuantile, normalSf, tQuantile, tTwoSidedP } from './distributions';
 import { computeBand, computeInverse, computePrediction, predictionPoint, type PredictionContext } from './predict';
 import { fmtMessage as fmt } from '../../shared/numberFormat';
 import { DEFAULTS } from '../spec/defaults';
+import { leverage } from './covariance';
 
 export interface RobustData {
   y: Float64Array;
@@ -31,12 +32,13 @@ export interface RobustFit {
  */
 export function robustFit(
   loss: Exclude<LossName, 'squares'>, lossScale: number | 'mad' | 'mad-iterated', d: RobustData, ls: SolveResult,
-  refit: (w: Float64Array, theta0: Float64Array) => SolveResult,
+  refit: (w: Float64Array, theta0: Float64Array) => SolveResult, fixed: boolean[],
 ): RobustFit {
   const prec = d.count ? d.precision : d.w;
   const sw = prec ? Float64Array.from(prec, Math.sqrt) : null;
   const combined = (u: Float64Array): Float64Array => Float64Array.from(u, (ui, i) => ui * (d.w ? d.w[i] : 1));
-  const rr = irls(ls, (u, theta0) => refit(combined(u), theta0), { loss, scale: lossScale, sw, count: d.count, y: d.y });
+  const h = lossScale === 'mad' ? leverage(ls.J, d.y.length, fixed.length, d.w, fixed.map((f) => !f)) : null;
+  const rr = irls(ls, (u, theta0) => refit(combined(u), theta0), { loss, scale: lossScale, sw, count: d.count, y: d.y, leverage: h });
   return { rr, w: combined(rr.u), result: rr.result };
 }
 
@@ -55,8 +57,9 @@ export function applyRobust(report: ModelReport, input: ModelAnalysisInput, fit:
   const base = ['models', input.index];
   const u = rr.u;
   const rows = Array.from(input.rows as ArrayLike<number>);
+  const cut = input.thresholds.lossWeight;
   const down: number[] = [];
-  for (let i = 0; i < n; i++) if (u[i] < DOWN_WEIGHT) down.push(i);
+  for (let i = 0; i < n; i++) if (u[i] < cut) down.push(i);
   const sorted = Array.from(u).sort((a, b) => a - b);
   const median = n === 0 ? NaN : n % 2 ? sorted[(n - 1) / 2] : (sorted[n / 2 - 1] + sorted[n / 2]) / 2;
   const robust: RobustReport = {
@@ -68,7 +71,7 @@ export function applyRobust(report: ModelReport, input: ModelAnalysisInput, fit:
     iterations: rr.iterations,
     converged: rr.converged,
     objective: rr.objective,
-    weights: { min: sorted.length ? sorted[0] : NaN, median, below: DOWN_WEIGHT, downWeighted: down.length },
+    weights: { min: sorted.length ? sorted[0] : NaN, median, below: cut, downWeighted: down.length },
     downWeightedRows: down.map((i) => rows[i]),
   };
   report.robust = robust;
@@ -168,7 +171,7 @@ export function applyRobust(report: ModelReport, input: ModelAnalysisInput, fit:
       code: 'robust-down-weighted',
       severity: 'info',
       message:
-        `${input.name}: the ${robust.loss} loss gave ${down.length === n ? 'every row' : `${down.length} of ${n} rows`} less than half the weight of a well-fitting point — ${shown.join(', ')}${down.length > 10 ? `, … (${down.length - 10} more)` : ''}. ` +
+        `${input.name}: the ${robust.loss} loss gave ${down.length === n ? 'every row' : `${down.length} of ${n} rows`} less than ${fmt(cut)} of the weight of a well-fitting point — ${shown.join(', ')}${down.length > 10 ? `, … (${down.length - 10} more)` : ''}. ` +
         `They stay in the fit with less influence; check them for recording or handling errors before excluding any (data.exclude with a reason).`,
       path: [...base, 'loss'],
       rows: down.slice(0, 100).map((i) => rows[i]),

@@ -12,6 +12,7 @@ export const DEFAULT_THRESHOLDS: Thresholds = Object.freeze({
   cooksFactor: 4,
   linearHint: 0.7,
   fTestAlpha: 0.05,
+  lossWeight: 0.25,
 }) as Thresholds;
 
 /** DEFAULT_THRESHOLDS with the spec's overrides applied (non-finite or missing overrides are ignored). */

@@ -74,6 +74,25 @@ describe('robust loss: edges', () => {
     assert.ok(r.models[1].robust && r.models[1].robust.threshold === 1e-3, 'the cauchy fit reports its given threshold');
   });
 
+  it('with data.groupBy each group gets its own robust fit, errors-in-x fit and variance function', async () => {
+    const pts = [0.02, 0.06, 0.11, 0.22, 0.56, 1.1].flatMap((c) => ['A', 'B'].flatMap((g) => [1, 2].map((k) => `${c},${(g === 'A' ? 200 : 150) * c / (0.06 + c) * (1 + 0.03 * Math.sin(17 * c * k))},${g}`)));
+    const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'cw-irls-'));
+    fs.writeFileSync(path.join(dir, 'd.csv'), 'x,y,g\n' + pts.join('\n') + '\n');
+    const run = async (data: object, model: object) => {
+      fs.writeFileSync(path.join(dir, 's.fitspec.json'), JSON.stringify({ data: { file: 'd.csv', x: 'x', y: 'y', groupBy: 'g', ...data }, models: [{ name: 'mm', builtin: 'michaelis_menten', ...model }] }));
+      const r = await runSpecFile(path.join(dir, 's.fitspec.json'), { workspaceRoot: dir });
+      if (isErrorReport(r)) assert.fail(r.error.message);
+      return (r as FitReport).models;
+    };
+    const rob = await run({}, { loss: 'cauchy' });
+    assert.deepEqual(rob.map((m) => [m.group, m.status, !!m.robust]), [['A', 'converged', true], ['B', 'converged', true]]);
+    assert.ok(rob[0].params.Vmax.value > 180 && rob[1].params.Vmax.value < 170);
+    const eiv = await run({ sigma: '2', sigmaX: '0.001' }, {});
+    assert.deepEqual(eiv.map((m) => [m.group, m.errorsInX?.method]), [['A', 'odr'], ['B', 'odr']]);
+    const vf = await run({ sigma: { power: 'estimate' } }, {});
+    assert.ok(vf.every((m) => m.variance && m.variance.estimated && m.variance.replicateGroups === 6 && m.variance.converged), JSON.stringify(vf.map((m) => m.variance)));
+  });
+
   it('least squares by name equals no loss at all (byte-identical report)', async () => {
     const pts: [number, number][] = [1, 2, 3, 4, 5, 6].map((x) => [x, 1 + 2 * x + 0.1 * Math.sin(x)]);
     const a = await fit(csvOf(pts), [{ name: 'l', polynomial: 1 }]);

@@ -459,7 +459,7 @@ export function fitreportSchema(): Schema {
       sigmaX: str('data.sigmaX as written.'),
       lambda: nnum("Deming's λ = σ_y²/σ_x²; null for odr."),
       objective: num('Σ w_y (y − f(x+δ))² + w_x δ² at the solution.'),
-      iterations: int('Solver iterations of the augmented problem.'),
+      iterations: int('Solver iterations over the parameters (the shifts δ eliminated).'),
       maxShift: num('Largest |δ|, in units of x.'),
     }, ['method', 'sigmaX', 'lambda', 'objective', 'iterations', 'maxShift']),
   }, ['name', 'kind', 'formula', 'linear', 'status', 'termination', 'iterations', 'paramOrder', 'params', 'covariance', 'correlation', 'stats', 'residualTests', 'band', 'predictions', 'inverse', 'problems']);

@@ -369,7 +369,7 @@ export interface ErrorsInXReport {
   lambda: number | null;
   /** Σ w_y (y − f(x+δ))² + w_x δ² at the solution (= stats.sse) */
   objective: number;
-  /** solver iterations of the augmented problem */
+  /** solver iterations over the parameters (the shifts δ eliminated) */
   iterations: number;
   /** the largest |δ|, the shift of an x value, in units of x */
   maxShift: number;

@@ -33,7 +33,6 @@ import { buildModel, fitModel, modelProblem } from './models';
 import { solveLinear, solveNonlinear } from './solve';
 import { applyRobust, robustFit } from './stats/robust';
 import { applyErrorsInX, errorsInXFit } from './stats/errorsInX';
-import { MAX_ODR_ROWS } from './solve/odr';
 import { MIN_REPLICATE_GROUPS, informativeGroups, replicateGroups, varianceFit } from './data/variance';
 import { analyzeModel, compareModels, dataCorrelation, resolveThresholds } from './stats';
 import type { AnalysisOptions, ModelAnalysisInput } from './stats/api';
@@ -266,8 +265,6 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
     const hidden: Fitted['hidden'] = [];
     const analysed: Fitted['analysed'] = [];
     const inGroup = group !== undefined ? ` in group '${group}'` : '';
-    if (sub.wx && sub.y.length > MAX_ODR_ROWS)
-      return errorReport(name, `data.sigmaX: an errors-in-x fit handles up to ${MAX_ODR_ROWS} rows${inGroup}, and ${spec.data.fileGiven} has ${sub.y.length} there — fit a subset (data.where), average replicates, or drop sigmaX`, { path: ['data', 'sigmaX'], location: locationOf(text, name, ['data', 'sigmaX']) });
     for (let i = 0; i < spec.models.length; i++) {
       const m = spec.models[i];
       progress(`fitting model ${i + 1} of ${spec.models.length}: ${m.name}${inGroup}`);

@@ -1,10 +1,7 @@
-// Errors in x: orthogonal distance regression, min Σ w_y,i (y_i − f(x_i+δ_i; β))² + w_x,i δ_i² over β and δ (Boggs & Rogers 1990, "Orthogonal distance regression", Contemp. Math. 112), solved by the existing Levenberg–Marquardt on the augmented residual vector; for a straight line with constant σ_x and σ_y the closed form of Deming regression (Deming 1943; Cornbleet & Gochman 1979, Clin. Chem. 25:432) starts it.
+// Errors in x: orthogonal distance regression, min Σ w_y,i (y_i − f(x_i+δ_i; β))² + w_x,i δ_i² over β and δ (Boggs & Rogers 1990, "Orthogonal distance regression", Contemp. Math. 112), solved by the existing Levenberg–Marquardt over β with every δ_i eliminated by its own 1-D solve (variable projection); for a straight line with constant σ_x and σ_y the closed form of Deming regression (Deming 1943; Cornbleet & Gochman 1979, Clin. Chem. 25:432) starts it.
 import type { CompiledFormula } from '../formula/types';
 import type { LsqProblem, SolveResult } from './types';
 import { solveNonlinear } from './lm';
-
-/** Above this many rows the augmented dense problem (2n × (p+n)) is too slow; the caller refuses with a message. */
-export const MAX_ODR_ROWS = 1000;
 
 /**
  * Deming regression of y on x with error-variance ratio λ = σ_y²/σ_x² (both constant): slope
@@ -56,7 +53,7 @@ export interface OdrInput {
 }
 
 export interface OdrResult {
-  /** the augmented solve (θ = [β, δ]) */
+  /** the solve over β (δ eliminated) */
   augmented: SolveResult;
   beta: Float64Array;
   delta: Float64Array;
@@ -89,70 +86,111 @@ function evalWithSlope(c: CompiledFormula, beta: ArrayLike<number>, xd: Float64A
   for (let i = 0; i < n; i++) dfdx[i] = (fh[i] - fl[i]) / (2 * h[i]);
 }
 
-/** Orthogonal distance fit from β0 (δ = 0); the augmented problem goes to solveNonlinear with its bounds. */
+/** φ_i(δ) = w_y (y − f(x+δ))² + w_x δ² of every point, and e = y − f, f′ at x + δ. */
+function pointTerms(o: OdrInput, beta: ArrayLike<number>, delta: Float64Array, xScale: number, xd: Float64Array, f: Float64Array, g: Float64Array, phi: Float64Array): void {
+  const n = o.y.length;
+  for (let i = 0; i < n; i++) xd[i] = o.x[i] + delta[i];
+  evalWithSlope(o.compiled, beta, xd, xScale, f, g);
+  for (let i = 0; i < n; i++) {
+    const e = o.y[i] - f[i];
+    phi[i] = o.wy[i] * e * e + o.wx[i] * delta[i] * delta[i];
+  }
+}
+
+/**
+ * For fixed β, the best shift of every point: min_δ w_y (y − f(x+δ))² + w_x δ², one-dimensional and separate per
+ * point, by Gauss–Newton steps δ += (w_y e f′ − w_x δ)/(w_y f′² + w_x) halved while φ_i does not decrease, from
+ * the δ given (updated in place). Stops when no step moves any δ by more than 1e-14 of the x scale (at most 100).
+ */
+export function bestShifts(o: OdrInput, beta: ArrayLike<number>, delta: Float64Array, xScale: number): void {
+  const n = o.y.length;
+  const xd = new Float64Array(n);
+  const f = new Float64Array(n);
+  const g = new Float64Array(n);
+  const phi = new Float64Array(n);
+  const step = new Float64Array(n);
+  const trial = new Float64Array(n);
+  const fT = new Float64Array(n);
+  const gT = new Float64Array(n);
+  const phiT = new Float64Array(n);
+  pointTerms(o, beta, delta, xScale, xd, f, g, phi);
+  for (let it = 0; it < 100; it++) {
+    let moved = 0;
+    for (let i = 0; i < n; i++) {
+      const e = o.y[i] - f[i];
+      const d = (o.wy[i] * e * g[i] - o.wx[i] * delta[i]) / (o.wy[i] * g[i] * g[i] + o.wx[i]);
+      step[i] = Number.isFinite(d) ? d : 0;
+    }
+    const active = new Uint8Array(n).fill(1);
+    for (let halving = 0; halving < 40; halving++) {
+      for (let i = 0; i < n; i++) trial[i] = delta[i] + step[i];
+      pointTerms(o, beta, trial, xScale, xd, fT, gT, phiT);
+      let pending = false;
+      for (let i = 0; i < n; i++) {
+        if (!active[i]) continue;
+        if (phiT[i] <= phi[i] || !(Math.abs(step[i]) > 1e-14 * xScale)) {
+          if (phiT[i] <= phi[i] && Number.isFinite(phiT[i])) {
+            moved = Math.max(moved, Math.abs(step[i]));
+            delta[i] = trial[i];
+            f[i] = fT[i];
+            g[i] = gT[i];
+            phi[i] = phiT[i];
+          }
+          active[i] = 0;
+          step[i] = 0;
+        } else {
+          step[i] /= 2;
+          pending = true;
+        }
+      }
+      if (!pending) break;
+    }
+    if (!(moved > 1e-14 * xScale)) break;
+  }
+}
+
+/**
+ * Orthogonal distance fit from β0: variable projection of the shifts δ (Golub & Pereyra 1973; the structure of
+ * Boggs, Byrd & Schnabel 1987) — the existing Levenberg–Marquardt over β alone on the n residuals
+ * r_i = ±√(w_y e_i² + w_x δ_i²) (sign of f − y) with every δ_i at its best for β (bestShifts), whose Jacobian is
+ * exactly √w_eff,i ∂f_i/∂β at x + δ (envelope theorem; w_eff = 1/(1/w_y + f′²/w_x)). Work O(n·p) per step.
+ */
 export function odrFit(o: OdrInput): OdrResult {
   const n = o.y.length;
   const p = o.beta0.length;
   let xScale = 0;
   for (let i = 0; i < n; i++) xScale = Math.max(xScale, Math.abs(o.x[i]));
   xScale = xScale > 0 ? 1e-3 * xScale : 1e-3;
-  const yAug = new Float64Array(2 * n);
-  yAug.set(o.y);
-  const wAug = new Float64Array(2 * n);
-  wAug.set(o.wy);
-  wAug.set(o.wx, n);
+  const delta = new Float64Array(n);
   const xd = new Float64Array(n);
   const fb = new Float64Array(n);
+  const g = new Float64Array(n);
   const Jb = new Float64Array(n * p);
-  const slope = new Float64Array(n);
+  const zero = new Float64Array(n);
   const problem: LsqProblem = {
-    n: 2 * n,
-    p: p + n,
-    y: yAug,
-    w: wAug,
-    model(theta, f, J) {
-      const beta = theta.subarray(0, p);
-      for (let i = 0; i < n; i++) xd[i] = o.x[i] + theta[p + i];
-      if (J) {
-        o.compiled.evaluateWithJacobian(beta, [xd], fb, Jb);
-        evalWithSlope(o.compiled, beta, xd, xScale, fb, slope);
-        J.fill(0);
-        const m = 2 * n;
-        for (let j = 0; j < p; j++) for (let i = 0; i < n; i++) J[j * m + i] = Jb[j * n + i];
-        for (let i = 0; i < n; i++) {
-          J[(p + i) * m + i] = slope[i];
-          J[(p + i) * m + n + i] = 1;
-        }
-      } else o.compiled.evaluate(beta, [xd], fb);
+    n,
+    p,
+    y: zero,
+    model(beta, r, J) {
+      bestShifts(o, beta, delta, xScale);
+      for (let i = 0; i < n; i++) xd[i] = o.x[i] + delta[i];
+      if (J) o.compiled.evaluateWithJacobian(beta, [xd], fb, Jb);
+      evalWithSlope(o.compiled, beta, xd, xScale, fb, g);
       for (let i = 0; i < n; i++) {
-        f[i] = fb[i];
-        f[n + i] = theta[p + i];
+        const e = o.y[i] - fb[i];
+        const mag = Math.sqrt(o.wy[i] * e * e + o.wx[i] * delta[i] * delta[i]);
+        r[i] = e > 0 ? -mag : mag;
+        if (J) {
+          const sEff = Math.sqrt(o.wy[i] / (1 + (o.wy[i] * g[i] * g[i]) / o.wx[i]));
+          for (let j = 0; j < p; j++) J[j * n + i] = sEff * Jb[j * n + i];
+        }
       }
     },
   };
-  const theta0 = new Float64Array(p + n);
-  theta0.set(o.beta0);
-  // δ starts at the best shift for β0 of the model linearised at x: δ_i = w_y e_i f′/(w_x + w_y f′²) (exact for a line)
-  {
-    const f0 = new Float64Array(n);
-    const g0 = new Float64Array(n);
-    evalWithSlope(o.compiled, o.beta0, Float64Array.from(o.x), xScale, f0, g0);
-    for (let i = 0; i < n; i++) {
-      const d = (o.wy[i] * (o.y[i] - f0[i]) * g0[i]) / (o.wx[i] + o.wy[i] * g0[i] * g0[i]);
-      theta0[p + i] = Number.isFinite(d) ? d : 0;
-    }
-  }
-  const lower = new Float64Array(p + n).fill(-Infinity);
-  const upper = new Float64Array(p + n).fill(Infinity);
-  const fixed = new Array<boolean>(p + n).fill(false);
-  for (let j = 0; j < p; j++) {
-    lower[j] = o.lower[j];
-    upper[j] = o.upper[j];
-    fixed[j] = !!o.fixed[j];
-  }
-  const aug = solveNonlinear(problem, { theta0, lower, upper, fixed, maxIterations: o.maxIterations, seconds: o.seconds, shouldStop: o.shouldStop });
-  const beta = Float64Array.from(aug.theta.subarray(0, p));
-  const delta = Float64Array.from(aug.theta.subarray(p));
+  const aug = solveNonlinear(problem, { theta0: o.beta0, lower: o.lower, upper: o.upper, fixed: o.fixed, maxIterations: o.maxIterations, seconds: o.seconds, shouldStop: o.shouldStop });
+  const beta = Float64Array.from(aug.theta);
+  delta.fill(0);
+  bestShifts(o, beta, delta, xScale);
   for (let i = 0; i < n; i++) xd[i] = o.x[i] + delta[i];
   const f = new Float64Array(n);
   const J = new Float64Array(n * p);

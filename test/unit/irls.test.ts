@@ -101,3 +101,43 @@ describe('robust loss: edges', () => {
     assert.equal(a.models[0].robust, undefined);
   });
 });
+
+describe('errors in x: edges', () => {
+  it('data exactly on a line: every shift 0, the line exact, no division by zero', async () => {
+    const r = await fit(csvOf([1, 2, 3, 4, 5, 6].map((x) => [x, 2 + 3 * x])), [{ name: 'l', builtin: 'linear' }, { name: 'e', formula: 'a*exp(b*x)', params: { a: { start: 5 }, b: { start: 0.2 } } }], { sigma: '1', sigmaX: '0.5' });
+    const m = r.models[0];
+    assert.equal(m.status, 'converged');
+    assert.equal(m.errorsInX!.method, 'deming');
+    assert.ok(Math.abs(m.params.slope.value - 3) < 1e-12 && Math.abs(m.params.intercept.value - 2) < 1e-11, JSON.stringify(m.params));
+    assert.ok(m.errorsInX!.maxShift < 1e-12 && m.errorsInX!.objective < 1e-20);
+    assert.ok(r.models[1].errorsInX, 'a nonlinear model on the same data runs too');
+  });
+
+  it('a huge σx (x nearly unknown) and a tiny one (x exact) bracket the two ordinary regressions', async () => {
+    const pts: [number, number][] = [1, 2, 3, 4, 5, 6, 7, 8].map((x) => [x, 1 + 0.5 * x + 0.4 * Math.sin(3 * x)]);
+    const ls = (await fit(csvOf(pts), [{ name: 'l', builtin: 'linear' }])).models[0].params.slope.value;
+    const tiny = (await fit(csvOf(pts), [{ name: 'l', builtin: 'linear' }], { sigma: '1', sigmaX: '1e-6' })).models[0];
+    assert.ok(Math.abs(tiny.params.slope.value - ls) < 1e-9, `σx → 0 gives y-on-x least squares: ${tiny.params.slope.value} vs ${ls}`);
+    const big = (await fit(csvOf(pts), [{ name: 'l', builtin: 'linear' }], { sigma: '1e-3', sigmaX: '10' })).models[0];
+    assert.equal(big.status, 'converged');
+    assert.ok(big.params.slope.value > ls, 'σx ≫ σy tends to the x-on-y regression, steeper than y-on-x');
+  });
+});
+
+describe('variance function: edges', () => {
+  it('a fitted value of 0 gets a finite weight (|μ| floored), and the fit stays finite', async () => {
+    const pts: [number, number][] = [0, 1, 2, 3, 4, 5, 6].flatMap((x) => [[x, x - 3 + 0.05 * Math.sin(5 * x)], [x, x - 3 - 0.04 * Math.cos(3 * x)]] as [number, number][]);
+    const r = await fit(csvOf(pts), [{ name: 'l', builtin: 'linear' }], { sigma: { power: 1 } });
+    const m = r.models[0];
+    assert.ok(m.points!.weight!.every((w) => Number.isFinite(w) && w > 0), 'finite positive weights');
+    assert.ok(Number.isFinite(m.params.slope.value) && Math.abs(m.params.slope.value - 1) < 0.05, String(m.params.slope.value));
+    assert.equal(m.variance!.theta, 1);
+  });
+
+  it('θ = 0 given is ordinary least squares', async () => {
+    const pts: [number, number][] = [1, 2, 3, 4, 5].flatMap((x) => [[x, 2 * x + 0.1 * Math.sin(x)], [x, 2 * x - 0.1 * Math.cos(x)]] as [number, number][]);
+    const a = (await fit(csvOf(pts), [{ name: 'l', builtin: 'linear' }])).models[0];
+    const b = (await fit(csvOf(pts), [{ name: 'l', builtin: 'linear' }], { sigma: { power: 0 } })).models[0];
+    assert.ok(Math.abs(a.params.slope.value - b.params.slope.value) < 1e-12 && Math.abs((a.params.slope.se as number) - (b.params.slope.se as number)) < 1e-12);
+  });
+});

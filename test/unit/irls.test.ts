@@ -7,7 +7,8 @@ import * as os from 'os';
 import * as path from 'path';
 import { runSpecFile } from '../../src/engine/run';
 import { isErrorReport, type FitReport } from '../../src/engine/report';
-import { rho, robustScale, weightedMedianAbs, choleskyInverse } from '../../src/engine/solve/irls';
+import { rho, robustScale, weightedMedianAbs, choleskyInverse, irls, sandwichCovariance } from '../../src/engine/solve/irls';
+import { varianceFit } from '../../src/engine/data/variance';
 
 async function fit(csv: string, models: object[], data: object = {}): Promise<FitReport> {
   const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'cw-irls-'));
@@ -139,5 +140,54 @@ describe('variance function: edges', () => {
     const a = (await fit(csvOf(pts), [{ name: 'l', builtin: 'linear' }])).models[0];
     const b = (await fit(csvOf(pts), [{ name: 'l', builtin: 'linear' }], { sigma: { power: 0 } })).models[0];
     assert.ok(Math.abs(a.params.slope.value - b.params.slope.value) < 1e-12 && Math.abs((a.params.slope.se as number) - (b.params.slope.se as number)) < 1e-12);
+  });
+});
+
+describe('robust and variance fits: the cases behind the warnings', () => {
+  const line = (x: number[], y: number[]) => {
+    // a straight-line LsqProblem solved exactly, as the refit callback of irls/varianceFit
+    return (w: Float64Array): import('../../src/engine/solve/types').SolveResult => {
+      let sw = 0, sx = 0, sy = 0, sxx = 0, sxy = 0;
+      for (let i = 0; i < x.length; i++) { sw += w[i]; sx += w[i] * x[i]; sy += w[i] * y[i]; sxx += w[i] * x[i] * x[i]; sxy += w[i] * x[i] * y[i]; }
+      const b = (sw * sxy - sx * sy) / (sw * sxx - sx * sx);
+      const a = (sy - b * sx) / sw;
+      const f = Float64Array.from(x, (xi) => a + b * xi);
+      const J = new Float64Array(2 * x.length);
+      x.forEach((xi, i) => { J[i] = 1; J[x.length + i] = xi; });
+      return { theta: Float64Array.from([a, b]), termination: 'exact', converged: true, iterations: 1, evaluations: 1, sse: 0, f, J, rank: 2, unidentifiable: [], atBound: [null, null], message: '' };
+    };
+  };
+  const x = [1, 2, 3, 4, 5, 6, 7, 8];
+  const y = [2.1, 3.9, 6.2, 7.8, 30, 12.1, 13.8, 16.2];
+
+  it('irls stopped after one refit reports converged false (robust-no-convergence)', () => {
+    const refit = line(x, y);
+    const ls = refit(new Float64Array(8).fill(1));
+    const rr = irls(ls, (u) => refit(u), { loss: 'cauchy', scale: 0.01, sw: null, count: null, y: Float64Array.from(y), maxIterations: 1 });
+    assert.equal(rr.converged, false);
+    const done = irls(ls, (u) => refit(u), { loss: 'huber', scale: 'mad', sw: null, count: null, y: Float64Array.from(y) });
+    assert.equal(done.converged, true);
+    assert.ok(done.u[4] < 0.3 && done.u.every((u, i) => i === 4 || u > 0.5), `the wild row alone is down-weighted: ${Array.from(done.u)}`);
+  });
+
+  it('the sandwich is null when Σψ′aaᵀ is not positive definite (robust-no-covariance)', () => {
+    const J = new Float64Array(16);
+    x.forEach((xi, i) => { J[i] = 1; J[8 + i] = xi; });
+    const psi = new Float64Array(8).fill(0.1);
+    assert.equal(sandwichCovariance(J, 8, 2, null, null, [true, true], psi, new Float64Array(8).fill(-0.2)), null);
+    const ok = sandwichCovariance(J, 8, 2, null, null, [true, true], psi, new Float64Array(8).fill(1))!;
+    assert.ok(ok[0] > 0 && ok[3] > 0);
+  });
+
+  it('varianceFit with too few refits reports converged false (variance-no-convergence)', () => {
+    const ys = x.flatMap((xi) => [2 * xi * (1 + 0.1 * Math.sin(xi)), 2 * xi * (1 - 0.1 * Math.cos(xi))]);
+    const xs = x.flatMap((xi) => [xi, xi]);
+    const refit = line(xs, ys);
+    const ls = refit(new Float64Array(xs.length).fill(1));
+    const X = [Float64Array.from(xs)];
+    const vf = varianceFit('estimate', ls, X, Float64Array.from(ys), (w) => refit(w));
+    assert.ok(vf.converged && vf.groups === 8 && vf.theta > 0.5, JSON.stringify({ ...vf, result: undefined, w: undefined }));
+    const stopped = varianceFit('estimate', ls, X, Float64Array.from(ys), (w) => refit(w), 1);
+    assert.equal(stopped.converged, false);
   });
 });

@@ -129,6 +129,7 @@ export interface VarianceFit {
  */
 export function varianceFit(
   power: number | 'estimate', ls: SolveResult, X: Float64Array[], y: Float64Array, refit: (w: Float64Array, theta0: Float64Array) => SolveResult,
+  maxIterations = MAX_VARIANCE_ITERATIONS,
 ): VarianceFit {
   const g = replicateGroups(X, y.length);
   const estimated = power === 'estimate';
@@ -137,7 +138,7 @@ export function varianceFit(
   let w = powerWeights(res.f, theta);
   let iterations = 0;
   let converged = false;
-  while (iterations < MAX_VARIANCE_ITERATIONS) {
+  while (iterations < maxIterations) {
     iterations++;
     const next = refit(w, Float64Array.from(res.theta));
     let dMu = 0;

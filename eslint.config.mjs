@@ -87,6 +87,26 @@ export default tseslint.config(
     },
   },
   {
+    // every Chart.js call lives in webview/charts.ts, with options per chart (never the global Chart.defaults)
+    files: ['webview/**/*.ts'],
+    ignores: ['webview/charts.ts'],
+    rules: {
+      'no-restricted-imports': ['error', {
+        paths: [vscode, ...nodeBuiltinRule, { name: 'chart.js', message: 'Chart.js is used in webview/charts.ts only.' }],
+        patterns: [
+          { group: ['**/engine/solve', '**/engine/solve/**'], message: 'The webview draws a FitReport; it never imports the solver.' },
+          { group: ['**/host', '**/host/**'], message: 'The webview talks to the host through src/protocol messages only.' },
+        ],
+      }],
+    },
+  },
+  {
+    files: ['webview/charts.ts'],
+    rules: {
+      'no-restricted-syntax': ['error', { selector: "MemberExpression[object.name='Chart'][property.name='defaults']", message: 'Pass options per chart; a global Chart.defaults write leaks into every chart on the page.' }],
+    },
+  },
+  {
     // src/shared: code on both sides of a process boundary, so neither vscode, nor Node, nor the DOM
     files: ['src/shared/**/*.ts'],
     rules: {

@@ -261,10 +261,29 @@ export function fitspecSchema(): Schema {
         description: 'Derived quantities: name -> expression over a model\'s parameters in the formula language, e.g. { "doubling": "log(2)/r" }. Reported (value, delta-method SE, Wald interval) for every model, and group, that has all the parameters it uses.',
         additionalProperties: { type: 'string', minLength: 1 },
       },
+      plot: plotSchema(),
     },
     required: ['data', 'models'],
     additionalProperties: false,
   };
+}
+
+/** The spec's plot block (also echoed in the report): drawing choices only, never a result. */
+function plotSchema(): Schema {
+  const axis = (name: 'x' | 'y', example: string): Schema => obj(`The ${name} axis of the figure.`, {
+    scale: {
+      enum: ['auto', 'linear', 'log'],
+      description: `"auto": a log axis when every ${name} value is positive and they span more than two decades (ratio above 100), else linear. The panel's log toggle still changes the view.`,
+      default: 'auto',
+    },
+    label: str(`Axis title (default: the column or expression bound to ${name}).`, { minLength: 1 }),
+    unit: str(`Unit shown in the axis title in parentheses, e.g. "${example}".`, { minLength: 1 }),
+  });
+  return obj('How the panel and the HTML report draw the figure. Changes no number in the results.', {
+    x: axis('x', 'ng/mL'),
+    y: axis('y', 'AU'),
+    bands: arr('Bands drawn around the selected model\'s curve (default both; [] draws none).', { enum: ['confidence', 'prediction'] }, { uniqueItems: true }),
+  });
 }
 
 // ---------------------------------------------------------------- FitReport / ErrorReport
@@ -560,6 +579,7 @@ export function fitreportSchema(): Schema {
     version: { const: 1, description: 'Report format version.' },
     spec: str('Spec file name as given.'),
     title: str('Spec title.'),
+    plot: plotSchema(),
     meta: obj('Provenance.', {
       engine: str('Engine name and version.'),
       specHash: str('sha256 of the spec text.'),

@@ -105,6 +105,26 @@ export interface FitSpec {
   thresholds?: Partial<Thresholds>;
   /** name -> expression over a model's parameters (e.g. "log(2)/r"), reported for every model that has them */
   derived?: Record<string, string>;
+  /** how the panel and the HTML report draw the figure: axis scales, titles with units, which bands */
+  plot?: PlotSpec;
+}
+
+/** One axis of the figure (`plot.x`, `plot.y`). */
+export interface PlotAxisSpec {
+  /** "auto" (default): log when every value is positive and they span more than two decades; else linear */
+  scale?: 'auto' | 'linear' | 'log';
+  /** axis title (default: the column or expression the spec bound) */
+  label?: string;
+  /** unit shown in the axis title, e.g. "ng/mL" */
+  unit?: string;
+}
+
+/** The `plot` block of a spec. It changes how the figure is drawn, never a number in the results. */
+export interface PlotSpec {
+  x?: PlotAxisSpec;
+  y?: PlotAxisSpec;
+  /** bands drawn around the selected model's curve (default both; [] draws none) */
+  bands?: ('confidence' | 'prediction')[];
 }
 
 /** A derived quantity of one fitted model (and group): value, delta-method SE and Wald interval. */
@@ -527,6 +547,8 @@ export interface FitReport {
   /** spec file name as given (relative path) */
   spec: string;
   title?: string;
+  /** the spec's plot block as checked, only when the spec has one */
+  plot?: PlotSpec;
   meta: ReportMeta;
   data: DataReport;
   /** with data.groupBy: the groups, in order of first appearance in the file */

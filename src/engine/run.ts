@@ -507,6 +507,7 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
     version: 1,
     spec: name,
     ...(spec.title !== undefined ? { title: spec.title } : {}),
+    ...(spec.plot !== undefined ? { plot: spec.plot } : {}),
     meta: { engine: ENGINE_VERSION, specHash, dataHash: table.hash, seed: RUN_SEED },
     data: dataReport(spec, table, prepared, correlation),
     ...(groups ? { groups } : {}),
@@ -727,7 +728,7 @@ export interface SerializeOptions {
 }
 
 /** Top-level key order of a FitReport (others follow in insertion order). */
-const REPORT_KEYS = ['version', 'spec', 'title', 'error', 'meta', 'data', 'groups', 'models', 'comparison', 'best', 'problems', 'expect', 'derived', 'confidence'];
+const REPORT_KEYS = ['version', 'spec', 'title', 'plot', 'error', 'meta', 'data', 'groups', 'models', 'comparison', 'best', 'problems', 'expect', 'derived', 'confidence'];
 
 function normalise(v: unknown): unknown {
   if (typeof v === 'number') return Number.isFinite(v) ? (Object.is(v, -0) ? 0 : v) : null;

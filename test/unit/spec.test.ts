@@ -487,3 +487,35 @@ describe('spec: round trip', () => {
     assert.deepStrictEqual(again.spec, first.spec);
   });
 });
+
+describe('spec: the plot block (drawing choices only)', () => {
+  const M = '{ "name": "line", "polynomial": 1 }';
+  it('keeps scales, labels, units and bands as written', () => {
+    const r = check(spec(M, '"plot": { "x": { "scale": "log", "label": "concentration", "unit": "ng/mL" }, "y": { "scale": "linear" }, "bands": ["confidence"] }'));
+    assert.deepStrictEqual(r.problems, []);
+    assert.deepStrictEqual(r.spec!.plot, { x: { scale: 'log', label: 'concentration', unit: 'ng/mL' }, y: { scale: 'linear' }, bands: ['confidence'] });
+  });
+
+  it('accepts an empty band list and leaves plot out when the spec has none', () => {
+    assert.deepStrictEqual(check(spec(M, '"plot": { "bands": [] }')).spec!.plot, { bands: [] });
+    assert.strictEqual(check(spec(M)).spec!.plot, undefined);
+  });
+
+  it('names the place and the allowed values of a wrong scale, an unknown key, a bad band and a duplicate', () => {
+    const text = spec(M, '"plot": { "x": { "scale": "logarithmic", "units": "mM" }, "bands": ["prediction", "prediciton", "prediction"] }');
+    const r = check(text);
+    assert.strictEqual(r.spec, null);
+    const scale = r.problems.find(p => p.path.join('.') === 'plot.x.scale')!;
+    assert.match(scale.message, /one of "auto", "linear", "log", not .*logarithmic/);
+    assert.strictEqual(scale.location?.line, lineColOf(text, '"logarithmic"').line);
+    assert.ok(r.problems.some(p => p.code === 'spec-unknown-key' && p.path.join('.') === 'plot.x.units' && /unit/.test(p.message)), JSON.stringify(r.problems));
+    const band = r.problems.find(p => p.path.join('.') === 'plot.bands.1')!;
+    assert.match(band.message, /"confidence" or "prediction".*prediction/);
+    assert.ok(r.problems.some(p => p.path.join('.') === 'plot.bands.2' && /twice/.test(p.message)));
+  });
+
+  it('rejects a plot that is not an object, and an axis that is not one', () => {
+    assert.match(one(check(spec(M, '"plot": "log"')).problems, 'spec-type').message, /plot must be an object/);
+    assert.match(one(check(spec(M, '"plot": { "y": true }')).problems, 'spec-type').message, /plot\.y must be an object/);
+  });
+});

@@ -2,7 +2,7 @@
 // normalises it: defaults filled, data.x always an object, file paths absolute.
 import * as path from 'path';
 import { formulaIdentifiers, formulaParameters, parseFormula, suggest, FormulaError, CONSTANTS, FUNCTIONS } from '../formula';
-import type { ExcludeSpec, VarianceSpec, FileLocation, JsonPath, ParamSpec, Problem, ProblemCode, Severity } from '../report';
+import type { ExcludeSpec, VarianceSpec, FileLocation, JsonPath, ParamSpec, PlotAxisSpec, PlotSpec, Problem, ProblemCode, Severity } from '../report';
 import { BUILTIN_IDS, BUILTIN_PARAMS, isBuiltinId, polynomialParams } from './catalogue';
 import { DEFAULTS, THRESHOLD_KEYS } from './defaults';
 import { LIMITS } from './limits';
@@ -41,7 +41,7 @@ export interface ValidateResult {
   data?: { file: string; fileGiven: string; delimiter: NormalizedData['delimiter']; decimal: NormalizedData['decimal'] };
 }
 
-const TOP_KEYS = ['$schema', 'title', 'data', 'models', 'confidence', 'predict', 'solveFor', 'predictWeight', 'output', 'outputPoints', 'expect', 'thresholds', 'derived'];
+const TOP_KEYS = ['$schema', 'title', 'data', 'models', 'confidence', 'predict', 'solveFor', 'predictWeight', 'output', 'outputPoints', 'expect', 'thresholds', 'derived', 'plot'];
 const DATA_KEYS = ['file', 'x', 'y', 'sigma', 'sigmaX', 'weight', 'count', 'sigmaMode', 'where', 'exclude', 'delimiter', 'decimal', 'badRows', 'groupBy'];
 const MODEL_KEYS = ['name', 'builtin', 'polynomial', 'formula', 'params', 'solver', 'shared', 'loss', 'lossScale'];
 const PARAM_KEYS = ['start', 'min', 'max', 'fixed'];
@@ -456,6 +456,9 @@ export function validateSpec(raw: unknown, ctx: ValidateContext): ValidateResult
     }
   }
 
+  // ------------------------------------------------------------------ plot
+  const plot = raw.plot === undefined ? undefined : checkPlot(c, raw.plot);
+
   // ------------------------------------------------------------------ derived
   const derived: Record<string, string> = {};
   if (raw.derived !== undefined) {
@@ -520,7 +523,56 @@ export function validateSpec(raw: unknown, ctx: ValidateContext): ValidateResult
   }
   if (outputPoints !== undefined) spec.outputPoints = outputPoints;
   if (Object.keys(derived).length > 0) spec.derived = derived;
+  if (plot) spec.plot = plot;
   return { spec, problems: c.problems, ...(dataFile ? { data: dataFile } : {}) };
+}
+
+const PLOT_KEYS = ['x', 'y', 'bands'] as const;
+const PLOT_AXIS_KEYS = ['scale', 'label', 'unit'] as const;
+const PLOT_BANDS = ['confidence', 'prediction'] as const;
+
+/** The plot block: axis scales, titles and units, which bands. Only drawing choices; no result depends on it. */
+function checkPlot(c: Checker, raw: unknown): PlotSpec | undefined {
+  const P: JsonPath = ['plot'];
+  if (!isObj(raw)) {
+    c.type(P, 'an object, e.g. { "x": { "scale": "log", "label": "concentration", "unit": "ng/mL" }, "bands": ["confidence"] }', raw);
+    return undefined;
+  }
+  c.keys(raw, PLOT_KEYS, P, 'plot');
+  const out: PlotSpec = {};
+  for (const axis of ['x', 'y'] as const) {
+    const a = raw[axis];
+    if (a === undefined) continue;
+    const q: JsonPath = ['plot', axis];
+    if (!isObj(a)) {
+      c.type(q, `an object, e.g. { "scale": "log", "label": "${axis === 'x' ? 'concentration' : 'signal'}", "unit": "${axis === 'x' ? 'ng/mL' : 'AU'}" }`, a);
+      continue;
+    }
+    c.keys(a, PLOT_AXIS_KEYS, q, `plot.${axis}`);
+    const spec: PlotAxisSpec = {};
+    const scale = c.oneOf(a, 'scale', q, ['auto', 'linear', 'log'] as const);
+    if (scale !== undefined) spec.scale = scale;
+    const label = c.str(a, 'label', q, { nonEmpty: true });
+    if (label !== undefined) spec.label = label;
+    const unit = c.str(a, 'unit', q, { nonEmpty: true });
+    if (unit !== undefined) spec.unit = unit;
+    out[axis] = spec;
+  }
+  if (raw.bands !== undefined) {
+    const q: JsonPath = ['plot', 'bands'];
+    if (!Array.isArray(raw.bands)) c.type(q, 'a list of "confidence" and "prediction", e.g. ["confidence"] ([] draws no band)', raw.bands);
+    else {
+      const bands: ('confidence' | 'prediction')[] = [];
+      raw.bands.forEach((b, i) => {
+        if (typeof b === 'string' && (PLOT_BANDS as readonly string[]).includes(b)) {
+          if (bands.includes(b as 'confidence' | 'prediction')) c.add('spec-type', [...q, i], `plot.bands lists "${b}" twice; give each band once`);
+          else bands.push(b as 'confidence' | 'prediction');
+        } else c.add('spec-type', [...q, i], `plot.bands[${i}] must be "confidence" or "prediction", not ${typeName(b)}${typeof b === 'string' ? didYouMean(b, PLOT_BANDS) : ''}`);
+      });
+      out.bands = bands;
+    }
+  }
+  return out;
 }
 
 function exampleObj(variables: string[]): string {

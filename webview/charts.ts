@@ -13,7 +13,7 @@ import {
 } from 'chart.js';
 import type { ChartConfiguration, ChartDataset, Plugin, Scale, TooltipItem, TooltipModel } from 'chart.js';
 import type { FitReport, ModelReport, PointsReport } from '../src/engine/report';
-import { fmtInt, fmtNum } from '../src/shared/numberFormat';
+import { fmtInt, fmtNum, fmtR2 } from '../src/shared/numberFormat';
 import { decimateLine, decimateScatter } from './decimate';
 import { boxSwatch, h, setChildren, type Child } from './dom';
 import { pointsOf, type ViewContext, type ViewState } from './state';
@@ -36,8 +36,40 @@ function positiveAny(a: ArrayLike<number> | undefined): boolean {
   return false;
 }
 
+/** "concentration" + "ng/mL" -> "concentration (ng/mL)" */
+export function withUnit(label: string, unit: string | undefined): string {
+  return unit ? `${label} (${unit})` : label;
+}
+
+/**
+ * The axis scale when the user has not chosen: the spec's plot block, else a log axis when every value is positive
+ * and they span more than two decades (largest / smallest > 100: dose–response, dilution series, decays; common
+ * practice), else linear. `why` says which rule decided, for the toggle's tooltip.
+ */
+export function axisScale(spec: 'auto' | 'linear' | 'log' | undefined, a: ArrayLike<number> | undefined, b: ArrayLike<number> | undefined): { log: boolean; why: string } {
+  if (spec === 'log') return { log: true, why: 'log in the spec' };
+  if (spec === 'linear') return { log: false, why: 'linear in the spec' };
+  let lo = Infinity, hi = -Infinity, n = 0;
+  for (const arr of [a, b]) {
+    if (!arr) continue;
+    for (let i = 0; i < arr.length; i++) {
+      const v = arr[i]!;
+      if (!Number.isFinite(v)) continue;
+      if (v <= 0) return { log: false, why: 'automatic: values at or below zero' };
+      if (v < lo) lo = v;
+      if (v > hi) hi = v;
+      n++;
+    }
+  }
+  if (n < 2) return { log: false, why: 'automatic' };
+  const decades = Math.log10(hi / lo);
+  return decades > 2 ? { log: true, why: `automatic: the values span ${fmtNum(decades, 2)} decades` } : { log: false, why: `automatic: the values span ${fmtNum(decades, 2)} decades` };
+}
+
 /** The elements the plots live in (built here, placed by the view). */
 export interface ChartElements {
+  /** the plot in words, for screen readers (visually hidden) */
+  desc: HTMLElement;
   legend: HTMLElement; mainBox: HTMLElement; residBox: HTMLElement; residHead: HTMLElement;
   mainCanvas: HTMLCanvasElement; residCanvas: HTMLCanvasElement; plotNote: HTMLElement; toggles: HTMLElement;
   logX: HTMLButtonElement; logY: HTMLButtonElement; residKind: HTMLButtonElement;
@@ -45,25 +77,30 @@ export interface ChartElements {
 
 /** The two plots of one view. `onState` receives the toggles' changes (log x, log y, residual kind). */
 export class ChartsView {
+  private static count = 0;
   readonly el: ChartElements;
   private mainChart: Chart<'scatter', Pt[]> | null = null;
   private residChart: Chart<'scatter', Pt[]> | null = null;
   private mainKinds: Kind[] = [];
   private residKinds: Kind[] = [];
   private r: FitReport | null = null;
+  /** the log axes as drawn (the user's choice, the spec's, or automatic); the toggles flip these */
+  private effective = { logX: false, logY: false };
 
   constructor(private readonly ctx: ViewContext, st: () => ViewState, onState: (patch: Partial<ViewState>) => void) {
     const logX = h('button', { class: 'cw-toggle', type: 'button', 'aria-pressed': 'false', title: 'Logarithmic x axis' }, 'log x');
     const logY = h('button', { class: 'cw-toggle', type: 'button', 'aria-pressed': 'false', title: 'Logarithmic y axis' }, 'log y');
     const residKind = h('button', { class: 'cw-toggle', type: 'button', 'aria-pressed': 'false', title: 'Show standardized residuals' }, 'standardized');
-    logX.addEventListener('click', () => onState({ logX: !st().logX }));
-    logY.addEventListener('click', () => onState({ logY: !st().logY }));
+    logX.addEventListener('click', () => onState({ logX: !this.effective.logX }));
+    logY.addEventListener('click', () => onState({ logY: !this.effective.logY }));
     residKind.addEventListener('click', () => onState({ residual: st().residual === 'raw' ? 'standardized' : 'raw' }));
-    const mainCanvas = h('canvas', { class: 'cw-canvas', role: 'img', 'aria-label': 'Data and fitted curves' });
+    const desc = h('p', { class: 'cw-sr', id: `cw-plot-desc-${++ChartsView.count}` });
+    const mainCanvas = h('canvas', { class: 'cw-canvas', role: 'img', 'aria-label': 'Data and fitted curves', 'aria-describedby': desc.id });
     const residCanvas = h('canvas', { class: 'cw-canvas', role: 'img', 'aria-label': 'Residuals of the selected model' });
     this.el = {
       legend: h('div', { class: 'cw-legend' }),
-      mainBox: h('div', { class: 'cw-chart cw-chart-main' }, mainCanvas),
+      mainBox: h('div', { class: 'cw-chart cw-chart-main' }, mainCanvas, desc),
+      desc,
       residBox: h('div', { class: 'cw-chart cw-chart-resid' }, residCanvas),
       residHead: h('div', { class: 'cw-resid-head' }, h('span', { class: 'cw-axis-title' }, 'Residuals'), residKind),
       mainCanvas, residCanvas,
@@ -71,6 +108,21 @@ export class ChartsView {
       toggles: h('div', { class: 'cw-toggles' }, logX, logY),
       logX, logY, residKind,
     };
+  }
+
+  /** The plot described in words (the canvas's aria-describedby): what is drawn, each model's R², the best. */
+  private describe(r: FitReport, sel: ModelReport | undefined, a: { xLabel: string; yLabel: string; logX: boolean; logY: boolean; n: number; shown: number }): void {
+    const fits = r.models.filter(m => m.status === 'converged');
+    const parts = [
+      `Plot of ${a.yLabel} against ${a.xLabel}${a.logX || a.logY ? ` (log ${a.logX && a.logY ? 'x and y axes' : a.logX ? 'x axis' : 'y axis'})` : ''}:`,
+      a.n ? `${fmtInt(a.n)} data points${a.shown < a.n ? ` (${fmtInt(a.shown)} drawn)` : ''},` : 'no data points stored,',
+      fits.length ? `${fits.length} fitted ${fits.length === 1 ? 'curve' : 'curves'}: ${fits.map(m => `${m.name} (R\u00b2 ${fmtR2(m.stats.r2)}, n ${fmtInt(m.stats.n)})`).join(', ')}.` : 'no model converged.',
+      r.best ? `Best model: ${r.best}.` : '',
+      sel ? `Bands and residuals are of ${sel.name}.` : '',
+    ];
+    const failed = r.models.length - fits.length;
+    if (failed) parts.push(`${failed} ${failed === 1 ? 'model' : 'models'} did not converge.`);
+    this.el.desc.textContent = parts.filter(Boolean).join(' ');
   }
 
   /** The canvases to compose an image from: the main plot, and the residual plot unless it is hidden. */
@@ -98,16 +150,20 @@ export class ChartsView {
     const xVar = xVariable(sel, pts) ?? 'x';
     const xs: ArrayLike<number> | undefined = multi ? sel?.points?.fitted : pts?.x[xVar];
 
-    // Log toggles are offered only when the data have positive values on that axis.
+    // Log toggles are offered only when the data have positive values on that axis. Which scale: the user's toggle
+    // (kept per spec in the panel state), else the spec's plot block, else automatic (axisScale).
     const canLogX = positiveAny(xs) || positiveAny(sel?.band?.x);
     const canLogY = positiveAny(pts?.y) || positiveAny(sel?.band?.fit);
-    const logX = st.logX && canLogX, logY = st.logY && canLogY;
+    const autoX = multi ? axisScale(r.plot?.x?.scale, xs, undefined) : axisScale(r.plot?.x?.scale, xs, sel?.band?.x);
+    const autoY = axisScale(r.plot?.y?.scale, pts?.y, undefined);
+    const logX = (st.logX ?? autoX.log) && canLogX, logY = (st.logY ?? autoY.log) && canLogY;
+    this.effective = { logX, logY };
     el.logX.disabled = !canLogX;
     el.logY.disabled = !canLogY;
     el.logX.setAttribute('aria-pressed', String(logX));
     el.logY.setAttribute('aria-pressed', String(logY));
-    el.logX.title = canLogX ? 'Logarithmic x axis' : 'No positive x values: a log axis is not possible';
-    el.logY.title = canLogY ? 'Logarithmic y axis' : 'No positive y values: a log axis is not possible';
+    el.logX.title = canLogX ? `Logarithmic x axis${st.logX === undefined ? ` (${autoX.why})` : ''}` : 'No positive x values: a log axis is not possible';
+    el.logY.title = canLogY ? `Logarithmic y axis${st.logY === undefined ? ` (${autoY.why})` : ''}` : 'No positive y values: a log axis is not possible';
 
     const width = Math.max(200, el.mainBox.clientWidth || 800);
     const height = Math.max(120, el.mainBox.clientHeight || 340);
@@ -117,6 +173,8 @@ export class ChartsView {
     const okX = (v: number) => Number.isFinite(v) && (!logX || v > 0);
     const yv = (v: number) => (Number.isFinite(v) && (!logY || v > 0) ? v : NaN);
     const band = !multi && sel?.status === 'converged' ? sel.band : null;
+    const bands = r.plot?.bands ?? ['confidence', 'prediction'];
+    const showPi = bands.includes('prediction'), showCi = bands.includes('confidence');
     // On a log y axis a band edge at or below zero is drawn at a floor a decade under the smallest positive value
     // shown, so the band still reads as reaching down past the plot (a gap would look like a narrow band).
     let floor = NaN;
@@ -139,21 +197,27 @@ export class ChartsView {
     const conf = `${fmtNum(r.confidence * 100, 3)}\u2009%`;
     const legend: Child[] = [];
 
-    if (band && band.x.length) {
+    if (band && band.x.length && (showPi || showCi)) {
       const bandLine = { showLine: true, pointRadius: 0, pointHoverRadius: 0, borderWidth: 0, tension: 0, order: 30 } as const;
       const base = ctx.modelColor(r, sel!.name);
       const piFill = withAlpha(base, t.piAlpha), ciFill = withAlpha(base, t.ciAlpha);
-      datasets.push({ ...bandLine, label: 'prediction band', data: line(band.x, band.piHigh), fill: '+1', backgroundColor: piFill, borderColor: piFill });
-      datasets.push({ ...bandLine, label: 'prediction band (low)', data: line(band.x, band.piLow, true), fill: false, borderColor: piFill });
-      datasets.push({ ...bandLine, label: 'confidence band', data: line(band.x, band.ciHigh), fill: '+1', backgroundColor: ciFill, borderColor: ciFill });
-      datasets.push({ ...bandLine, label: 'confidence band (low)', data: line(band.x, band.ciLow, true), fill: false, borderColor: ciFill });
-      kinds.push({ kind: 'band' }, { kind: 'band' }, { kind: 'band' }, { kind: 'band' });
+      const before = datasets.length;
+      if (showPi) {
+        datasets.push({ ...bandLine, label: 'prediction band', data: line(band.x, band.piHigh), fill: '+1', backgroundColor: piFill, borderColor: piFill });
+        datasets.push({ ...bandLine, label: 'prediction band (low)', data: line(band.x, band.piLow, true), fill: false, borderColor: piFill });
+        kinds.push({ kind: 'band' }, { kind: 'band' });
+      }
+      if (showCi) {
+        datasets.push({ ...bandLine, label: 'confidence band', data: line(band.x, band.ciHigh), fill: '+1', backgroundColor: ciFill, borderColor: ciFill });
+        datasets.push({ ...bandLine, label: 'confidence band (low)', data: line(band.x, band.ciLow, true), fill: false, borderColor: ciFill });
+        kinds.push({ kind: 'band' }, { kind: 'band' });
+      }
       if (t.highContrast) {
         // Outline the bands too, so they read without relying on fill opacity.
-        for (const d of datasets.slice(-4)) { d.borderWidth = 1; d.borderDash = [2, 3]; d.borderColor = t.foreground; }
+        for (const d of datasets.slice(before)) { d.borderWidth = 1; d.borderDash = [2, 3]; d.borderColor = t.foreground; }
       }
-      legend.push(h('span', { class: 'cw-legend-item' }, boxSwatch(withAlpha(base, Math.min(1, t.ciAlpha + t.piAlpha))), ` ${conf} confidence band (${sel!.name})`),
-        h('span', { class: 'cw-legend-item' }, boxSwatch(piFill), ` ${conf} prediction band`));
+      if (showCi) legend.push(h('span', { class: 'cw-legend-item' }, boxSwatch(withAlpha(base, Math.min(1, t.ciAlpha + (showPi ? t.piAlpha : 0)))), ` ${conf} confidence band (${sel!.name})`));
+      if (showPi) legend.push(h('span', { class: 'cw-legend-item' }, boxSwatch(piFill), ` ${conf} prediction band${showCi ? '' : ` (${sel!.name})`}`));
     }
 
     if (multi) {
@@ -227,10 +291,14 @@ export class ChartsView {
     setChildren(el.legend, legend);
 
     // axis titles: the column or expression the spec bound (older reports without labels fall back to the names)
+    // and the spec's plot block: its own titles and units
     const labels = r.data.labels;
-    const yName = labels?.y ?? 'y';
-    const xLabel = multi ? `fitted ${yName} (${sel?.name ?? ''})` : labels?.x[xVar] && labels.x[xVar] !== xVar ? `${labels.x[xVar]}` : xVar;
-    const yLabel = yName;
+    const px = r.plot?.x, py = r.plot?.y;
+    const yName = py?.label ?? labels?.y ?? 'y';
+    const xName = px?.label ?? (labels?.x[xVar] && labels.x[xVar] !== xVar ? `${labels.x[xVar]}` : xVar);
+    const xLabel = multi ? `fitted ${withUnit(yName, py?.unit)} (${sel?.name ?? ''})` : withUnit(xName, px?.unit);
+    const yLabel = withUnit(yName, py?.unit);
+    this.describe(r, sel, { xLabel, yLabel, logX, logY, n: total, shown });
     const main = this.config(datasets, kinds, 'main', { logX, logY, xLabel, yLabel });
     this.mainKinds = kinds;
     this.mainChart = this.apply(this.mainChart, el.mainCanvas, main);
@@ -271,7 +339,7 @@ export class ChartsView {
       el.residBox.hidden = true;
     }
     el.residHead.hidden = !sp;
-    const residConf = this.config(rd, rk, 'resid', { logX, logY: false, xLabel, yLabel: standardized ? 'standardized residual' : 'residual' });
+    const residConf = this.config(rd, rk, 'resid', { logX, logY: false, xLabel, yLabel: standardized ? 'standardized residual' : withUnit('residual', py?.unit) });
     this.residKinds = rk;
     this.residChart = this.apply(this.residChart, el.residCanvas, residConf);
     el.plotNote.replaceChildren(...notes.map(n => h('p', null, n)));
@@ -384,6 +452,14 @@ export class ChartsView {
     const top = Math.max(0, Math.min(box.clientHeight - hgt, tip.caretY - hgt / 2));
     el.style.left = `${Math.max(0, left)}px`;
     el.style.top = `${top}px`;
+  }
+
+  /** The labelled ticks of one axis as drawn (for tests and the SVG writer). */
+  axisLabels(which: 'main' | 'resid', axis: 'x' | 'y'): string[] {
+    const chart = which === 'main' ? this.mainChart : this.residChart;
+    const s = chart?.scales[axis];
+    if (!s) return [];
+    return s.ticks.map(k => (Array.isArray(k.label) ? k.label.join(' ') : String(k.label ?? ''))).filter(Boolean);
   }
 
   /** Page coordinates (CSS pixels, relative to the canvas) and rows of the drawn data points; used by tests. */

@@ -3,7 +3,7 @@
 //   exports and reveals sent to the host (protocol in src/shared/protocol.ts);
 // - a standalone HTML report: reads the reports embedded in <script type="application/json" id="curvewright-data">,
 //   draws one section per spec, and exports by download links in the page.
-import type { JsonPath, RunResult } from '../src/engine/report';
+import type { FileLocation, FitReport, JsonPath, RunResult } from '../src/engine/report';
 import type { ExportRequest, HostToWebview, WebviewState, WebviewToHost } from '../src/shared/protocol';
 import { PROTOCOL_VERSION } from '../src/shared/protocol';
 import { renderReport, type ExportPayload, type ReportView, type ViewState } from './render';
@@ -18,7 +18,7 @@ interface VsCodeApi {
 declare const acquireVsCodeApi: undefined | (() => VsCodeApi);
 
 /** What the panel persists (the protocol's WebviewState plus the view's choices and the last report). */
-export type PanelState = WebviewState & Partial<ViewState> & { specName?: string; version?: number; dirty?: boolean; report?: RunResult };
+export type PanelState = WebviewState & Partial<ViewState> & { specName?: string; version?: number; dirty?: boolean; report?: RunResult; lastGood?: FitReport };
 
 /** Largest number of points kept in the persisted state; above it the points are dropped (the host refits anyway). */
 const MAX_PERSISTED_POINTS = 20000;
@@ -85,7 +85,7 @@ function startPanel(vscode: VsCodeApi): void {
         logX: state.logX,
         logY: state.logY,
         residual: state.residual,
-        onReveal: (path: JsonPath) => post({ type: 'reveal', path }),
+        onReveal: (path: JsonPath, loc?: FileLocation) => post(loc?.line !== undefined ? { type: 'reveal', path, line: loc.line, ...(typeof loc.column === 'number' ? { column: loc.column } : {}) } : { type: 'reveal', path }),
         onRevealRow: (row: number) => post({ type: 'revealRow', row }),
         onExport: (p: ExportPayload) => {
           const req: ExportRequest = { type: 'export', id: nextId++, format: p.format, data: p.data, suggestedName: p.suggestedName };
@@ -94,6 +94,7 @@ function startPanel(vscode: VsCodeApi): void {
         },
         onRefit: () => post({ type: 'refit' }),
         note: state.dirty ? 'unsaved edits' : undefined,
+        specLabel: state.specName,
         onStateChange: (s: ViewState) => {
           state = { ...state, ...s, selectedModel: s.selected };
           save();
@@ -113,7 +114,10 @@ function startPanel(vscode: VsCodeApi): void {
       case 'report': {
         if (shownVersion !== null && msg.specUri === state.specUri && msg.version < shownVersion) return;
         shownVersion = msg.version;
-        state = { ...state, specUri: msg.specUri, specName: msg.specName, version: msg.version, dirty: !!msg.dirty, report: plain(msg.report) };
+        const isFit = !('error' in msg.report);
+        // a broken spec keeps the last good result (dimmed) across a reload too; a good one replaces it
+        const lastGood = isFit ? undefined : state.lastGood ?? (view?.lastGood() ? (plain(view.lastGood()!) as FitReport) : undefined);
+        state = { ...state, specUri: msg.specUri, specName: msg.specName, version: msg.version, dirty: !!msg.dirty, report: plain(msg.report), lastGood };
         save();
         draw(msg.report);
         view?.setBusy(false);
@@ -139,7 +143,8 @@ function startPanel(vscode: VsCodeApi): void {
   watchTheme(t => { theme = t; view?.setTheme(t); });
 
   // Draw what the panel showed before a reload while the host refits.
-  if (state.report) draw(state.report);
+  if (state.lastGood && state.report && 'error' in state.report) { draw(state.lastGood); (view as ReportView | null)?.update(state.report); }
+  else if (state.report) draw(state.report);
   post({ type: 'ready', version: PROTOCOL_VERSION });
 }
 
@@ -173,7 +178,7 @@ function startStandalone(): void {
   let theme = readTheme();
   const views: ReportView[] = [];
   const sections: HTMLElement[] = [];
-  const mimes = { png: 'image/png', csv: 'text/csv', json: 'application/json' } as const;
+  const mimes = { png: 'image/png', svg: 'image/svg+xml', csv: 'text/csv', json: 'application/json' } as const;
   if (reports.length > 1) {
     const nav = document.createElement('nav');
     nav.className = 'cw-toc';

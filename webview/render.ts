@@ -2,12 +2,12 @@
 // recomputed here and the solver is never imported. A second call on the same element updates in place (charts via
 // chart.update('none')), so a refit does not make the panel flash. This file lays the parts out and keeps the view's
 // state; the parts live in charts.ts (every Chart.js call), tables.ts, problems.ts, exports.ts and state.ts.
-import type { FitReport, ModelReport, RunResult } from '../src/engine/report';
+import type { ErrorReport, FitReport, ModelReport, RunResult } from '../src/engine/report';
 import { fmtNum } from '../src/shared/numberFormat';
 import { ChartsView } from './charts';
 import { h, lineSwatch, setChildren, type Child } from './dom';
 import { parametersCsv, plotPng, reportJson } from './exports';
-import { ProblemsView, errorBox } from './problems';
+import { ProblemsView, SEVERITY_ICON, SEVERITY_WORD, errorBox, groupProblems, severityCounts, type ProblemGroup } from './problems';
 import { baseName, isError, selectedModelOf, type RenderOptions, type ViewContext, type ViewState } from './state';
 import { reportBody } from './tables';
 import { dashFor, type ThemeColors } from './theme';
@@ -39,6 +39,8 @@ export class ReportView implements ViewContext {
   opts: RenderOptions;
   theme: ThemeColors;
   private result: RunResult | null = null;
+  /** the last FitReport drawn: kept on screen, dimmed, while the spec is broken, until the next good one */
+  private good: FitReport | null = null;
   private st: ViewState;
   private readonly charts: ChartsView;
   private readonly problems: ProblemsView;
@@ -47,14 +49,14 @@ export class ReportView implements ViewContext {
 
   private readonly el: {
     wrap: HTMLElement; head: HTMLElement; busy: HTMLElement; actions: HTMLElement; error: HTMLElement; problems: HTMLElement;
-    plot: HTMLElement; chips: HTMLElement; body: HTMLElement;
+    plot: HTMLElement; chips: HTMLElement; body: HTMLElement; rest: HTMLElement; stale: HTMLElement;
   };
 
   constructor(root: HTMLElement, opts: RenderOptions) {
     this.root = root;
     this.opts = opts;
     this.theme = opts.theme;
-    this.st = { selected: opts.selected, logX: !!opts.logX, logY: !!opts.logY, residual: opts.residual ?? 'raw' };
+    this.st = { selected: opts.selected, logX: opts.logX, logY: opts.logY, residual: opts.residual ?? 'raw' };
     this.charts = new ChartsView(this, () => this.st, patch => this.setState(patch));
     const el = {
       wrap: h('div', { class: 'cw-report' }),
@@ -63,15 +65,19 @@ export class ReportView implements ViewContext {
       actions: h('div', { class: 'cw-actions' }),
       error: h('section', { class: 'cw-error', role: 'alert' }),
       problems: h('section', { class: 'cw-problems' }),
-      plot: h('section', { class: 'cw-card cw-plot' }),
-      chips: h('div', { class: 'cw-chips', role: 'group', 'aria-label': 'Models' }),
+      plot: h('section', { class: 'cw-card cw-plot', 'aria-label': 'Plot of the data and the fitted curves' }),
+      chips: h('div', { class: 'cw-chips', role: 'group', 'aria-label': 'Models: choose the one whose bands and residuals are drawn' }),
       body: h('div', { class: 'cw-body' }),
+      rest: h('div', { class: 'cw-body cw-body-rest' }),
+      stale: h('div', { class: 'cw-stale-part' }),
     };
     this.el = el;
     this.problems = new ProblemsView(this, el.problems);
     const c = this.charts.el;
     el.plot.append(h('div', { class: 'cw-plot-bar' }, el.chips, c.toggles), c.legend, c.mainBox, c.residHead, c.residBox, c.plotNote);
-    el.wrap.append(el.head, el.error, el.problems, el.plot, el.body);
+    // the live loop's order: header, the error of a broken spec, the plot, the tables, then the problems
+    el.stale.append(el.plot, el.body, el.problems, el.rest);
+    el.wrap.append(el.head, el.error, el.stale);
     root.replaceChildren(el.wrap);
   }
 
@@ -83,6 +89,16 @@ export class ReportView implements ViewContext {
   /** The report currently drawn. */
   current(): RunResult | null {
     return this.result;
+  }
+
+  /** The last good report (shown dimmed while the current one is an error). */
+  lastGood(): FitReport | null {
+    return this.good;
+  }
+
+  /** Start from a good report drawn before (e.g. persisted across a reload) without drawing it yet. */
+  remember(good: FitReport): void {
+    this.good = good;
   }
 
   /** Draw a new report (or the same one with new options) in place. */
@@ -127,6 +143,11 @@ export class ReportView implements ViewContext {
   /** Page coordinates (CSS pixels, relative to the canvas) and rows of the drawn data points; used by tests. */
   pointPositions(which: 'main' | 'resid' = 'main'): { x: number; y: number; row: number | undefined }[] {
     return this.charts.pointPositions(which);
+  }
+
+  /** The labelled ticks of a plot's axis as drawn (for tests). */
+  axisLabels(which: 'main' | 'resid' = 'main', axis: 'x' | 'y' = 'x'): string[] {
+    return this.charts.axisLabels(which, axis);
   }
 
   /** Remove the charts and the DOM. */
@@ -177,52 +198,84 @@ export class ReportView implements ViewContext {
   // ---------------------------------------------------------------- drawing
 
   private draw(): void {
-    const r = this.result;
-    if (!r) return;
+    const cur = this.result;
+    if (!cur) return;
     const el = this.el;
     el.wrap.classList.toggle('cw-hc', this.theme.highContrast);
-    this.drawHead(r);
-    if (isError(r)) {
+    const broken: ErrorReport | null = isError(cur) ? cur : null;
+    if (!broken) this.good = cur as FitReport;
+    const r = broken ? this.good : (cur as FitReport);
+    if (broken) {
       el.error.hidden = false;
-      setChildren(el.error, errorBox(this, r));
-      el.problems.hidden = true;
-      el.plot.hidden = true;
+      setChildren(el.error, errorBox(this, broken, !!r));
+    } else {
+      el.error.hidden = true;
+      el.error.replaceChildren();
+    }
+    el.wrap.classList.toggle('cw-is-stale', !!(broken && r));
+    // a dimmed result is not for reading off: out of the accessibility tree and the tab order, but still visible
+    if (broken && r) el.stale.setAttribute('inert', ''); else el.stale.removeAttribute('inert');
+    el.stale.setAttribute('aria-hidden', broken && r ? 'true' : 'false');
+    if (!r) {
+      this.drawHead(cur, []);
+      el.stale.hidden = true;
       el.body.replaceChildren();
+      el.rest.replaceChildren();
       return;
     }
-    el.error.hidden = true;
-    el.error.replaceChildren();
-    this.problems.draw(r);
-    el.plot.hidden = false;
+    el.stale.hidden = false;
     const sel = this.selectedModel(r);
     if (sel && this.st.selected !== undefined && this.st.selected !== sel.name) this.st.selected = sel.name;
+    const groups = groupProblems(r, sel?.name);
+    this.drawHead(broken ?? r, groups, broken ? r : undefined);
+    this.problems.draw(groups);
+    el.plot.hidden = false;
     this.drawChips(r, sel);
     this.charts.draw(r, sel, this.st);
     this.drawBody(r, sel);
   }
 
-  private drawHead(r: RunResult): void {
-    const title = !isError(r) && r.title ? r.title : baseName(r.spec);
-    const sub: Child[] = [h('code', null, r.spec)];
-    if (this.opts.note) sub.push(' ', h('span', { class: 'cw-badge cw-badge-warn' }, this.opts.note));
-    if (!isError(r)) {
-      sub.push(' \u00b7 ', `${fmtNum(r.confidence * 100, 3)}\u2009% intervals`);
-      if (r.best) sub.push(' \u00b7 best: ', h('strong', null, r.best));
+  /** The header: title, status chips (counts per severity; each jumps to its problems), best model, spec, actions. */
+  private drawHead(r: RunResult, groups: ProblemGroup[], shown?: FitReport): void {
+    const fit = shown ?? (isError(r) ? undefined : r);
+    const title = fit?.title ? fit.title : baseName(r.spec);
+    const counts = severityCounts(groups);
+    const status: Child[] = [];
+    if (isError(r)) {
+      status.push(h('button', { class: 'cw-status cw-status-error', type: 'button', title: 'Show the error', onclick: () => this.el.error.scrollIntoView({ block: 'nearest' }) },
+        h('span', { 'aria-hidden': 'true' }, SEVERITY_ICON.error), ' spec error'));
     }
+    if (!isError(r)) {
+      for (const s of ['error', 'warning', 'info'] as const) {
+        const n = counts[s].groups;
+        if (!n) continue;
+        const word = SEVERITY_WORD[s][n === 1 ? 0 : 1];
+        status.push(h('button', {
+          class: `cw-status cw-status-${s}`, type: 'button',
+          title: `${n} ${word} (${counts[s].problems} problem${counts[s].problems === 1 ? '' : 's'}): show them`,
+          onclick: () => this.problems.focus(s),
+        }, h('span', { 'aria-hidden': 'true' }, SEVERITY_ICON[s]), ` ${n} ${word}`));
+      }
+      if (!groups.length) status.push(h('span', { class: 'cw-status cw-status-ok' }, h('span', { 'aria-hidden': 'true' }, '\u2714'), ' no problems'));
+    }
+    if (fit?.best) status.push(h('span', { class: 'cw-status cw-status-best' }, 'best: ', h('strong', null, fit.best)));
+    const sub: Child[] = [h('code', { class: 'cw-spec-path' }, this.opts.specLabel ?? r.spec)];
+    if (this.opts.note) sub.push(' ', h('span', { class: 'cw-badge cw-badge-warn' }, this.opts.note));
+    if (fit) sub.push(' \u00b7 ', `${fmtNum(fit.confidence * 100, 3)}\u2009% intervals`);
     this.el.actions.replaceChildren();
     const onRefit = this.opts.onRefit;
     if (onRefit) this.el.actions.append(h('button', { class: 'cw-btn', type: 'button', title: 'Fit this spec again now', onclick: () => onRefit() }, 'Refit'));
     const onExport = this.opts.onExport;
     if (onExport) {
       const base = baseName(r.spec);
-      if (!isError(r)) {
+      if (fit && !isError(r)) {
         this.el.actions.append(
           h('button', { class: 'cw-btn', type: 'button', title: 'Save the plots as a PNG image', onclick: () => {
             const data = this.plotImage();
             if (data) onExport({ format: 'png', data, suggestedName: `${base}-plot.png`, model: this.st.selected });
           } }, 'PNG'),
           h('button', { class: 'cw-btn', type: 'button', title: 'Save the parameters of every model as CSV', onclick: () => {
-            onExport({ format: 'csv', data: parametersCsv(r), suggestedName: `${base}-parameters.csv` });
+            onExport({ format: 'csv', data: parametersCsv(fit), suggestedName: `${base}-parameters.csv` });
           } }, 'CSV'),
         );
       }
@@ -231,7 +284,10 @@ export class ReportView implements ViewContext {
       } }, 'JSON'));
     }
     this.el.head.replaceChildren(
-      h('div', { class: 'cw-head-text' }, h('h1', { class: 'cw-title' }, title), h('div', { class: 'cw-sub' }, sub)),
+      h('div', { class: 'cw-head-text' },
+        h('h1', { class: 'cw-title' }, title),
+        h('div', { class: 'cw-status-row', role: 'group', 'aria-label': 'Status' }, status),
+        h('div', { class: 'cw-sub' }, sub)),
       h('div', { class: 'cw-head-side' }, this.el.busy, this.el.actions),
     );
   }
@@ -255,6 +311,8 @@ export class ReportView implements ViewContext {
   private drawBody(r: FitReport, sel: ModelReport | undefined): void {
     const isOpen = (m: ModelReport, selected: boolean) =>
       this.openModels.has(m.name) || (!this.closedModels.has(m.name) && (selected || r.models.length === 1));
-    this.el.body.replaceChildren(...reportBody(this, r, sel, isOpen));
+    const { tables, rest } = reportBody(this, r, sel, isOpen);
+    this.el.body.replaceChildren(...tables);
+    this.el.rest.replaceChildren(...rest);
   }
 }

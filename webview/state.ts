@@ -1,14 +1,15 @@
 // What the panel remembers and what every part of it reads: the user's choices (ViewState), the render options the
 // page passes in, and the context the drawing modules (charts, tables, problems, exports) share. No drawing here.
-import type { ErrorReport, FitReport, JsonPath, ModelReport, PointsReport, RunResult } from '../src/engine/report';
+import type { ErrorReport, FileLocation, FitReport, JsonPath, ModelReport, PointsReport, RunResult } from '../src/engine/report';
 import type { ExportFormat } from '../src/shared/protocol';
 import type { ThemeColors } from './theme';
 
 /** What the user chose in the view; persisted by the panel so a reload restores it. */
 export interface ViewState {
   selected?: string;
-  logX: boolean;
-  logY: boolean;
+  /** the user's log-axis choice; unset: the spec's plot block, else automatic (see charts.ts) */
+  logX?: boolean;
+  logY?: boolean;
   /** residual plot shows raw residuals or standardized ones */
   residual: 'raw' | 'standardized';
 }
@@ -28,8 +29,8 @@ export interface RenderOptions {
   /** model to show bands and residuals for (default: the report's best, else the first) */
   selected?: string;
   residual?: 'raw' | 'standardized';
-  /** a problem (or another spec-bound item) was clicked */
-  onReveal?(path: JsonPath): void;
+  /** a problem (or another spec-bound item) was clicked: its JSON path, and its place in the text when known */
+  onReveal?(path: JsonPath, location?: FileLocation): void;
   /** a data point was clicked */
   onRevealRow?(row: number): void;
   /** an export button was pressed; without it the export buttons are hidden */
@@ -40,6 +41,8 @@ export interface RenderOptions {
   onRefit?(): void;
   /** a short note beside the spec name, e.g. "unsaved edits" */
   note?: string;
+  /** the spec's path as the header shows it (the panel: relative to the workspace); default the report's `spec` */
+  specLabel?: string;
 }
 
 /** What the drawing modules read from the view: theme, options, the selected model, colours, and how to select. */

@@ -7,18 +7,17 @@ import { h, lineSwatch, type Child } from './dom';
 import type { ViewContext } from './state';
 import { dashFor } from './theme';
 
-/** The cards under the plot: comparison, one per model (open or folded as `isOpen` says), expectations, data, footer. */
-export function reportBody(ctx: ViewContext, r: FitReport, sel: ModelReport | undefined, isOpen: (m: ModelReport, selected: boolean) => boolean): Node[] {
-  const parts: Child[] = [];
-  if (r.models.length > 1 || r.comparison) parts.push(comparisonCard(ctx, r, sel));
-  parts.push(h('div', { class: 'cw-models' }, r.models.map((m, i) => modelCard(ctx, r, m, i, m.name === sel?.name, isOpen(m, m.name === sel?.name)))));
-  if (r.expect.length) parts.push(expectCard(r));
-  parts.push(dataCard(ctx, r));
-  parts.push(h('footer', { class: 'cw-foot' }, `${r.meta.engine} \u00b7 spec ${r.meta.specHash.slice(0, 15)} \u00b7 data ${r.meta.dataHash.slice(0, 15)} \u00b7 seed ${r.meta.seed}`));
-  const nodes: Node[] = [];
-  const add = (c: Child) => { if (c instanceof Node) nodes.push(c); };
-  parts.forEach(add);
-  return nodes;
+/** The cards under the plot: `tables` (comparison, one card per model, open or folded as `isOpen` says) come before
+ *  the problem list, `rest` (expectations, data, provenance) after it. */
+export function reportBody(ctx: ViewContext, r: FitReport, sel: ModelReport | undefined, isOpen: (m: ModelReport, selected: boolean) => boolean): { tables: Node[]; rest: Node[] } {
+  const tables: Node[] = [];
+  if (r.models.length > 1 || r.comparison) tables.push(comparisonCard(ctx, r, sel));
+  tables.push(h('div', { class: 'cw-models' }, r.models.map((m, i) => modelCard(ctx, r, m, i, m.name === sel?.name, isOpen(m, m.name === sel?.name)))));
+  const rest: Node[] = [];
+  if (r.expect.length) rest.push(expectCard(r));
+  rest.push(dataCard(ctx, r));
+  rest.push(h('footer', { class: 'cw-foot' }, `${r.meta.engine} \u00b7 spec ${r.meta.specHash.slice(0, 15)} \u00b7 data ${r.meta.dataHash.slice(0, 15)} \u00b7 seed ${r.meta.seed}`));
+  return { tables, rest };
 }
 
 export function comparisonCard(ctx: ViewContext, r: FitReport, sel: ModelReport | undefined): HTMLElement {
@@ -53,7 +52,7 @@ export function comparisonCard(ctx: ViewContext, r: FitReport, sel: ModelReport 
   });
   const parts: Child[] = [
     h('h2', { class: 'cw-h2' }, 'Model comparison'),
-    h('div', { class: 'cw-table-wrap' }, h('table', { class: 'cw-table cw-compare' },
+    h('div', { class: 'cw-table-wrap', role: 'region', tabindex: 0, 'aria-label': 'Model comparison' }, h('table', { class: 'cw-table cw-compare' },
       h('thead', null, h('tr', null, th('#'), th('model', 'l'), th('k', undefined, 'free parameters'), th('AICc', undefined, 'corrected Akaike information criterion (lower is better)'),
         th('\u0394AICc', undefined, 'difference to the lowest AICc'), th('Akaike weight'), th('CV RMSE', undefined, 'cross-validated root mean square error'), th('R\u00b2'))),
       h('tbody', null, rows))),
@@ -98,7 +97,7 @@ export function modelCard(ctx: ViewContext, r: FitReport, m: ModelReport, i: num
       h('td', { class: 'num' }, fmtP(p.p)),
       h('td', null, notes));
   });
-  const paramTable = h('div', { class: 'cw-table-wrap' }, h('table', { class: 'cw-table cw-params' },
+  const paramTable = h('div', { class: 'cw-table-wrap', role: 'region', tabindex: 0, 'aria-label': `Parameters of ${m.name}` }, h('table', { class: 'cw-table cw-params' },
     h('thead', null, h('tr', null, th('parameter', 'l'), th('estimate'), th('SE', undefined, 'standard error'), th('rel. SE', undefined, 'standard error relative to the estimate'),
       th(`${conf} CI (Wald)`), th(`${conf} CI (profile)`, undefined, 'profile-likelihood interval; \u2014 marks a bound that does not exist'), th('p', undefined, 'two-sided p-value of t = estimate/SE'), th('', 'l'))),
     h('tbody', null, paramRows)));
@@ -135,14 +134,14 @@ export function modelCard(ctx: ViewContext, r: FitReport, m: ModelReport, i: num
     if (rt.normality) rows.push(h('tr', null, h('td', null, rt.normality.test === 'shapiro-wilk' ? 'Shapiro\u2013Wilk' : 'D\u2019Agostino\u2013Pearson K\u00b2'),
       h('td', { class: 'num' }, `${rt.normality.test === 'shapiro-wilk' ? 'W' : 'K\u00b2'} = ${fmtNum(rt.normality.statistic, 4)}`), h('td', null, ''), h('td', { class: 'num' }, fmtP(rt.normality.p))));
     if (rt.durbinWatson !== null) rows.push(h('tr', null, h('td', null, 'Durbin\u2013Watson'), h('td', { class: 'num' }, `d = ${fmtNum(rt.durbinWatson, 3)}`), h('td', null, ''), h('td', { class: 'num' }, MISSING)));
-    if (rows.length) wide.push(h('h3', { class: 'cw-h3' }, 'Residual tests'), h('div', { class: 'cw-table-wrap' }, h('table', { class: 'cw-table cw-tests' },
+    if (rows.length) wide.push(h('h3', { class: 'cw-h3' }, 'Residual tests'), h('div', { class: 'cw-table-wrap', role: 'region', tabindex: 0, 'aria-label': `Residual tests of ${m.name}` }, h('table', { class: 'cw-table cw-tests' },
       h('thead', null, h('tr', null, th('test', 'l'), th('statistic'), th(''), th('p'))), h('tbody', null, rows))));
   }
   const sections: Child[] = [solver, h('div', { class: 'cw-grid' },
     h('div', { class: 'cw-col-wide' }, wide),
     h('div', { class: 'cw-col' }, h('h3', { class: 'cw-h3' }, 'Fit statistics'), statsList))];
   if (m.predictions.length) {
-    sections.push(h('h3', { class: 'cw-h3' }, 'Predictions'), h('div', { class: 'cw-table-wrap' }, h('table', { class: 'cw-table cw-predictions' },
+    sections.push(h('h3', { class: 'cw-h3' }, 'Predictions'), h('div', { class: 'cw-table-wrap', role: 'region', tabindex: 0, 'aria-label': `Predictions of ${m.name}` }, h('table', { class: 'cw-table cw-predictions' },
       h('thead', null, h('tr', null, th('x'), th('\u0177'), th(`${conf} CI of the mean`), th(`${conf} prediction interval`), th('', 'l'))),
       h('tbody', null, m.predictions.map(p => h('tr', null,
         h('td', { class: 'num' }, typeof p.x === 'number' ? fmtNum(p.x, 6) : Object.entries(p.x).map(([k, v]) => `${k} = ${fmtNum(v, 6)}`).join(', ')),
@@ -172,7 +171,7 @@ export function modelCard(ctx: ViewContext, r: FitReport, m: ModelReport, i: num
         h('td', { class: 'num' }, fmtInterval(root.interval, v => fmtNum(v, 5))),
         h('td', null, inv.extrapolated ? extrapolatedBadge() : null))));
     }
-    sections.push(h('h3', { class: 'cw-h3' }, 'Inverse predictions (x for a given y)'), h('div', { class: 'cw-table-wrap' }, h('table', { class: 'cw-table cw-inverse' },
+    sections.push(h('h3', { class: 'cw-h3' }, 'Inverse predictions (x for a given y)'), h('div', { class: 'cw-table-wrap', role: 'region', tabindex: 0, 'aria-label': `Inverse predictions of ${m.name}` }, h('table', { class: 'cw-table cw-inverse' },
       h('thead', null, h('tr', null, th('y'), th('x'), th(`${conf} interval`), th('', 'l'))), h('tbody', null, rows))));
   }
   if (m.correlation && m.paramOrder.length > 1) {
@@ -184,7 +183,7 @@ export function modelCard(ctx: ViewContext, r: FitReport, m: ModelReport, i: num
 
 function correlationTable(m: ModelReport): HTMLElement {
   const c = m.correlation!;
-  return h('div', { class: 'cw-table-wrap' }, h('table', { class: 'cw-table cw-corr' },
+  return h('div', { class: 'cw-table-wrap', role: 'region', tabindex: 0, 'aria-label': `Parameter correlation of ${m.name}` }, h('table', { class: 'cw-table cw-corr' },
     h('thead', null, h('tr', null, th('', 'l'), m.paramOrder.map(p => th(p)))),
     h('tbody', null, m.paramOrder.map((p, i) => h('tr', null, h('td', null, h('code', null, p)),
       m.paramOrder.map((_q, j) => {

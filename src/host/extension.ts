@@ -15,7 +15,7 @@ import { FitCodeActions } from './codeActions';
 import { ModelLenses, ParamHover } from './editHelp';
 import { FitCsvCommand, type FitCsvResult } from './fitCsvCommand';
 import type { RunResult } from '../engine/report';
-import type { SnapshotMessage } from '../shared/protocol';
+import type { HostToWebview, SnapshotMessage } from '../shared/protocol';
 
 export interface CurvewrightApi {
   /** the last run result of a spec, if any */
@@ -27,6 +27,8 @@ export interface CurvewrightApi {
   panelState(spec: vscode.Uri | string): PanelState;
   /** ask the webview what it shows */
   panelSnapshot(spec: vscode.Uri | string): Promise<SnapshotMessage>;
+  /** the last messages the host posted to a spec's panel (as posted: paths already relative) */
+  panelMessages(spec: vscode.Uri | string): HostToWebview[];
   statusText(): string;
   poolStats(): { started: number; terminated: number; runs: number; cancelled: number; size: number };
   fitCsv(options: import('./fitCsvCommand').FitCsvOptions): Promise<FitCsvResult[]>;
@@ -125,6 +127,7 @@ export function activate(context: vscode.ExtensionContext): CurvewrightApi {
     refit: async u => { const ev = await fits.runNow(toUri(u)); return ev && pick(ev); },
     panelState: u => panels.state(toUri(u)),
     panelSnapshot: u => panels.snapshot(toUri(u)),
+    panelMessages: u => panels.sentMessages(toUri(u)),
     statusText: () => status.text,
     poolStats: () => ({ ...pool.stats, size: pool.size }),
     fitCsv: o => fitCsv.run(o),

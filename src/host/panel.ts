@@ -16,6 +16,7 @@ import { checkWebviewMessage, plainFileName } from '../shared/protocolCheck';
 import { panelHtml } from '../shared/html';
 import type { FitReport, RunResult } from '../engine/report';
 import { isErrorReport } from '../engine/report';
+import { relativePaths } from './panelPaths';
 
 export const PANEL_VIEW_TYPE = 'curvewright.panel';
 
@@ -28,6 +29,8 @@ interface PanelEntry {
   readyCount: number;
   snapshots: Map<number, (s: SnapshotMessage) => void>;
   disposables: vscode.Disposable[];
+  /** the last messages posted to the webview, newest last (for tests: no absolute path may be among them) */
+  sent: HostToWebview[];
 }
 
 export interface PanelState { open: boolean; ready: boolean; postedVersion: number | null; readyCount: number; visible: boolean }
@@ -64,7 +67,8 @@ export class PanelController extends Disposable implements vscode.WebviewPanelSe
 
   async deserializeWebviewPanel(panel: vscode.WebviewPanel, state: WebviewState | undefined): Promise<void> {
     if (!state?.specUri) { panel.dispose(); return; }
-    const uri = vscode.Uri.parse(state.specUri);
+    const uri = specFromKey(state.specUri);
+    if (!uri) { panel.dispose(); return; }
     try { await vscode.workspace.fs.stat(uri); } catch { panel.dispose(); return; }
     if (this.panels.has(uri.toString())) { panel.dispose(); return; }
     panel.webview.options = this.options();
@@ -103,7 +107,7 @@ export class PanelController extends Disposable implements vscode.WebviewPanelSe
   }
 
   private adopt(panel: vscode.WebviewPanel, specUri: vscode.Uri): void {
-    const entry: PanelEntry = { specUri, panel, ready: false, posted: null, readyCount: 0, snapshots: new Map(), disposables: [] };
+    const entry: PanelEntry = { specUri, panel, ready: false, posted: null, readyCount: 0, snapshots: new Map(), disposables: [], sent: [] };
     this.panels.set(specUri.toString(), entry);
     const icon = vscode.Uri.joinPath(this.extensionUri, 'media', 'icon.svg');
     if (fs.existsSync(icon.fsPath)) panel.iconPath = icon;
@@ -135,12 +139,23 @@ export class PanelController extends Disposable implements vscode.WebviewPanelSe
     });
   }
 
+  /** Every message goes through here: paths in it become relative to the workspace (relativePaths). */
   private post(p: PanelEntry, m: HostToWebview): void {
-    void p.panel.webview.postMessage(m).then(undefined, e => log.warn(`could not post to the panel: ${e}`));
+    const folders = (vscode.workspace.workspaceFolders ?? []).map(f => f.uri.fsPath);
+    const roots = folders.length ? folders : [path.dirname(p.specUri.fsPath)]; // no folder open: the spec's own
+    const safe = relativePaths(m, roots);
+    p.sent.push(safe);
+    if (p.sent.length > 20) p.sent.shift();
+    void p.panel.webview.postMessage(safe).then(undefined, e => log.warn(`could not post to the panel: ${e}`));
+  }
+
+  /** The last messages posted to a spec's panel (for tests). */
+  sentMessages(specUri: vscode.Uri): HostToWebview[] {
+    return [...(this.panels.get(specUri.toString())?.sent ?? [])];
   }
 
   private postReport(p: PanelEntry, ev: FitEvent): void {
-    this.post(p, { type: 'report', report: ev.result, specUri: ev.uri.toString(), specName: path.basename(ev.uri.fsPath), version: ev.version, dirty: ev.dirty });
+    this.post(p, { type: 'report', report: ev.result, specUri: specKey(ev.uri), specName: vscode.workspace.asRelativePath(ev.uri, true), version: ev.version, dirty: ev.dirty });
     p.posted = ev.version;
   }
 
@@ -161,7 +176,7 @@ export class PanelController extends Disposable implements vscode.WebviewPanelSe
         else this.post(p, { type: 'busy', busy: true, message: 'fitting' });
         return;
       }
-      case 'reveal': return this.reveal(p.specUri, m.path);
+      case 'reveal': return this.reveal(p.specUri, m.path, m.line, m.column);
       case 'revealRow': return this.revealRow(p.specUri, m.row);
       case 'export': return this.export(p, m);
       case 'refit': this.fits.schedule(p.specUri, 0); return;
@@ -171,9 +186,12 @@ export class PanelController extends Disposable implements vscode.WebviewPanelSe
   }
 
   /** Select the JSON path's range in the spec editor (opening it beside the panel if needed). */
-  async reveal(specUri: vscode.Uri, jsonPath: (string | number)[]): Promise<void> {
+  async reveal(specUri: vscode.Uri, jsonPath: (string | number)[], line?: number, column?: number): Promise<void> {
     const doc = await vscode.workspace.openTextDocument(specUri);
-    const spot = locateInText(doc.getText(), jsonPath);
+    // a place by line (a JSON syntax error) when the path does not name one
+    const atLine = line !== undefined && jsonPath.length === 0 && line >= 1 && line <= doc.lineCount
+      ? { offset: doc.offsetAt(new vscode.Position(line - 1, Math.max(0, (column ?? 1) - 1))), length: 1 } : undefined;
+    const spot = atLine ?? locateInText(doc.getText(), jsonPath);
     const visible = vscode.window.visibleTextEditors.find(e => e.document.uri.toString() === specUri.toString());
     const editor = await vscode.window.showTextDocument(doc, { viewColumn: visible?.viewColumn ?? vscode.ViewColumn.One, preserveFocus: false });
     if (!spot) return;
@@ -199,6 +217,7 @@ export class PanelController extends Disposable implements vscode.WebviewPanelSe
     const name = m.suggestedName || plainFileName(`${base}${m.model ? '-' + m.model : ''}${m.format === 'json' ? '.fitresult' : ''}`, m.format);
     try {
       let bytes: Uint8Array;
+      if (m.format === 'svg' && !/^<svg[\s>]/.test(m.data ?? '')) throw new Error('the panel sent no SVG image');
       if (m.format === 'png') {
         const match = /^data:image\/png;base64,(.*)$/s.exec(m.data ?? '');
         if (!match) throw new Error('the panel sent no PNG image');
@@ -206,13 +225,13 @@ export class PanelController extends Disposable implements vscode.WebviewPanelSe
       } else if (m.data !== undefined) bytes = Buffer.from(m.data, 'utf8');
       else if (!last) throw new Error('there is no fit to export yet');
       else bytes = Buffer.from(m.format === 'csv' ? resultsCsv(last, m.model) : JSON.stringify(last, plainArrays, 2) + '\n', 'utf8');
-      const filters: Record<string, string[]> = m.format === 'png' ? { 'PNG image': ['png'] } : m.format === 'csv' ? { CSV: ['csv'] } : { JSON: ['json'] };
+      const filters: Record<string, string[]> = m.format === 'png' ? { 'PNG image': ['png'] } : m.format === 'svg' ? { 'SVG image': ['svg'] } : m.format === 'csv' ? { CSV: ['csv'] } : { JSON: ['json'] };
       const target = await vscode.window.showSaveDialog({ defaultUri: vscode.Uri.joinPath(p.specUri, '..', name), filters, title: 'Export from Curvewright' });
       if (!target) { this.post(p, { type: 'exported', inReplyTo: m.id, path: null }); return; }
       if (isDataFile(target, last, p.specUri)) throw new Error('that is the data file of this spec; Curvewright never overwrites data files — choose another name');
       await vscode.workspace.fs.writeFile(target, bytes);
       log.info(`exported ${m.format} to ${target.fsPath}`);
-      this.post(p, { type: 'exported', inReplyTo: m.id, path: target.fsPath });
+      this.post(p, { type: 'exported', inReplyTo: m.id, path: vscode.workspace.asRelativePath(target, true) });
     } catch (e) {
       const msg = (e as Error).message;
       void vscode.window.showErrorMessage(`Curvewright could not export: ${msg}`);
@@ -229,6 +248,24 @@ export class PanelController extends Disposable implements vscode.WebviewPanelSe
 function isDataFile(target: vscode.Uri, r: RunResult | undefined, specUri: vscode.Uri): boolean {
   const f = r && dataFileOf(r, path.dirname(specUri.fsPath));
   return (!!f && path.normalize(f) === path.normalize(target.fsPath)) || target.fsPath.toLowerCase().endsWith('.fitspec.json');
+}
+
+/** What the webview keeps to find its spec after a reload: the path relative to the workspace (with the folder's
+ *  name first in a multi-root workspace), so that no absolute path reaches the panel. */
+export function specKey(uri: vscode.Uri): string {
+  return vscode.workspace.asRelativePath(uri, true);
+}
+
+/** The spec a key names: a workspace-relative path (specKey) or, from panels saved by earlier versions, a URI. */
+export function specFromKey(key: string): vscode.Uri | undefined {
+  if (/^[a-z][\w+.-]*:\/\//i.test(key)) return vscode.Uri.parse(key);
+  const folders = vscode.workspace.workspaceFolders ?? [];
+  if (path.isAbsolute(key)) return vscode.Uri.file(key);
+  if (folders.length > 1) {
+    const f = folders.find(x => key.startsWith(x.name + '/'));
+    if (f) return vscode.Uri.joinPath(f.uri, key.slice(f.name.length + 1));
+  }
+  return folders[0] ? vscode.Uri.joinPath(folders[0].uri, key) : undefined;
 }
 
 function title(specUri: vscode.Uri): string {

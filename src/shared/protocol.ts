@@ -16,7 +16,7 @@ export const PROTOCOL_VERSION = 1;
 export type ThemeKind = 'light' | 'dark' | 'high-contrast' | 'high-contrast-light';
 
 /** Export formats the panel offers. */
-export type ExportFormat = 'png' | 'csv' | 'json';
+export type ExportFormat = 'png' | 'svg' | 'csv' | 'json';
 
 /** What the webview stores with `acquireVsCodeApi().setState(...)`, so the host's WebviewPanelSerializer can
  *  restore the panel after a window reload. The webview must set it when it receives a 'report'. */
@@ -84,6 +84,9 @@ export interface ReadyMessage {
 export interface RevealMessage {
   type: 'reveal';
   path: JsonPath;
+  /** 1-based line (and column) in the spec text, when the place is known there (e.g. a JSON syntax error) */
+  line?: number;
+  column?: number;
 }
 
 /** The user clicked a data point or a problem tied to a CSV row: open the data file at that 1-based data row. */

@@ -123,7 +123,7 @@ describe('webview in a real browser (headless Chromium)', function () {
     assert.deepStrictEqual(params, ['K', 'r', 'x0']);
     const text = await page.innerText('body');
     for (const s of ['Model comparison', 'AICc', 'Akaike weight', 'Predictions', 'extrapolated', 'Inverse predictions', 'Residual tests',
-      'Shapiro\u2013Wilk', 'rows used', 'bubble in cuvette', '\u2605 best', 'bad-cell', 'Expectations']) {
+      'Shapiro\u2013Wilk', 'rows used', 'bubble in cuvette', '\u2605 best', 'bad cell', 'Expectations']) {
       assert.ok(text.includes(s), `shows "${s}"`);
     }
     assert.ok(/R²\s+0\.99/.test(text), 'R² shown rounded');
@@ -208,10 +208,22 @@ describe('webview in a real browser (headless Chromium)', function () {
     const many = sampleReport();
     for (let k = 0; k < 12; k++) many.models[1]!.problems.push({ code: 'poorly-determined', severity: 'warning', message: `invented warning ${k}`, path: ['models', 1] });
     const { page, problems, ctx } = await openReport([many, err], 'two');
-    // 16 problems: the 6 most severe show, the rest fold behind a button.
-    assert.strictEqual(await page.$$eval('#cw-spec-1 .cw-problem', l => l.length), 6);
-    await page.click('#cw-spec-1 button.cw-more');
+    // 16 problems with 5 codes: one line per code (worst first), folded; 12 of them one fact about gompertz.
+    const lines = await page.$$eval('#cw-spec-1 .cw-group-sum', l => l.map(x => (x as HTMLElement).innerText.replace(/\s+/g, ' ').trim()));
+    assert.strictEqual(lines.length, 5, lines.join(' | '));
+    assert.ok(lines.slice(0, 4).every(l => /warning/.test(l)) && /note/.test(lines[4]!), `warnings before notes: ${lines.join(' | ')}`);
+    assert.ok(/^.*bad cell/.test(lines[0]!), `the data's own warning first: ${lines[0]}`);
+    const pd = lines.find(l => /poorly determined/.test(l))!;
+    assert.match(pd, /poorly determined \u2014 gompertz \u00d712/);
+    assert.strictEqual(await page.$$eval('#cw-spec-1 .cw-problem', l => l.filter(x => (x as HTMLElement).checkVisibility()).length), 0, 'all folded');
+    await page.click('#cw-spec-1 details[data-group="warning:poorly-determined"] > summary');
+    assert.strictEqual(await page.$$eval('#cw-spec-1 .cw-problem', l => l.filter(x => (x as HTMLElement).checkVisibility()).length), 12);
     assert.strictEqual(await page.$$eval('#cw-spec-1 .cw-problem', l => l.length), 16);
+    // the header counts facts per severity: 4 warnings, 1 note
+    assert.deepStrictEqual(await page.$$eval('#cw-spec-1 .cw-status', l => l.map(x => (x as HTMLElement).textContent!.trim())), ['\u25b2 4 warnings', '\u2139 1 note', 'best: logistic']);
+    // the live loop's order: header, plot, tables, problems
+    const order = await page.$eval('#cw-spec-1', s => ['.cw-head', '.cw-plot', '.cw-comparison', '.cw-problems', '.cw-data'].map(q => s.querySelector(q)!.getBoundingClientRect().top));
+    assert.deepStrictEqual([...order].sort((a, b) => a - b), order, `top to bottom: ${order.join(', ')}`);
     assert.strictEqual(await page.$$eval('section.cw-spec', s => s.length), 2);
     const box = await page.innerText('#cw-spec-2 .cw-error');
     assert.ok(box.includes('could not be run') && box.includes("unknown identifier 'K2'") && box.includes('assay.fitspec.json:12:18'), box);
@@ -336,6 +348,7 @@ describe('webview in a real browser (headless Chromium)', function () {
     assert.strictEqual(await page.innerText('.cw-title'), 'Culture B after refit');
 
     // Clicking a problem reveals its JSON path in the spec; its row link opens the data row.
+    await page.click('.cw-group.cw-problem-warning summary >> nth=0');
     await page.click('.cw-problem-warning button.cw-problem-btn >> nth=0');
     await page.click('.cw-row-link >> nth=0');
     await page.click('.cw-chip[data-model="gompertz"]');
@@ -373,6 +386,98 @@ describe('webview in a real browser (headless Chromium)', function () {
     await page.waitForSelector('canvas');
     assert.strictEqual(await page.innerText('.cw-title'), 'Culture B after refit');
     assert.strictEqual(await page.getAttribute('.cw-chip[data-model="gompertz"]', 'aria-pressed'), 'true');
+
+    // A broken spec (a half-typed edit): the last good result stays, dimmed and inert, under the error with a link
+    // to its place; the next good result replaces both.
+    const broken: ErrorReport = { version: 1, spec: 'culture-b.fitspec.json', error: { message: "data.y names column 'od6', which is not in culture-b.csv", path: ['data', 'y'], location: { file: 'culture-b.fitspec.json', line: 3, column: 40 } } };
+    await send({ type: 'report', report: broken, specUri: 'file:///w/culture-b.fitspec.json', specName: 'culture-b.fitspec.json', version: 3, dirty: true });
+    await page.waitForSelector('.cw-report.cw-is-stale');
+    assert.strictEqual(await page.innerText('.cw-title'), 'Culture B after refit', 'the last good title stays');
+    assert.strictEqual(await page.$$eval('canvas', l => l.length), 2, 'the last good plots stay');
+    assert.ok(await page.$('.cw-stale-part[inert][aria-hidden="true"]'), 'the dimmed part is out of the tab order');
+    assert.strictEqual(await page.$eval('.cw-stale-part', e => getComputedStyle(e).opacity), '0.45');
+    const banner = await page.innerText('.cw-error');
+    assert.ok(banner.includes("'od6'") && banner.includes('last result') && banner.includes('culture-b.fitspec.json:3:40'), banner);
+    assert.ok((await page.innerText('.cw-status-row')).includes('spec error'));
+    await page.click('.cw-error .cw-link');
+    await page.waitForTimeout(50);
+    assert.deepStrictEqual((await posted()).filter(m => m.type === 'reveal').pop(), { type: 'reveal', path: ['data', 'y'], line: 3, column: 40 });
+    const kept = await page.evaluate(() => (window as unknown as { __state: { lastGood?: { title?: string } } }).__state.lastGood?.title);
+    assert.strictEqual(kept, 'Culture B after refit', 'the last good report is persisted for a reload');
+    await page.screenshot({ path: path.join(SHOTS, 'panel-broken.png') });
+    const r4 = sampleReport();
+    r4.title = 'Culture B fixed';
+    await send({ type: 'report', report: r4, specUri: 'file:///w/culture-b.fitspec.json', specName: 'culture-b.fitspec.json', version: 4 });
+    await page.waitForFunction(() => !document.querySelector('.cw-is-stale'));
+    assert.strictEqual(await page.innerText('.cw-title'), 'Culture B fixed');
+    assert.ok(await page.$eval('.cw-error', e => (e as HTMLElement).hidden));
+    assert.deepStrictEqual(problems, []);
+    await ctx.close();
+  });
+
+  it('draws a dose-response series on a log x axis by default, with the plot block\'s titles, units and bands', async function () {
+    // invented 3-decade standards (0.5 .. 500), a 4PL-like curve drawn through them
+    const r = sampleReport();
+    const m = r.models[0]!;
+    const xs = [0.5, 1, 2, 5, 10, 20, 50, 100, 200, 500];
+    const f = (x: number) => 0.05 + 1.9 / (1 + Math.pow(20 / x, 1.1));
+    m.points = { row: xs.map((_, i) => i + 1), x: { hours: xs }, y: xs.map(x => f(x) * 1.01), fitted: xs.map(f), residual: xs.map(x => f(x) * 0.01), standardized: xs.map(() => 0.5), leverage: xs.map(() => 0.2), cooks: xs.map(() => 0.01) };
+    const bx = Array.from({ length: 60 }, (_, i) => 0.5 * Math.pow(1000, i / 59));
+    m.band = { variable: 'hours', x: bx, fit: bx.map(f), ciLow: bx.map(x => f(x) - 0.03), ciHigh: bx.map(x => f(x) + 0.03), piLow: bx.map(x => f(x) - 0.08), piHigh: bx.map(x => f(x) + 0.08) };
+    r.models = [m];
+    r.comparison = null;
+    r.best = m.name;
+    const auto = await openReport([r], 'dose-auto');
+    assert.strictEqual(await auto.page.getAttribute('button.cw-toggle:has-text("log x")', 'aria-pressed'), 'true', 'log x by default (3 decades)');
+    assert.match((await auto.page.getAttribute('button.cw-toggle:has-text("log x")', 'title'))!, /automatic: the values span 3 decades/);
+    assert.strictEqual(await auto.page.getAttribute('button.cw-toggle:has-text("log y")', 'aria-pressed'), 'false', 'y spans less than two decades');
+    // 1-2-5 ticks: the labelled x ticks of the log axis are 1, 2 and 5 of each decade
+    const labels = await auto.page.evaluate(() => (window as unknown as { curvewrightViews: { axisLabels(w: string, a: string): string[] }[] }).curvewrightViews[0]!.axisLabels('main', 'x'));
+    assert.ok(labels.length >= 6, labels.join(' '));
+    for (const l of labels) assert.match(l, /^(1|2|5)(0*|\.0*)?$|^0\.(0*)(1|2|5)$/, `a 1-2-5 tick: ${l} (${labels.join(' ')})`);
+    for (const l of ['1', '10', '100']) assert.ok(labels.includes(l), `decade ${l} labelled (${labels.join(' ')})`);
+    await auto.page.screenshot({ path: path.join(SHOTS, 'dose-log-x.png') });
+    // the user's choice wins over the automatic one
+    await auto.page.click('button.cw-toggle:has-text("log x")');
+    assert.strictEqual(await auto.page.getAttribute('button.cw-toggle:has-text("log x")', 'aria-pressed'), 'false');
+    await auto.ctx.close();
+
+    r.plot = { x: { scale: 'linear', label: 'concentration', unit: 'ng/mL' }, y: { label: 'signal', unit: 'AU' }, bands: ['confidence'] };
+    const fixed = await openReport([r], 'dose-spec', { viewport: { width: 400, height: 800 } });
+    assert.strictEqual(await fixed.page.getAttribute('button.cw-toggle:has-text("log x")', 'aria-pressed'), 'false', 'the spec says linear');
+    const desc = await fixed.page.$eval('.cw-chart-main canvas', c => document.getElementById(c.getAttribute('aria-describedby')!)!.textContent!);
+    assert.match(desc, /Plot of signal \(AU\) against concentration \(ng\/mL\): 10 data points, 1 fitted curve: logistic \(R² 0\.99\d*, n \d+\)\. Best model: logistic\./);
+    const legend = await fixed.page.innerText('.cw-legend');
+    assert.ok(legend.includes('confidence band') && !legend.includes('prediction band'), legend);
+    // 400 px: the chart keeps 16:9, nothing is wider than the window but the tables' own scrollers
+    const box = (await (await fixed.page.$('.cw-chart-main'))!.boundingBox())!;
+    assert.ok(Math.abs(box.width / box.height - 16 / 9) < 0.05, `aspect ${box.width}x${box.height}`);
+    assert.strictEqual(await fixed.page.evaluate(() => document.documentElement.scrollWidth <= window.innerWidth), true, 'no sideways scroll of the page');
+    const sticky = await fixed.page.$eval('.cw-params tbody td:first-child', td => getComputedStyle(td).position);
+    assert.strictEqual(sticky, 'sticky', 'first column stays in view');
+    const titleLines = await fixed.page.$eval('.cw-title', e => Math.round(e.getBoundingClientRect().height / parseFloat(getComputedStyle(e).lineHeight || '20')));
+    assert.ok(titleLines <= 2, `title on at most two lines (${titleLines})`);
+    await fixed.page.screenshot({ path: path.join(SHOTS, 'narrow-400.png'), fullPage: false });
+    assert.deepStrictEqual(fixed.problems, []);
+    await fixed.ctx.close();
+  });
+
+  it('can be used with the keyboard alone: every control in a sensible order, with a visible focus ring', async function () {
+    const { page, problems, ctx } = await openReport([sampleReport()], 'keys');
+    const seen: string[] = [];
+    for (let i = 0; i < 14; i++) {
+      await page.keyboard.press('Tab');
+      seen.push(await page.evaluate(() => {
+        const e = document.activeElement as HTMLElement;
+        const ring = getComputedStyle(e).outlineStyle !== 'none' && parseFloat(getComputedStyle(e).outlineWidth) >= 1;
+        const name = e.getAttribute('aria-label') || e.textContent!.replace(/\s+/g, ' ').trim().slice(0, 24);
+        return `${e.tagName.toLowerCase()}.${e.className.split(' ')[0]}:${name}:${ring ? 'ring' : 'NO RING'}`;
+      }));
+    }
+    assert.ok(seen.every(s => s.endsWith(':ring')), seen.join('\n'));
+    const kinds = seen.map(s => s.split(':')[0]);
+    const first = (k: string) => kinds.findIndex(x => x.startsWith(k));
+    assert.ok(first('button.cw-status') < first('button.cw-chip') && first('button.cw-chip') < first('button.cw-toggle') && first('button.cw-toggle') < first('div.cw-table-wrap'), seen.join('\n'));
     assert.deepStrictEqual(problems, []);
     await ctx.close();
   });

@@ -2,12 +2,15 @@
 // number formatting and the CSV export. The sample report's numbers are invented for rendering, not fit results.
 import * as assert from 'assert';
 import { createHash } from 'crypto';
+import * as fs from 'fs';
+import * as path from 'path';
 import { buildReportHtml, escapeHtml, jsonForScript, panelHtml, scriptForInline } from '../../src/shared/html';
 import { DECIMATE_THRESHOLD, decimateLine, decimateScatter } from '../../webview/decimate';
 import { fmtEstimate, fmtInt, fmtInterval, fmtNum, fmtP, fmtPct, fmtR2 } from '../../src/shared/numberFormat';
 import { formatPath, parametersCsv, reportJson } from '../../webview/render';
+import { groupLine, groupProblems, severityCounts } from '../../webview/problems';
 import { dashFor, withAlpha } from '../../webview/theme';
-import type { ErrorReport, RunResult } from '../../src/engine/report';
+import type { ErrorReport, FitReport, RunResult } from '../../src/engine/report';
 import { panelCss, sampleReport, webviewBundle } from './webview-helpers';
 
 /** The text of the embedded JSON data block of a built report. */
@@ -265,5 +268,29 @@ describe('webview exports and helpers', function () {
     assert.strictEqual(withAlpha('#abc', 1), 'rgba(170, 187, 204, 1)');
     assert.strictEqual(withAlpha('rgb(1, 2, 3)', 0.2), 'rgba(1, 2, 3, 0.2)');
     assert.strictEqual(withAlpha('var(--x)', 0.2), 'var(--x)');
+  });
+});
+
+describe('webview problems: one line per code and severity', () => {
+  // examples/results/capacity-fade.fitresult.json: 4 models asked for predictions at 800 and 1000 beyond the data
+  // (x 0..700); the engine says so once per model and prediction (8 problems), the panel once.
+  const fade = JSON.parse(fs.readFileSync(path.join(__dirname, '..', '..', 'examples', 'results', 'capacity-fade.fitresult.json'), 'utf8')) as FitReport;
+  it('groups the capacity-fade problems: extrapolation once, for 4 models, at 800 and 1000', () => {
+    const groups = groupProblems(fade, fade.best ?? undefined);
+    const total = fade.problems.length + fade.models.reduce((s, m) => s + m.problems.length, 0);
+    assert.strictEqual(groups.reduce((s, g) => s + g.items.length, 0), total, 'every problem in one group');
+    const ex = groups.find(g => g.code === 'extrapolation')!;
+    assert.strictEqual(ex.items.length, 8);
+    assert.strictEqual(ex.models.length, 4);
+    assert.strictEqual(groupLine(ex), 'extrapolation \u2014 4 models, predictions at 800 and 1000');
+    assert.strictEqual(groups[0], ex, 'the warning touching most models first');
+    const sev = groups.map(g => g.severity);
+    assert.deepStrictEqual(sev, [...sev].sort((a, b) => ['error', 'warning', 'info'].indexOf(a) - ['error', 'warning', 'info'].indexOf(b)), 'worst first');
+    const infl = groups.find(g => g.code === 'influential-points')!;
+    assert.match(groupLine(infl), /^influential points \u2014 3 models, rows 1, 2, 3, 13, 14 and 15$/);
+    const corr = groups.find(g => g.code === 'param-correlation')!;
+    assert.strictEqual(groupLine(corr), 'param correlation \u2014 double-exp and poly9, parameters A1 and c8');
+    const c = severityCounts(groups);
+    assert.deepStrictEqual([c.warning.groups, c.warning.problems, c.info.groups], [3, 10, 2]);
   });
 });

@@ -17,11 +17,11 @@ import { fmtInt, fmtNum, fmtR2 } from '../src/shared/numberFormat';
 import { decimateLine, decimateScatter } from './decimate';
 import { boxSwatch, h, setChildren, type Child } from './dom';
 import { pointsOf, type ViewContext, type ViewState } from './state';
-import { dashFor, withAlpha } from './theme';
+import { dashFor, withAlpha, type ThemeColors } from './theme';
 
 Chart.register(ScatterController, LineElement, PointElement, LinearScale, LogarithmicScale, Tooltip, Filler);
 
-type Pt = { x: number; y: number; i: number };
+export type Pt = { x: number; y: number; i: number };
 type Kind = { kind: 'points' | 'curve' | 'band' | 'ref'; model?: string };
 
 function xVariable(m: ModelReport | undefined, pts: PointsReport | undefined): string | undefined {
@@ -87,7 +87,9 @@ export class ChartsView {
   /** the log axes as drawn (the user's choice, the spec's, or automatic); the toggles flip these */
   private effective = { logX: false, logY: false };
 
-  constructor(private readonly ctx: ViewContext, st: () => ViewState, onState: (patch: Partial<ViewState>) => void) {
+  /** `render`: for a saved figure, the pixel ratio of the canvases and a transparent background (no fill). */
+  constructor(private readonly ctx: ViewContext, st: () => ViewState, onState: (patch: Partial<ViewState>) => void,
+    private readonly render: { devicePixelRatio?: number; transparent?: boolean } = {}) {
     const logX = h('button', { class: 'cw-toggle', type: 'button', 'aria-pressed': 'false', title: 'Logarithmic x axis' }, 'log x');
     const logY = h('button', { class: 'cw-toggle', type: 'button', 'aria-pressed': 'false', title: 'Logarithmic y axis' }, 'log y');
     const residKind = h('button', { class: 'cw-toggle', type: 'button', 'aria-pressed': 'false', title: 'Show standardized residuals' }, 'standardized');
@@ -365,6 +367,7 @@ export class ChartsView {
     const background: Plugin<'scatter'> = {
       id: 'cwBackground',
       beforeDraw(chart) {
+        if (view.render.transparent) return;
         const ctx = chart.ctx;
         ctx.save();
         ctx.globalCompositeOperation = 'destination-over';
@@ -379,6 +382,7 @@ export class ChartsView {
       plugins: [background],
       options: {
         animation: false,
+        ...(this.render.devicePixelRatio ? { devicePixelRatio: this.render.devicePixelRatio } : {}),
         parsing: false,
         normalized: true,
         responsive: true,
@@ -454,6 +458,11 @@ export class ChartsView {
     el.style.top = `${top}px`;
   }
 
+  /** The drawn charts, for the SVG writer (exports.ts). */
+  drawn(): { main: Chart<'scatter', Pt[]> | null; resid: Chart<'scatter', Pt[]> | null; residShown: boolean } {
+    return { main: this.mainChart, resid: this.residChart, residShown: !this.el.residBox.hidden };
+  }
+
   /** The labelled ticks of one axis as drawn (for tests and the SVG writer). */
   axisLabels(which: 'main' | 'resid', axis: 'x' | 'y'): string[] {
     const chart = which === 'main' ? this.mainChart : this.residChart;
@@ -498,4 +507,74 @@ export class ChartsView {
     }
     return lines;
   }
+}
+
+// ------------------------------------------------------------------ SVG
+
+/** Text escaped for SVG/XML. */
+export function xmlText(s: string): string {
+  return s.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/>/g, '&gt;').replace(/"/g, '&quot;');
+}
+
+const num = (v: number) => (Math.round(v * 100) / 100).toString();
+
+/**
+ * One drawn chart as SVG elements at (0, dy), in CSS pixels: grid, axes, tick labels and titles from the chart's own
+ * scales, then every dataset from its laid-out elements (bands as filled polygons, curves as polylines with their
+ * dash pattern, points as circles). The same figure as on screen, written with a handful of SVG primitives.
+ */
+export function chartSvg(chart: Chart<'scatter', Pt[]>, t: ThemeColors, dy: number): string {
+  const out: string[] = [];
+  const a = chart.chartArea;
+  const font = `font-family="${xmlText(t.fontFamily)}" font-size="${Math.max(10, Math.round(t.fontSize * 0.9))}"`;
+  out.push(`<g transform="translate(0 ${num(dy)})">`);
+  out.push(`<clipPath id="cw-clip-${dy}"><rect x="${num(a.left)}" y="${num(a.top)}" width="${num(a.right - a.left)}" height="${num(a.bottom - a.top)}"/></clipPath>`);
+  for (const id of ['x', 'y'] as const) {
+    const s = chart.scales[id];
+    if (!s) continue;
+    const log = s.type === 'logarithmic';
+    s.ticks.forEach((k, i) => {
+      const p = s.getPixelForTick(i);
+      const label = Array.isArray(k.label) ? k.label.join(' ') : String(k.label ?? '');
+      const color = log && !label ? withAlpha(t.grid, 0.35) : t.grid;
+      if (id === 'x') out.push(`<line x1="${num(p)}" x2="${num(p)}" y1="${num(a.top)}" y2="${num(a.bottom)}" stroke="${color}" stroke-width="0.8"/>`);
+      else out.push(`<line x1="${num(a.left)}" x2="${num(a.right)}" y1="${num(p)}" y2="${num(p)}" stroke="${color}" stroke-width="0.8"/>`);
+      if (!label) return;
+      if (id === 'x') out.push(`<text x="${num(p)}" y="${num(a.bottom + 16)}" text-anchor="middle" fill="${t.foreground}" ${font}>${xmlText(label)}</text>`);
+      else out.push(`<text x="${num(a.left - 6)}" y="${num(p + 4)}" text-anchor="end" fill="${t.foreground}" ${font}>${xmlText(label)}</text>`);
+    });
+    const title = (s.options as { title?: { text?: string | string[] } }).title?.text;
+    const text = Array.isArray(title) ? title.join(' ') : title ?? '';
+    if (text && id === 'x') out.push(`<text x="${num((a.left + a.right) / 2)}" y="${num(a.bottom + 34)}" text-anchor="middle" fill="${t.muted}" ${font}>${xmlText(text)}</text>`);
+    if (text && id === 'y') out.push(`<text transform="translate(14 ${num((a.top + a.bottom) / 2)}) rotate(-90)" text-anchor="middle" fill="${t.muted}" ${font}>${xmlText(text)}</text>`);
+  }
+  out.push(`<rect x="${num(a.left)}" y="${num(a.top)}" width="${num(a.right - a.left)}" height="${num(a.bottom - a.top)}" fill="none" stroke="${t.border}" stroke-width="1"/>`);
+  const sets = chart.data.datasets;
+  const xy = (di: number) => chart.getDatasetMeta(di).data.map(e => [e.x, e.y] as const).filter(([x, y]) => Number.isFinite(x) && Number.isFinite(y));
+  // draw in Chart.js's order: higher `order` first (underneath)
+  const order = sets.map((d, i) => ({ d, i })).sort((p, q) => (q.d.order ?? 0) - (p.d.order ?? 0));
+  out.push(`<g clip-path="url(#cw-clip-${dy})">`);
+  for (const { d, i } of order) {
+    const pts = xy(i);
+    if (!pts.length) continue;
+    const stroke = typeof d.borderColor === 'string' ? d.borderColor : t.foreground;
+    const dash = Array.isArray(d.borderDash) && d.borderDash.length ? ` stroke-dasharray="${d.borderDash.join(' ')}"` : '';
+    if (d.fill === '+1' && sets[i + 1]) {
+      const low = xy(i + 1).reverse();
+      const fill = typeof d.backgroundColor === 'string' ? d.backgroundColor : 'none';
+      out.push(`<polygon points="${[...pts, ...low].map(([x, y]) => `${num(x)},${num(y)}`).join(' ')}" fill="${fill}" stroke="none"/>`);
+    }
+    if (d.showLine) {
+      const w = typeof d.borderWidth === 'number' ? d.borderWidth : 1;
+      if (w > 0) out.push(`<polyline points="${pts.map(([x, y]) => `${num(x)},${num(y)}`).join(' ')}" fill="none" stroke="${stroke}" stroke-width="${num(w)}"${dash} stroke-linejoin="round"/>`);
+      continue;
+    }
+    const r = typeof d.pointRadius === 'number' ? d.pointRadius : 3;
+    const fill = typeof d.pointBackgroundColor === 'string' ? d.pointBackgroundColor : t.points;
+    const ps = typeof d.pointBorderColor === 'string' ? d.pointBorderColor : 'none';
+    const pw = typeof d.pointBorderWidth === 'number' ? d.pointBorderWidth : 0;
+    out.push(`<g fill="${fill}" stroke="${ps}" stroke-width="${num(pw)}">${pts.map(([x, y]) => `<circle cx="${num(x)}" cy="${num(y)}" r="${num(r)}"/>`).join('')}</g>`);
+  }
+  out.push('</g></g>');
+  return out.join('\n');
 }

@@ -6,7 +6,7 @@ import type { ErrorReport, FitReport, ModelReport, RunResult } from '../src/engi
 import { fmtNum } from '../src/shared/numberFormat';
 import { ChartsView } from './charts';
 import { h, lineSwatch, setChildren, type Child } from './dom';
-import { parametersCsv, plotPng, reportJson } from './exports';
+import { parametersCsv, plotPng, renderFigure, reportJson, type FigureOptions } from './exports';
 import { ProblemsView, SEVERITY_ICON, SEVERITY_WORD, errorBox, groupProblems, severityCounts, type ProblemGroup } from './problems';
 import { baseName, isError, selectedModelOf, type RenderOptions, type ViewContext, type ViewState } from './state';
 import { reportBody } from './tables';
@@ -45,6 +45,7 @@ export class ReportView implements ViewContext {
   private readonly charts: ChartsView;
   private readonly problems: ProblemsView;
   private openModels = new Set<string>();
+  private figure: FigureOptions = { width: 1200, height: 800, scale: 2, background: 'white' };
   private closedModels = new Set<string>();
 
   private readonly el: {
@@ -270,10 +271,7 @@ export class ReportView implements ViewContext {
       const base = baseName(r.spec);
       if (fit && !isError(r)) {
         this.el.actions.append(
-          h('button', { class: 'cw-btn', type: 'button', title: 'Save the plots as a PNG image', onclick: () => {
-            const data = this.plotImage();
-            if (data) onExport({ format: 'png', data, suggestedName: `${base}-plot.png`, model: this.st.selected });
-          } }, 'PNG'),
+          this.figureMenu(fit, base, onExport),
           h('button', { class: 'cw-btn', type: 'button', title: 'Save the parameters of every model as CSV', onclick: () => {
             onExport({ format: 'csv', data: parametersCsv(fit), suggestedName: `${base}-parameters.csv` });
           } }, 'CSV'),
@@ -290,6 +288,32 @@ export class ReportView implements ViewContext {
         h('div', { class: 'cw-sub' }, sub)),
       h('div', { class: 'cw-head-side' }, this.el.busy, this.el.actions),
     );
+  }
+
+  /** "Figure…": size, pixel ratio and background of a saved figure, then PNG or SVG. Remembered while the view lives. */
+  private figureMenu(r: FitReport, base: string, onExport: NonNullable<RenderOptions['onExport']>): HTMLElement {
+    const f = this.figure;
+    const field = (label: string, input: HTMLElement) => h('label', { class: 'cw-field' }, h('span', null, label), input);
+    const width = h('input', { type: 'number', min: 320, max: 6000, step: 10, value: f.width, 'aria-label': 'Figure width in pixels' });
+    const height = h('input', { type: 'number', min: 240, max: 6000, step: 10, value: f.height, 'aria-label': 'Figure height in pixels' });
+    const scale = h('select', { 'aria-label': 'Pixel ratio of the PNG' }, [1, 2, 3].map(s => h('option', { value: s, selected: s === f.scale }, `${s}\u00d7`)));
+    const bg = h('select', { 'aria-label': 'Background of the figure' },
+      (['white', 'transparent', 'theme'] as const).map(b => h('option', { value: b, selected: b === f.background }, b === 'theme' ? 'this theme' : b === 'white' ? 'white' : 'transparent')));
+    const read = (): FigureOptions => {
+      const n = (el: HTMLInputElement, lo: number, d: number) => { const v = Number(el.value); return Number.isFinite(v) && v >= lo ? Math.min(6000, v) : d; };
+      this.figure = { width: n(width, 320, 1200), height: n(height, 240, 800), scale: Number(scale.value) || 2, background: bg.value as FigureOptions['background'] };
+      return this.figure;
+    };
+    const save = (format: 'png' | 'svg') => {
+      const fig = renderFigure(this, r, this.st, read());
+      onExport({ format, data: format === 'png' ? fig.png : fig.svg, suggestedName: `${base}-plot.${format}`, model: this.st.selected });
+    };
+    return h('details', { class: 'cw-figure' },
+      h('summary', { class: 'cw-btn', title: 'Save the plots as an image for a document' }, 'Figure\u2026'),
+      h('div', { class: 'cw-figure-form', role: 'group', 'aria-label': 'Save the figure' },
+        field('width', width), field('height', height), field('scale', scale), field('background', bg),
+        h('button', { class: 'cw-btn', type: 'button', title: 'Save the figure as a PNG image', onclick: () => save('png') }, 'PNG'),
+        h('button', { class: 'cw-btn', type: 'button', title: 'Save the figure as an SVG drawing (text stays text)', onclick: () => save('svg') }, 'SVG')));
   }
 
   private drawChips(r: FitReport, sel: ModelReport | undefined): void {

@@ -137,6 +137,23 @@ export function readTheme(doc: Document = document): ThemeColors {
   };
 }
 
+/**
+ * The colours of a figure saved for a document on white or on a transparent background, whatever the panel's
+ * theme: our light palette (the high-contrast light one from a high-contrast theme), the panel's font and widths.
+ */
+export function paperTheme(t: ThemeColors): ThemeColors {
+  const pal = t.highContrast ? HC_LIGHT : LIGHT;
+  const ciAlpha = t.highContrast ? 0.35 : 0.26, piAlpha = t.highContrast ? 0.18 : 0.1;
+  return {
+    ...t,
+    kind: t.highContrast ? 'high-contrast-light' : 'light',
+    foreground: pal.foreground, muted: pal.muted, background: '#ffffff', border: pal.border, grid: pal.grid,
+    accent: pal.accent, error: pal.error, warning: pal.warning, info: pal.info, ok: pal.ok,
+    series: [...pal.series], points: pal.points,
+    ciFill: withAlpha(pal.series[0]!, ciAlpha), piFill: withAlpha(pal.series[0]!, piAlpha), ciAlpha, piAlpha,
+  };
+}
+
 /** Dash pattern of the i-th model curve, so models differ by more than colour (the first one is solid). */
 export function dashFor(i: number): number[] {
   const patterns: number[][] = [[], [7, 4], [2, 3], [10, 3, 2, 3], [4, 4], [12, 4, 2, 4, 2, 4]];

@@ -155,7 +155,7 @@ export class PanelController extends Disposable implements vscode.WebviewPanelSe
   }
 
   private postReport(p: PanelEntry, ev: FitEvent): void {
-    this.post(p, { type: 'report', report: ev.result, specUri: specKey(ev.uri), specName: vscode.workspace.asRelativePath(ev.uri, true), version: ev.version, dirty: ev.dirty });
+    this.post(p, { type: 'report', report: ev.result, specUri: specKey(ev.uri), specName: vscode.workspace.asRelativePath(ev.uri), version: ev.version, dirty: ev.dirty });
     p.posted = ev.version;
   }
 
@@ -231,7 +231,7 @@ export class PanelController extends Disposable implements vscode.WebviewPanelSe
       if (isDataFile(target, last, p.specUri)) throw new Error('that is the data file of this spec; Curvewright never overwrites data files — choose another name');
       await vscode.workspace.fs.writeFile(target, bytes);
       log.info(`exported ${m.format} to ${target.fsPath}`);
-      this.post(p, { type: 'exported', inReplyTo: m.id, path: vscode.workspace.asRelativePath(target, true) });
+      this.post(p, { type: 'exported', inReplyTo: m.id, path: vscode.workspace.asRelativePath(target) });
     } catch (e) {
       const msg = (e as Error).message;
       void vscode.window.showErrorMessage(`Curvewright could not export: ${msg}`);
@@ -253,7 +253,7 @@ function isDataFile(target: vscode.Uri, r: RunResult | undefined, specUri: vscod
 /** What the webview keeps to find its spec after a reload: the path relative to the workspace (with the folder's
  *  name first in a multi-root workspace), so that no absolute path reaches the panel. */
 export function specKey(uri: vscode.Uri): string {
-  return vscode.workspace.asRelativePath(uri, true);
+  return vscode.workspace.asRelativePath(uri);
 }
 
 /** The spec a key names: a workspace-relative path (specKey) or, from panels saved by earlier versions, a URI. */

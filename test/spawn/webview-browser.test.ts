@@ -352,7 +352,10 @@ describe('webview in a real browser (headless Chromium)', function () {
     await page.click('.cw-problem-warning button.cw-problem-btn >> nth=0');
     await page.click('.cw-row-link >> nth=0');
     await page.click('.cw-chip[data-model="gompertz"]');
-    await page.click('button.cw-btn:has-text("PNG")');
+    await page.click('summary:has-text("Figure")');
+    await page.click('.cw-figure-form button:has-text("PNG")');
+    await page.selectOption('.cw-figure-form select[aria-label="Background of the figure"]', 'transparent');
+    await page.click('.cw-figure-form button:has-text("SVG")');
     await page.click('button.cw-btn:has-text("CSV")');
     await page.click('button.cw-btn:has-text("Refit")');
     await send({ type: 'snapshot?', id: 7 });
@@ -363,7 +366,21 @@ describe('webview in a real browser (headless Chromium)', function () {
     const png = msgs.find(m => m.type === 'export' && m.format === 'png')!;
     assert.ok(String(png.data).startsWith('data:image/png;base64,') && String(png.data).length > 10000, 'PNG data URL');
     assert.strictEqual(png.suggestedName, 'culture-b-plot.png');
-    fs.writeFileSync(path.join(SHOTS, 'export.png'), Buffer.from(String(png.data).split(',')[1]!, 'base64'));
+    const pngBytes = Buffer.from(String(png.data).split(',')[1]!, 'base64');
+    // PNG header: width and height (big-endian at bytes 16 and 20): 1200 x 800 CSS pixels at 2x
+    assert.deepStrictEqual([pngBytes.readUInt32BE(16), pngBytes.readUInt32BE(20)], [2400, 1600], 'the chosen size at the chosen scale');
+    fs.writeFileSync(path.join(SHOTS, 'export.png'), pngBytes);
+    const svg = msgs.find(m => m.type === 'export' && m.format === 'svg')!;
+    const svgText = String(svg.data);
+    assert.strictEqual(svg.suggestedName, 'culture-b-plot.svg');
+    assert.ok(svgText.startsWith('<svg xmlns="http://www.w3.org/2000/svg" width="1200" height="800"'), svgText.slice(0, 120));
+    assert.ok(!/<rect width="100%" height="100%"/.test(svgText), 'transparent: no background rectangle');
+    assert.ok(svgText.includes('>Culture B after refit</text>') && svgText.includes('gompertz (bands, residuals)'), 'the strip names the figure and curves');
+    assert.ok((svgText.match(/<polyline /g) ?? []).length >= 3, 'model curves as polylines');
+    assert.ok((svgText.match(/<polygon /g) ?? []).length >= 2, 'bands as polygons');
+    assert.ok((svgText.match(/<circle /g) ?? []).length >= 2 * 25, 'data points and residuals as circles');
+    assert.ok(svgText.includes('>hours</text>'), 'axis title');
+    fs.writeFileSync(path.join(SHOTS, 'export.svg'), svgText);
     assert.ok(msgs.some(m => m.type === 'refit'), 'refit requested');
     const csv = msgs.find(m => m.type === 'export' && m.format === 'csv')!;
     assert.ok(String(csv.data).startsWith('model,parameter,value'));

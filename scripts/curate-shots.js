@@ -13,6 +13,14 @@ const picks = {
   'context-menu.png': 'fit-csv-from-explorer-1b-context-menu.png',
   'problems-no-convergence.png': 'problems-panel-2-problems.png',
   'live-refit.png': 'edit-and-refit-3-panel-after.png',
+  'panel-live-edit.png': 'panel-figure-live-edit.png',
+  'panel-broken-last-good.png': 'panel-figure-broken-last-good.png',
+  'panel-assay-log-x.png': 'panel-figure-assay-log-x.png',
+  'panel-narrow-400.png': 'panel-figure-narrow-400.png',
+  'panel-theme-light.png': 'panel-figure-theme-light.png',
+  'panel-theme-dark.png': 'panel-figure-theme-dark.png',
+  'panel-theme-hc-dark.png': 'panel-figure-theme-hc-dark.png',
+  'panel-theme-hc-light.png': 'panel-figure-theme-hc-light.png',
 };
 let missing = 0;
 for (const [to, from] of Object.entries(picks)) {

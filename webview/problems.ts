@@ -44,7 +44,9 @@ export function errorBox(ctx: ViewContext, r: ErrorReport, stale = false): Child
     out.push(h('p', { class: 'cw-error-where' }, 'at ',
       canReveal ? h('button', { class: 'cw-link', type: 'button', title: 'Show this place in the spec', onclick: () => reveal!(e.path ?? [], e.location) }, where) : h('code', null, where)));
   }
-  if (e.problems?.length) out.push(problemList(ctx, e.problems.map(p => ({ p }))));
+  // the other problems of the spec (the one in the message is not repeated)
+  const more = (e.problems ?? []).filter(p => p.message !== e.message);
+  if (more.length) out.push(problemList(ctx, more.map(p => ({ p }))));
   return out;
 }
 

@@ -21,7 +21,7 @@ export type ExportFormat = 'png' | 'svg' | 'csv' | 'json';
 /** What the webview stores with `acquireVsCodeApi().setState(...)`, so the host's WebviewPanelSerializer can
  *  restore the panel after a window reload. The webview must set it when it receives a 'report'. */
 export interface WebviewState {
-  /** URI string of the spec the panel shows */
+  /** the spec the panel shows, by its path relative to the workspace (panels saved by 0.1.0: a URI string) */
   specUri: string;
   /** name of the model the user last selected, if any */
   selectedModel?: string;
@@ -33,9 +33,9 @@ export interface WebviewState {
 export interface ReportMessage {
   type: 'report';
   report: RunResult;
-  /** URI string of the spec file (vscode.Uri.toString()) */
+  /** the spec file's path relative to the workspace (the webview keeps it to find its spec after a reload) */
   specUri: string;
-  /** display name of the spec file, e.g. "culture-b.fitspec.json" */
+  /** display name of the spec file: its path relative to the workspace, e.g. "assays/culture-b.fitspec.json" */
   specName: string;
   /** increases with every refit of this spec; the webview may ignore a report older than the one it shows */
   version: number;

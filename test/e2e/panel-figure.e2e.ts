@@ -87,7 +87,9 @@ export async function run(ctx: Ctx): Promise<void> {
     await ctx.shot(`theme-${name}`);
   }
 
-  // about 400 px: the panel alone in the window, without the side bar
+  // about 400 px: the panel alone in the window, without the side bar (keyboard focus back in the workbench first:
+  // the theme loop left it in the webview, which would swallow the palette's F1)
+  await page.locator('.editor-instance .monaco-editor').first().click({ position: { x: 300, y: 30 } });
   await ctx.runCommand('View: Single Column Editor Layout');
   await ctx.runCommand('View: Toggle Primary Side Bar Visibility');
   await ctx.runCommand('Curvewright: Show Fit Panel');

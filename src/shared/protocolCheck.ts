@@ -24,7 +24,7 @@ type Checker<T> = (m: Obj) => T | string;
 
 const isInt = (v: unknown, min = 0): v is number => typeof v === 'number' && Number.isSafeInteger(v) && v >= min;
 const isStr = (v: unknown, max: number): v is string => typeof v === 'string' && v.length <= max;
-const FORMATS: readonly ExportFormat[] = ['png', 'csv', 'json'];
+const FORMATS: readonly ExportFormat[] = ['png', 'svg', 'csv', 'json'];
 
 // Windows device names are refused as a file name with any extension (common practice)
 const DEVICE = /^(con|prn|aux|nul|com[0-9]|lpt[0-9])(\..*)?$/i;
@@ -33,7 +33,7 @@ const DEVICE = /^(con|prn|aux|nul|com[0-9]|lpt[0-9])(\..*)?$/i;
  * Why `name` is not an acceptable suggested export file name for `format`, or null when it is: a plain file name
  * (no folder separators, no "." or ".." and no leading dot, no drive or stream colon, no control characters, no
  * Windows device name, no trailing dot or space), at most MESSAGE_LIMITS.exportName characters, ending in the
- * format's extension (.png, .csv, .json).
+ * format's extension (.png, .svg, .csv, .json).
  */
 export function exportNameProblem(name: string, format: ExportFormat): string | null {
   if (name.length === 0) return 'the name is empty';
@@ -61,7 +61,13 @@ const CHECKS: { [K in WebviewToHost['type']]: Checker<Extract<WebviewToHost, { t
     const p = m.path;
     if (!Array.isArray(p) || p.length > MESSAGE_LIMITS.revealPath) return `path is not a list of at most ${MESSAGE_LIMITS.revealPath} keys`;
     for (const k of p) if (!isStr(k, MESSAGE_LIMITS.pathKey) && !isInt(k)) return 'path holds something other than keys and indices';
-    return { type: 'reveal', path: [...(p as (string | number)[])] };
+    if (m.line !== undefined && !isInt(m.line, 1)) return 'line is not a line number (1, 2, …)';
+    if (m.column !== undefined && !isInt(m.column, 1)) return 'column is not a column number (1, 2, …)';
+    return {
+      type: 'reveal', path: [...(p as (string | number)[])],
+      ...(m.line !== undefined ? { line: m.line as number } : {}),
+      ...(m.column !== undefined ? { column: m.column as number } : {}),
+    };
   },
   revealRow: m => (isInt(m.row, 1) ? { type: 'revealRow', row: m.row } : 'row is not a data row number (1, 2, …)'),
   export: m => {

@@ -18,7 +18,10 @@ describe('webview → host message checks', () => {
   it('accepts every message the panel sends, copying only the known fields', () => {
     assert.deepStrictEqual(ok({ type: 'ready', version: 1 }), { type: 'ready', version: 1 });
     assert.deepStrictEqual(ok({ type: 'reveal', path: ['models', 0, 'params', 'K'] }), { type: 'reveal', path: ['models', 0, 'params', 'K'] });
+    assert.deepStrictEqual(ok({ type: 'reveal', path: [], line: 3, column: 40, x: 1 }), { type: 'reveal', path: [], line: 3, column: 40 });
     assert.deepStrictEqual(ok({ type: 'revealRow', row: 12 }), { type: 'revealRow', row: 12 });
+    assert.deepStrictEqual(ok({ type: 'export', id: 2, format: 'svg', data: '<svg xmlns="http://www.w3.org/2000/svg"></svg>', suggestedName: 'fade-plot.svg' }),
+      { type: 'export', id: 2, format: 'svg', data: '<svg xmlns="http://www.w3.org/2000/svg"></svg>', suggestedName: 'fade-plot.svg' });
     assert.deepStrictEqual(ok({ type: 'refit', extra: 'ignored' }), { type: 'refit' });
     assert.deepStrictEqual(ok({ type: 'log', level: 'warn', message: 'draw failed' }), { type: 'log', level: 'warn', message: 'draw failed' });
     assert.deepStrictEqual(ok({ type: 'snapshot', inReplyTo: 3, version: null, canvases: 2, text: 'x' }), { type: 'snapshot', inReplyTo: 3, version: null, canvases: 2, text: 'x' });
@@ -37,6 +40,9 @@ describe('webview → host message checks', () => {
     refused({ type: 'reveal', path: 'models' }, /path/);
     refused({ type: 'reveal', path: [{ a: 1 }] }, /path/);
     refused({ type: 'reveal', path: new Array(MESSAGE_LIMITS.revealPath + 1).fill(0) }, /path/);
+    refused({ type: 'reveal', path: [], line: 0 }, /line/);
+    refused({ type: 'reveal', path: [], line: 2, column: '4' }, /column/);
+    refused({ type: 'export', id: 1, format: 'svg', suggestedName: 'plot.png' }, /\.svg/);
     refused({ type: 'revealRow', row: 0 }, /row/);
     refused({ type: 'revealRow', row: 1.5 }, /row/);
     refused({ type: 'revealRow', row: Number.POSITIVE_INFINITY }, /row/);

@@ -202,6 +202,42 @@ export class LockBusyError extends Error {
   }
 }
 
+/** Create the lock file with its pid already in it: written beside it, then hard-linked to the lock's name (link
+ *  fails if the name exists, so taking the lock is atomic and no other writer ever reads an empty lock). Where the
+ *  file system has no hard links, an exclusive create then a write. */
+async function takeLock(file: string, lock: string): Promise<boolean> {
+  const body = `${process.pid}\n`;
+  // named like the results' temporaries, so cleanStaleTemps removes one a killed writer left behind
+  const tmp = path.join(path.dirname(file), `.${path.basename(file)}.curvewright-tmp-${process.pid}-lock-${Math.random().toString(36).slice(2, 10)}`);
+  let linked: boolean | null = null;
+  try {
+    await fsp.writeFile(tmp, body, { encoding: 'utf8', flag: 'wx' });
+    try {
+      await fsp.link(tmp, lock);
+      linked = true;
+    } catch (e) {
+      const code = (e as NodeJS.ErrnoException).code;
+      if (code === 'EEXIST') linked = false;
+      else if (code !== 'EPERM' && code !== 'ENOTSUP' && code !== 'EOPNOTSUPP' && code !== 'EXDEV') throw e;
+    }
+  } finally {
+    await fsp.unlink(tmp).catch(() => undefined);
+  }
+  if (linked !== null) return linked;
+  try {
+    const h = await fsp.open(lock, 'wx');
+    try {
+      await h.writeFile(body, 'utf8');
+    } finally {
+      await h.close();
+    }
+    return true;
+  } catch (e) {
+    if ((e as NodeJS.ErrnoException).code !== 'EEXIST') throw e;
+    return false;
+  }
+}
+
 /**
  * Runs `fn` holding an exclusive lock on `file` (created with O_EXCL: one writer at a time, across processes).
  * A lock whose process no longer runs, or older than LOCK_STALE_MS, is removed and taken; a live one is waited for
@@ -211,17 +247,7 @@ export async function withFileLock<T>(file: string, fn: () => Promise<T>, opts: 
   const lock = lockName(file);
   const deadline = Date.now() + (opts.waitMs ?? 10000);
   for (;;) {
-    try {
-      const h = await fsp.open(lock, 'wx');
-      try {
-        await h.writeFile(`${process.pid}\n`, 'utf8');
-      } finally {
-        await h.close();
-      }
-      break;
-    } catch (e) {
-      if ((e as NodeJS.ErrnoException).code !== 'EEXIST') throw e;
-    }
+    if (await takeLock(file, lock)) break;
     let pid: number | null = null;
     let stale = false;
     try {

@@ -38,7 +38,7 @@ import { analyzeModel, compareModels, dataCorrelation, resolveThresholds } from 
 import type { AnalysisOptions, ModelAnalysisInput } from './stats/api';
 import { sidecarPath, splitReport, type OutputPoints } from './pointsFile';
 import { derivedFor } from './stats/derived';
-import { jointFormula, jointModelSpec } from './joint';
+import { jointBuiltModel } from './joint';
 import { sharingTest } from './stats/sharing';
 import { DEFAULTS } from './spec/defaults';
 import { cleanStaleTemps, inputRefusal, LockBusyError, outputRefusal as pathOutputRefusal, realOrSelf, tmpName, withFileLock } from './paths';
@@ -372,31 +372,26 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
     const P: JsonPath = ['models', m.index];
     let base: ReturnType<typeof buildModel>;
     let built: ReturnType<typeof buildModel>;
-    let jf: ReturnType<typeof jointFormula>;
+    let groupVar = '.group';
+    while (prepared.variables.includes(groupVar)) groupVar = `.${groupVar}`;
     try {
       base = buildModel(written, prepared.variables, { X: prepared.X, y: prepared.y });
-      jf = jointFormula(base.formula, base.params, shared, ids, prepared.variables);
       const starts = separate.map(r => (r && r.status === 'converged' ? Object.fromEntries(Object.entries(r.params).map(([k, v]) => [k, v.value])) : null));
-      const jointSpec = jointModelSpec(m.name, jf, base.params, shared, ids, written.params, starts);
-      built = buildModel({ ...jointSpec, kind: 'formula', index: m.index, solver: m.solver } as NormalizedSpec['models'][number], [...prepared.variables, ...jf.indicators], { X: prepared.X, y: prepared.y });
+      built = jointBuiltModel(base, shared, ids, starts, groupVar);
     } catch (e) {
       if (e instanceof FormulaError || e instanceof DataError || isUserError(e))
         return errorReport(name, `model '${m.name}' (joint fit of the groups): ${(e as Error).message}`, { path: P, location: locationOf(text, name, P) });
       return { report: { ...failedModel(m, m.index, e, 'building the joint fit of the groups'), group: null, shared } };
     }
-    const indicatorX = jf.indicators.map((_, g) => {
-      const col = new Float64Array(prepared.y.length);
-      for (let j = 0; j < col.length; j++) col[j] = of[j] === g ? 1 : 0;
-      return col;
-    });
-    const X = [...prepared.X, ...indicatorX];
+    // the group number of each row: the joint model reads each row with its own group's parameters (joint.ts)
+    const X = [...prepared.X, Float64Array.from(of)];
     const fitData = { X, y: prepared.y, w: wFit };
     try {
       const result = fitModel(built, fitData, { maxIterations: m.solver.maxIterations, seconds: m.solver.seconds, multiStart: m.solver.multiStart, seed: RUN_SEED, shouldStop: opts.shouldStop });
       const input: ModelAnalysisInput = {
         index: m.index, name: m.name, kind: built.kind, formula: built.formula, builtin: undefined, degree: undefined,
         compiled: built.compiled, params: built.params, lower: built.lower, upper: built.upper, fixed: built.fixed,
-        linear: built.compiled.linear, variables: [...prepared.variables, ...jf.indicators], X, y: prepared.y, w: wFit,
+        linear: built.compiled.linear, variables: [...prepared.variables, groupVar], X, y: prepared.y, w: wFit,
         count: prepared.count, precision: prepared.w, rows: prepared.rows, sigmaMode: spec.data.sigmaMode, result,
         startValues: result.startValues, startSource: result.startSource, confidence: spec.confidence,
         // predictions and inverse predictions need a group: not computed for a joint fit (see docs/fitspec.md)

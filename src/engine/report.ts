@@ -582,6 +582,19 @@ export interface ErrorReport {
 /** What running a spec produces: a FitReport, or an ErrorReport when nothing could be fitted. */
 export type RunResult = FitReport | ErrorReport;
 
+/**
+ * The separate fits of one group of a spec with data.groupBy (not part of a FitReport): what a worker of the CLI
+ * pool sends back for the groups it fitted (run.ts runSpecGroups); structured-clone safe.
+ */
+export interface GroupFit {
+  models: ModelReport[];
+  /** separate fits of models with `shared`: the starts and baseline of the joint fit, not reported */
+  hidden: { index: number; report: ModelReport }[];
+  comparison: GroupComparison;
+  /** problems of the run found while fitting this group (a comparison that failed) */
+  problems: Problem[];
+}
+
 /** True when the run produced no fit (narrows a RunResult). */
 export function isErrorReport(r: RunResult): r is ErrorReport {
   return (r as ErrorReport).error !== undefined;

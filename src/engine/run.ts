@@ -14,6 +14,7 @@ import {
   type FileLocation,
   type FitReport,
   type GroupComparison,
+  type GroupFit,
   type SharingTest,
   type GroupReport,
   type JsonPath,
@@ -58,7 +59,13 @@ export interface RunOptions {
   onProgress?: (msg: string) => void;
   /** analysis switches and time budgets (default ANALYSIS_DEFAULTS) */
   analysis?: AnalysisOptions;
+  /**
+   * fits the groups of data.groupBy elsewhere (the CLI's worker pool): called with the number of groups, resolves to
+   * each group's fits in the groups' order (what runSpecGroups gives for them), or an ErrorReport
+   */
+  groupRunner?: (groups: number) => Promise<GroupFit[] | ErrorReport>;
 }
+
 
 /**
  * Time budgets of profiling and cross-validation per model. Generous on purpose: a budget that runs out makes the
@@ -182,7 +189,28 @@ export async function runSpecFile(specPath: string, opts: RunOptions = {}): Prom
   }
   if (text.charCodeAt(0) === 0xfeff) text = text.slice(1);
   try {
-    return await runSpecText(specPath, text, opts);
+    return (await runSpecText(specPath, text, opts)) as RunResult;
+  } catch (e) {
+    if (e instanceof DataError) return errorReport(name, e.message, { path: e.path, location: e.location });
+    if (e instanceof FormulaError) return errorReport(name, e.message);
+    return errorReport(name, internalMessage(e, `running ${specPath}`));
+  }
+}
+
+/**
+ * The separate fits of the groups at `indices` (positions in the groups' order) of a spec with data.groupBy: the same
+ * computation as runSpecFile makes for them, for a worker of the CLI pool. Resolves to an ErrorReport where
+ * runSpecFile would.
+ */
+export async function runSpecGroups(specPath: string, opts: Omit<RunOptions, 'groupRunner'>, indices: number[]): Promise<GroupFit[] | ErrorReport> {
+  const name = specDisplayName(specPath);
+  try {
+    let text = opts.specText ?? (await fsp.readFile(specPath, 'utf8'));
+    if (text.charCodeAt(0) === 0xfeff) text = text.slice(1);
+    const r = await runSpecText(specPath, text, { ...opts, onlyGroups: indices });
+    if ('groupFits' in r) return r.groupFits;
+    if ('error' in r) return r;
+    return errorReport(name, internalMessage(new Error('the spec has no groups'), `fitting groups of ${specPath}`));
   } catch (e) {
     if (e instanceof DataError) return errorReport(name, e.message, { path: e.path, location: e.location });
     if (e instanceof FormulaError) return errorReport(name, e.message);
@@ -195,7 +223,7 @@ export function runSpec(specText: string, specPath: string, opts: Omit<RunOption
   return runSpecFile(specPath, { ...opts, specText });
 }
 
-async function runSpecText(specPath: string, text: string, opts: RunOptions): Promise<RunResult> {
+async function runSpecText(specPath: string, text: string, opts: RunOptions & { onlyGroups?: number[] }): Promise<RunResult | { groupFits: GroupFit[] }> {
   const name = specDisplayName(specPath);
   const specHash = sha256(text);
   const progress = opts.onProgress ?? (() => undefined);
@@ -411,7 +439,7 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
 
   // 5. comparison (with groups: within each group)
   const runProblems: Problem[] = [];
-  const compare = (analysed: Fitted['analysed'], inGroup: string): FitReport['comparison'] => {
+  const compare = (analysed: Fitted['analysed'], inGroup: string, sink: Problem[] = runProblems): FitReport['comparison'] => {
     if (analysed.length === 0) return null;
     try {
       const c = compareModels(analysed.map(a => a.input), analysed.map(a => a.report), thresholds);
@@ -423,7 +451,7 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
       c.reason = c.best ? `${c.reason.replace(' is the only model that converged.', ' is the only model ranked by AICc.')} ${note}` : note;
       return c;
     } catch (e) {
-      runProblems.push({ code: 'comparison-failed', severity: 'warning', message: internalMessage(e, `comparing the models${inGroup}`), path: ['models'] });
+      sink.push({ code: 'comparison-failed', severity: 'warning', message: internalMessage(e, `comparing the models${inGroup}`), path: ['models'] });
       return null;
     }
   };
@@ -442,18 +470,47 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
     groups = G.ids.map((id, g) => ({ id, key: G.keys[g], rows: G.rows[g], used: members[g].length }));
     const byGroup: Record<string, GroupComparison> = {};
     const hiddenOf = new Map<number, (ModelReport | null)[]>();
-    for (let g = 0; g < G.ids.length; g++) {
-      if (opts.shouldStop?.()) break;
+    // each group's separate fits: here, or on the worker pool (opts.groupRunner), the same computation either way
+    const fitGroup = (g: number): GroupFit | ErrorReport => {
       const fitted = fitAll(subset(prepared, members[g]), G.ids[g]);
       if ('error' in fitted) return fitted;
-      models.push(...fitted.models);
-      for (const h of fitted.hidden) {
+      const problems: Problem[] = [];
+      const c = compare(fitted.analysed, ` in group '${G.ids[g]}'`, problems);
+      const comparisonOf = c ?? { ranking: [], fTests: [], best: null, reason: `No model could be fitted in group '${G.ids[g]}', so none can be recommended.` };
+      return { models: fitted.models, hidden: fitted.hidden, comparison: comparisonOf, problems };
+    };
+    if (opts.onlyGroups) {
+      const groupFits: GroupFit[] = [];
+      for (const g of opts.onlyGroups) {
+        if (opts.shouldStop?.()) break;
+        const fit = fitGroup(g);
+        if ('error' in fit) return fit;
+        groupFits.push(fit);
+      }
+      return { groupFits };
+    }
+    let fits: GroupFit[] = [];
+    if (opts.groupRunner && G.ids.length > 1) {
+      progress(`fitting ${G.ids.length} groups on the worker pool`);
+      const r = await opts.groupRunner(G.ids.length);
+      if ('error' in r) return r;
+      fits = r;
+    } else
+      for (let g = 0; g < G.ids.length; g++) {
+        if (opts.shouldStop?.()) break;
+        const fit = fitGroup(g);
+        if ('error' in fit) return fit;
+        fits.push(fit);
+      }
+    fits.forEach((fit, g) => {
+      models.push(...fit.models);
+      for (const h of fit.hidden) {
         if (!hiddenOf.has(h.index)) hiddenOf.set(h.index, G.ids.map(() => null));
         hiddenOf.get(h.index)![g] = h.report;
       }
-      const c = compare(fitted.analysed, ` in group '${G.ids[g]}'`);
-      byGroup[G.ids[g]] = c ?? { ranking: [], fTests: [], best: null, reason: `No model could be fitted in group '${G.ids[g]}', so none can be recommended.` };
-    }
+      runProblems.push(...fit.problems);
+      byGroup[G.ids[g]] = fit.comparison;
+    });
     comparison = {
       ranking: [],
       fTests: [],

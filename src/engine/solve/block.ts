@@ -6,7 +6,7 @@
 // δ_g = −R_g⁻¹(c_g + T_g δ_S). The same factors give (AᵀA)⁻¹ block by block and the hat values.
 import type { LsqProblem, SolveOptions, SolveResult } from './types';
 import type { Termination } from '../report';
-import { CONVERGED, prepare, type Prepared, solutionInfo, stopReason } from './problem';
+import { CONVERGED, prepare, type Prepared, stopReason } from './problem';
 import { EPS, rankTolerance } from './linalg';
 import { DEFAULTS } from '../spec/defaults';
 
@@ -213,15 +213,19 @@ function stepOf(F: Factors, p: number): Float64Array {
   return delta;
 }
 
-/** diagonal of R small against its column's norm (numerical rank below full) */
-function deficient(F: Factors, colNorm: Float64Array, n: number): boolean {
-  if (!F.full) return true;
-  const check = (Rk: Float64Array, k: number, idx: number[]): boolean => {
-    for (let j = 0; j < k; j++) if (!(Math.abs(Rk[j * k + j]) > rankTolerance(n, k) * 100 * colNorm[idx[j]])) return true;
-    return false;
+/**
+ * The parameters (θ indices) whose diagonal of R is negligible against their column's norm: each is (numerically) in
+ * the span of the columns factored before it — its group's earlier parameters, or for a shared one every group's
+ * own columns and the earlier shared ones. Empty at full rank.
+ */
+function deficientColumns(F: Factors, colNorm: Float64Array, n: number): number[] {
+  const out: number[] = [];
+  const check = (Rk: Float64Array, k: number, idx: number[]): void => {
+    for (let j = 0; j < k; j++) if (!(Math.abs(Rk[j * k + j]) > rankTolerance(n, k) * 100 * colNorm[idx[j]])) out.push(idx[j]);
   };
-  for (let g = 0; g < F.L.length; g++) if (check(F.R[g], F.L[g].length, F.L[g])) return true;
-  return check(F.RS, F.S.length, F.S);
+  for (let g = 0; g < F.L.length; g++) check(F.R[g], F.L[g].length, F.L[g]);
+  check(F.RS, F.S.length, F.S);
+  return out;
 }
 
 export interface BlockWork {
@@ -459,17 +463,9 @@ function finishBlock(
     const use = isFree;
     const { norm } = gradient(bs, lay, A, r, p);
     const F = factor(lay, bs, A, r, use, new Float64Array(p), 0);
-    if (deficient(F, norm, n)) {
-      // rare: the dense rank analysis names the parameters that cannot be determined
-      const Aw = new Float64Array(n * P.q);
-      const J = getJ();
-      P.free.forEach((j, k) => {
-        for (let i = 0; i < n; i++) Aw[k * n + i] = P.sw[i] * J[j * n + i];
-      });
-      const info = solutionInfo(P, theta, Aw, n);
-      rank = info.rank;
-      unidentifiable = info.unidentifiable;
-    }
+    // rank from the block factors (never a dense rank analysis: with many groups it would cost minutes)
+    unidentifiable = deficientColumns(F, norm, n).sort((a, b) => a - b);
+    rank = P.q - unidentifiable.length;
   }
   if (ok && CONVERGED.includes(termination) && rank < P.q) {
     termination = 'singular';
@@ -515,7 +511,7 @@ export function blockCovariance(bs: BlockStructure, J: Float64Array, n: number, 
     bs.local[bs.group[i]].forEach((j, t) => (A[(lay.ps + t) * n + i] /= norm[j] || 1));
   }
   const F = factor(lay, bs, A, new Float64Array(n), use, new Float64Array(p), 0);
-  if (deficient(F, Float64Array.from({ length: p }, () => 1), n)) return null;
+  if (!F.full || deficientColumns(F, Float64Array.from({ length: p }, () => 1), n).length) return null;
   const qS = F.S.length;
   // C_S = R_S⁻¹ R_S⁻ᵀ (column-major qS×qS)
   const RSinv = new Float64Array(qS * qS);

@@ -300,6 +300,8 @@ export interface BandReport {
 export interface PredictionReport {
   /** a number for a single x variable, an object for several */
   x: number | Record<string, number>;
+  /** a joint fit (models[].shared): the group whose parameters the prediction uses */
+  group?: string;
   y: number | null;
   ci: [number, number] | null;
   pi: [number, number] | null;
@@ -314,6 +316,8 @@ export interface PredictionReport {
 /** The x values at which the model reaches one y from the spec's `solveFor`, each with its interval. */
 export interface InverseReport {
   y: number;
+  /** a joint fit (models[].shared): the group whose curve is read */
+  group?: string;
   roots: { x: number; interval: [number | null, number | null] }[];
   extrapolated: boolean;
   /** [a, b] where the curve equals y over a whole stretch of x (no single root there) */

@@ -422,8 +422,8 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions & { 
         linear: built.compiled.linear, variables: [...prepared.variables, groupVar], X, y: prepared.y, w: wFit,
         count: prepared.count, precision: prepared.w, rows: prepared.rows, sigmaMode: spec.data.sigmaMode, result,
         startValues: result.startValues, startSource: result.startSource, confidence: spec.confidence,
-        // predictions and inverse predictions need a group: not computed for a joint fit (see docs/fitspec.md)
-        predict: [], solveFor: [], predictWeight: spec.predictWeight, thresholds,
+        // predictions and inverse predictions: for every group, at its own parameters
+        predict: spec.predict, solveFor: spec.solveFor, jointGroups: { ids, variables: prepared.variables }, predictWeight: spec.predictWeight, thresholds,
         solverOptions: { maxIterations: m.solver.maxIterations, seconds: m.solver.seconds },
         shouldStop: opts.shouldStop, options: { ...ANALYSIS_DEFAULTS, ...opts.analysis },
       };

@@ -13,7 +13,7 @@ import { runsByPosition } from './runs';
 import { profileIntervals } from './profile';
 import { crossValidate } from './crossval';
 import type { PredictionContext } from './predict';
-import { predictionsAndInverse } from './predictReport';
+import { groupTargets, predictionsAndInverse } from './predictReport';
 import { DEFAULTS } from '../spec/defaults';
 import { emptyStats, fitStatistics } from './fitStats';
 import { expandByCount, identityOrder, lsqProblem, orderByX } from './analysisData';
@@ -270,7 +270,11 @@ export function analyzeModel(input: ModelAnalysisInput): ModelReport {
 
   // ------------------------------------------------------------ band, predictions, inverse
   const pctx: PredictionContext = { compiled, theta, cov, free, q: qWald, scale, X, w: wPrec, predictWeight: input.predictWeight };
-  predictionsAndInverse(input, report, pctx, opts.bandPoints ?? DEFAULTS.analysis.bandPoints, f, qWald);
+  // a joint fit: predictions and inverse predictions for each group, at its own parameters (full covariance)
+  if (input.jointGroups)
+    for (const t of groupTargets(pctx, input.jointGroups, input.name, f))
+      predictionsAndInverse({ ...input, name: t.who, variables: t.variables, X: t.pctx.X }, report, t.pctx, 0, t.f, qWald, t.group);
+  else predictionsAndInverse(input, report, pctx, opts.bandPoints ?? DEFAULTS.analysis.bandPoints, f, qWald);
 
   // ------------------------------------------------------------ problems
   detectProblems(input, report, { rank, dof, unidentifiable, se, openProfile, profiled, h, n, pFree, runs });

@@ -6,8 +6,13 @@
 // Run: npx tsx bench/joint-fit.ts [groups ...]   (default 96 1000; the dense peer is skipped above 200 groups: its
 // n × p Jacobian alone would be 12 000 × 2 002 doubles and its QR about 5·10^10 flops per iteration)
 //
-// Measured 2026-12-02 (UTC) on 2 cores shared with other jobs (±30 % noise), CPU seconds:
-//   see the table printed by the run; figures quoted in docs/fitspec.md ("How it is fitted").
+// Measured 2026-12-02 17:55 UTC on 2 cores shared with other jobs (load ≈ 15, so ±30 % noise), CPU seconds:
+//   groups  params  solve block  solve dense  ratio  cov block  cov dense  ratio  full run  profiled
+//       96     194        0.050        1.261  0.040      0.058      1.794  0.032     3.102   194/194
+//     1000    2002        0.074            —      —      0.899          —      —    19.037  100/2002
+// Before the block path (commit 0371940, dense LM on the indicator formula) the 96-group full run took 16.5 s CPU
+// (15.4 s of it the joint fit) and some profile intervals ran into the 10 s time guard.
+// Figures quoted in docs/fitspec.md ("How it is fitted").
 import * as fs from 'fs';
 import * as os from 'os';
 import * as path from 'path';

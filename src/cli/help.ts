@@ -110,6 +110,7 @@ export const COMMANDS: CommandDef[] = [
     summary: 'write a starter fit spec for a CSV file, with candidate models chosen from the shape of the data',
     details: [
       'x defaults to the first numeric column that rises or falls steadily, y to the next numeric column.',
+      'A long-format file (an id column of text or whole numbers, few distinct values, x repeated across them) gets data.groupBy on that column: one curve per id.',
       'The spec is written next to the CSV file as <name>.fitspec.json unless -o is given; an existing file is never overwritten.',
     ],
     options: [

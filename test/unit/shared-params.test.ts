@@ -113,7 +113,7 @@ describe('models[].shared: joint fit of the groups', function () {
       // gradient of K/(1+e) in (K[g], r, x0), other entries 0; Var = gᵀ V g with V the reported covariance
       const g = order.map(k => (k === `K[${p.group}]` ? 1 / (1 + e) : k === 'r' ? (K * e * (x - x0)) / (1 + e) ** 2 : k === 'x0' ? (-K * e * rr) / (1 + e) ** 2 : 0));
       let varFit = 0;
-      for (let a = 0; a < g.length; a++) for (let b = 0; b < g.length; b++) varFit += g[a] * j.covariance![a][b] * g[b];
+      for (let a = 0; a < g.length; a++) for (let b = 0; b < g.length; b++) varFit += g[a] * (j.covariance![a][b] as number) * g[b];
       const half = (p.ci![1] - p.ci![0]) / 2;
       // half-width = t(0.975, dof of the joint fit) · √(gᵀVg)
       assert.ok(Math.abs(half - tQuantile(0.975, dof) * Math.sqrt(varFit)) <= 1e-9 * half, `half-width ${half} at ${dof} dof`);

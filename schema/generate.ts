@@ -410,6 +410,7 @@ export function fitreportSchema(): Schema {
     ci: nullableInterval('Confidence interval of the mean.'),
     pi: nullableInterval('Prediction interval of a new observation.'),
     extrapolated: bool('x lies outside the fitted range.'),
+    group: str('A joint fit (models[].shared): the group whose parameters the prediction uses.'),
     weight: obj('Weight of the new observation in pi (weighted fits, or spec predictWeight).', {
       value: num('The weight.'),
       from: { enum: ['spec', 'nearest'], description: '"spec": predictWeight; "nearest": the weight of the observation nearest in x.' },
@@ -417,6 +418,7 @@ export function fitreportSchema(): Schema {
   }, ['x', 'y', 'ci', 'pi', 'extrapolated']);
   const inverse = obj('x values read off the curve at one y.', {
     y: num('The y value.'),
+    group: str('A joint fit (models[].shared): the group whose curve is read.'),
     roots: arr('Solutions x, each with an interval.', obj('One root.', { x: num('Root.'), interval: numOrNull2('Interval of the root.') }, ['x', 'interval'])),
     extrapolated: bool('y lies outside the fitted range.'),
   }, ['y', 'roots', 'extrapolated']);

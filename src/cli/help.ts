@@ -35,7 +35,7 @@ export const COMMANDS: CommandDef[] = [
     options: [
       { name: 'json', help: 'print one FitReport per line (JSON), in the order the specs were given, instead of the summary (which lists specs in natural order: chick2 before chick10)' },
       { name: 'verbose', help: 'list the info notes in the summary too (by default only their count is shown)' },
-      { name: 'jobs', short: 'j', value: true, meta: 'N', help: 'run up to N specs at once on worker threads (default: number of CPUs)' },
+      { name: 'jobs', short: 'j', value: true, meta: 'N', help: 'run up to N specs at once on worker threads (default: number of CPUs); with fewer specs than N, the groups of a spec (data.groupBy) are fitted on them, byte-identically' },
       ROOT,
       TRUST,
       HELP,
@@ -57,7 +57,7 @@ export const COMMANDS: CommandDef[] = [
       { name: 'json', help: 'print one FitReport per line (JSON) with its "check" verdict; the summary goes to stderr' },
       { name: 'format', value: true, meta: 'github', help: 'also print a GitHub Actions annotation (::error file=…,line=…,col=…::…) per failure and warning' },
       { name: 'shard', value: true, meta: 'K/N', help: 'check only the K-th of N shards of the specs (for a CI matrix; combine with `curvewright merge`)' },
-      { name: 'jobs', short: 'j', value: true, meta: 'N', help: 'run up to N specs at once on worker threads (default: number of CPUs)' },
+      { name: 'jobs', short: 'j', value: true, meta: 'N', help: 'run up to N specs at once on worker threads (default: number of CPUs); with fewer specs than N, the groups of a spec (data.groupBy) are fitted on them, byte-identically' },
       ROOT,
       TRUST,
       HELP,
@@ -98,7 +98,7 @@ export const COMMANDS: CommandDef[] = [
     ],
     options: [
       { name: 'output', short: 'o', value: true, meta: 'FILE', help: 'HTML file to write (default: report.html)' },
-      { name: 'jobs', short: 'j', value: true, meta: 'N', help: 'run up to N specs at once on worker threads (default: number of CPUs)' },
+      { name: 'jobs', short: 'j', value: true, meta: 'N', help: 'run up to N specs at once on worker threads (default: number of CPUs); with fewer specs than N, the groups of a spec (data.groupBy) are fitted on them, byte-identically' },
       ROOT,
       TRUST,
       HELP,
@@ -110,6 +110,7 @@ export const COMMANDS: CommandDef[] = [
     summary: 'write a starter fit spec for a CSV file, with candidate models chosen from the shape of the data',
     details: [
       'x defaults to the first numeric column that rises or falls steadily, y to the next numeric column.',
+      'A long-format file (an id column of text or whole numbers, few distinct values, x repeated across them) gets data.groupBy on that column: one curve per id.',
       'The spec is written next to the CSV file as <name>.fitspec.json unless -o is given; an existing file is never overwritten.',
     ],
     options: [

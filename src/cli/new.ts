@@ -45,10 +45,10 @@ export async function newCommand(parsed: Parsed, io: Io): Promise<number> {
   if (!specAbs.endsWith('.json')) throw new UsageError(`-o ${specGiven}: a spec file name ends in .fitspec.json`);
   if (fs.existsSync(specAbs)) throw new UsageError(`${shown(specAbs, io.cwd)} already exists — choose another name with -o, or delete it first`);
   const models = suggestion.candidates.filter(c => c.recommended).map(c => c.model);
-  const text = starterSpecText({ csvPath: csv, specPath: specAbs, x: suggestion.x, y: suggestion.y, models, ...(suggestion.decimal ? { decimal: suggestion.decimal } : {}) });
+  const text = starterSpecText({ csvPath: csv, specPath: specAbs, x: suggestion.x, y: suggestion.y, models, ...(suggestion.decimal ? { decimal: suggestion.decimal } : {}), ...(suggestion.groupBy ? { groupBy: suggestion.groupBy } : {}) });
   await writeAtomic(specAbs, text);
   io.out(
-    `wrote ${shown(specAbs, io.cwd)}: x = ${suggestion.x}, y = ${suggestion.y}, models: ${models.map(m => m.name).join(', ')}\n` +
+    `wrote ${shown(specAbs, io.cwd)}: x = ${suggestion.x}, y = ${suggestion.y}${suggestion.groupBy ? `, groupBy = ${suggestion.groupBy} (one curve per value)` : ''}, models: ${models.map(m => m.name).join(', ')}\n` +
       `  next: curvewright fit ${shown(specAbs, io.cwd)}`,
   );
   return 0;

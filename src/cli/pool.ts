@@ -1,11 +1,13 @@
 // Runs many specs in parallel on worker threads. The workers run this same bundle (dist/cli.js) in worker mode
-// (workerData.curvewrightCliWorker), so no extra entry point is needed. Unbundled (tests under tsx) or with one
-// job, specs run in this thread instead.
+// (workerData.curvewrightCliWorker), so no extra entry point is needed. With fewer specs than jobs, each spec runs in
+// this thread and the separate fits of its groups (data.groupBy) are spread over the workers in chunks of consecutive
+// groups, put back in the groups' order: the report is byte-identical whatever the number of workers. Unbundled
+// (tests under tsx, unless CURVEWRIGHT_POOL_WORKER names a worker script) or with one job, everything runs in this thread.
 import * as os from 'os';
 import { Worker, isMainThread, parentPort, workerData } from 'worker_threads';
-import { runSpecFile } from '../engine/run';
-import type { RunResult } from '../engine/report';
-import { PROTOCOL_VERSION, type CliJobRequest, type CliWorkerToPool } from '../shared/protocol';
+import { runSpecFile, runSpecGroups } from '../engine/run';
+import type { ErrorReport, GroupFit, RunResult } from '../engine/report';
+import { PROTOCOL_VERSION, type CliGroupsRequest, type CliJobRequest, type CliPoolToWorker, type CliWorkerToPool } from '../shared/protocol';
 
 export const WORKER_FLAG = 'curvewrightCliWorker';
 
@@ -21,10 +23,14 @@ export function isCliWorker(): boolean {
 /** The worker side: answer each job with its RunResult. */
 export function startCliWorker(): void {
   const port = parentPort!;
-  port.on('message', async (job: CliJobRequest) => {
+  port.on('message', async (job: CliPoolToWorker) => {
     let reply: CliWorkerToPool;
+    const ropts = { workspaceRoot: job.workspaceRoot, trustPaths: job.trustPaths === true };
     try {
-      reply = { type: 'result', inReplyTo: job.id, result: await runSpecFile(job.specPath, { workspaceRoot: job.workspaceRoot, trustPaths: job.trustPaths === true }) };
+      reply =
+        job.type === 'groups'
+          ? { type: 'groups-result', inReplyTo: job.id, result: await runSpecGroups(job.specPath, ropts, job.groups) }
+          : { type: 'result', inReplyTo: job.id, result: await runSpecFile(job.specPath, ropts) };
     } catch (e) {
       reply = { type: 'failure', inReplyTo: job.id, message: e instanceof Error ? e.stack ?? e.message : String(e) };
     }
@@ -40,6 +46,94 @@ export class InternalError extends Error {
   }
 }
 
+/** Chunks of consecutive group positions, about four per worker so that uneven groups balance. */
+export function groupChunks(groups: number, jobs: number): number[][] {
+  const size = Math.max(1, Math.ceil(groups / (4 * jobs)));
+  const out: number[][] = [];
+  for (let g = 0; g < groups; g += size) out.push(Array.from({ length: Math.min(size, groups - g) }, (_, k) => g + k));
+  return out;
+}
+
+type Reply = { result: RunResult } | { groups: GroupFit[] | ErrorReport };
+
+/** Up to `jobs` worker threads (started on demand) answering requests; each request goes to the next idle worker. */
+class Pool {
+  private readonly workers: Worker[] = [];
+  private readonly idle: Worker[] = [];
+  private readonly queue: { req: CliPoolToWorker; resolve: (r: Reply) => void; reject: (e: Error) => void }[] = [];
+  private readonly pending = new Map<number, { resolve: (r: Reply) => void; reject: (e: Error) => void; what: string }>();
+  private nextId = 0;
+  private broken: Error | null = null;
+
+  constructor(
+    private readonly jobs: number,
+    private readonly script: string,
+  ) {}
+
+  private spawn(): void {
+    {
+      const w = new Worker(this.script, { workerData: { [WORKER_FLAG]: true } });
+      this.workers.push(w);
+      w.on('message', (m: CliWorkerToPool) => {
+        if (m.type === 'ready') {
+          // the workers run this same bundle, so a mismatch means a broken build, not a user error
+          if (m.version !== PROTOCOL_VERSION) this.fail(new InternalError(`a worker speaks protocol ${m.version}, this CLI ${PROTOCOL_VERSION}`));
+          else this.release(w);
+          return;
+        }
+        const p = this.pending.get(m.inReplyTo);
+        if (!p) return;
+        this.pending.delete(m.inReplyTo);
+        if (m.type === 'failure') p.reject(new InternalError(`a worker failed on ${p.what}`, m.message));
+        else p.resolve(m.type === 'result' ? { result: m.result } : { groups: m.result });
+        this.release(w);
+      });
+      w.on('error', e => this.fail(new InternalError(`a worker thread stopped: ${e.message}`, e.stack)));
+      w.on('exit', code => {
+        if (code !== 0 && this.pending.size) this.fail(new InternalError(`a worker thread exited with code ${code}`));
+      });
+    }
+  }
+
+  private fail(e: Error): void {
+    this.broken ??= e;
+    for (const p of this.pending.values()) p.reject(e);
+    this.pending.clear();
+    for (const q of this.queue.splice(0)) q.reject(e);
+  }
+
+  private release(w: Worker): void {
+    const q = this.queue.shift();
+    if (!q) {
+      this.idle.push(w);
+      return;
+    }
+    this.pending.set(q.req.id, { resolve: q.resolve, reject: q.reject, what: q.req.specPath });
+    w.postMessage(q.req);
+  }
+
+  request(req: Omit<CliJobRequest, 'id'> | Omit<CliGroupsRequest, 'id'>): Promise<Reply> {
+    if (this.broken) return Promise.reject(this.broken);
+    const full = { ...req, id: this.nextId++ } as CliPoolToWorker;
+    return new Promise<Reply>((resolve, reject) => {
+      this.queue.push({ req: full, resolve, reject });
+      const w = this.idle.shift();
+      if (w) this.release(w);
+      else if (this.workers.length < this.jobs) this.spawn();
+    });
+  }
+
+  async close(): Promise<void> {
+    await Promise.all(this.workers.map(w => w.terminate()));
+  }
+}
+
+/** The script workers run: this bundle; under tsx (tests) a compiled CLI named by CURVEWRIGHT_POOL_WORKER, else none. */
+function workerScript(): string | null {
+  if (__filename.endsWith('.js')) return __filename;
+  return process.env.CURVEWRIGHT_POOL_WORKER || null;
+}
+
 /**
  * Runs every spec (absolute or cwd-relative paths) and calls onResult(index, result) as each finishes (any order).
  * Resolves with the results in the order given.
@@ -50,52 +144,46 @@ export async function runAll(
   onResult: (index: number, result: RunResult) => void = () => undefined,
 ): Promise<RunResult[]> {
   const results: RunResult[] = new Array(specs.length);
-  const bundled = __filename.endsWith('.js');
-  const jobs = Math.min(opts.jobs, specs.length);
-  if (!bundled || jobs <= 1) {
+  const script = workerScript();
+  const jobs = Math.max(1, opts.jobs);
+  const ropts = { workspaceRoot: opts.workspaceRoot, trustPaths: opts.trustPaths === true };
+  if (!script || jobs <= 1) {
     for (let i = 0; i < specs.length; i++) {
-      results[i] = await runSpecFile(specs[i], { workspaceRoot: opts.workspaceRoot, trustPaths: opts.trustPaths === true });
+      results[i] = await runSpecFile(specs[i], ropts);
       onResult(i, results[i]);
     }
     return results;
   }
-  let next = 0;
-  const workers: Worker[] = [];
+  const pool = new Pool(jobs, script);
   try {
-    await new Promise<void>((resolve, reject) => {
-      let done = 0;
-      const feed = (w: Worker) => {
-        if (next >= specs.length) return;
-        const id = next++;
-        w.postMessage({ type: 'job', id, specPath: specs[id], workspaceRoot: opts.workspaceRoot, trustPaths: opts.trustPaths === true } satisfies CliJobRequest);
-      };
-      for (let k = 0; k < jobs; k++) {
-        const w = new Worker(__filename, { workerData: { [WORKER_FLAG]: true } });
-        workers.push(w);
-        w.on('message', (m: CliWorkerToPool) => {
-          if (m.type === 'ready') {
-            // the workers run this same bundle, so a mismatch means a broken build, not a user error
-            if (m.version !== PROTOCOL_VERSION) reject(new InternalError(`a worker speaks protocol ${m.version}, this CLI ${PROTOCOL_VERSION}`));
-            else feed(w);
-            return;
+    if (specs.length < jobs) {
+      // few specs: one at a time here, the separate fits of its groups spread over the workers
+      for (let i = 0; i < specs.length; i++) {
+        const spec = specs[i];
+        const groupRunner = async (groups: number): Promise<GroupFit[] | ErrorReport> => {
+          const parts = await Promise.all(groupChunks(groups, jobs).map(chunk => pool.request({ type: 'groups', specPath: spec, ...ropts, groups: chunk })));
+          const out: GroupFit[] = [];
+          for (const p of parts) {
+            const g = (p as { groups: GroupFit[] | ErrorReport }).groups;
+            if ('error' in g) return g;
+            out.push(...g);
           }
-          if (m.type === 'failure') {
-            reject(new InternalError(`a worker failed on ${specs[m.inReplyTo]}`, m.message));
-            return;
-          }
-          results[m.inReplyTo] = m.result;
-          onResult(m.inReplyTo, m.result);
-          if (++done === specs.length) resolve();
-          else feed(w);
-        });
-        w.on('error', e => reject(new InternalError(`a worker thread stopped: ${e.message}`, e.stack)));
-        w.on('exit', code => {
-          if (done < specs.length && code !== 0) reject(new InternalError(`a worker thread exited with code ${code}`));
-        });
+          return out;
+        };
+        results[i] = await runSpecFile(spec, { ...ropts, groupRunner });
+        onResult(i, results[i]);
       }
-    });
+    } else {
+      await Promise.all(
+        specs.map(async (spec, i) => {
+          const r = await pool.request({ type: 'job', specPath: spec, ...ropts });
+          results[i] = (r as { result: RunResult }).result;
+          onResult(i, results[i]);
+        }),
+      );
+    }
   } finally {
-    await Promise.all(workers.map(w => w.terminate()));
+    await pool.close();
   }
   return results;
 }

@@ -300,6 +300,8 @@ export interface BandReport {
 export interface PredictionReport {
   /** a number for a single x variable, an object for several */
   x: number | Record<string, number>;
+  /** a joint fit (models[].shared): the group whose parameters the prediction uses */
+  group?: string;
   y: number | null;
   ci: [number, number] | null;
   pi: [number, number] | null;
@@ -314,6 +316,8 @@ export interface PredictionReport {
 /** The x values at which the model reaches one y from the spec's `solveFor`, each with its interval. */
 export interface InverseReport {
   y: number;
+  /** a joint fit (models[].shared): the group whose curve is read */
+  group?: string;
   roots: { x: number; interval: [number | null, number | null] }[];
   extrapolated: boolean;
   /** [a, b] where the curve equals y over a whole stretch of x (no single root there) */
@@ -581,6 +585,19 @@ export interface ErrorReport {
 
 /** What running a spec produces: a FitReport, or an ErrorReport when nothing could be fitted. */
 export type RunResult = FitReport | ErrorReport;
+
+/**
+ * The separate fits of one group of a spec with data.groupBy (not part of a FitReport): what a worker of the CLI
+ * pool sends back for the groups it fitted (run.ts runSpecGroups); structured-clone safe.
+ */
+export interface GroupFit {
+  models: ModelReport[];
+  /** separate fits of models with `shared`: the starts and baseline of the joint fit, not reported */
+  hidden: { index: number; report: ModelReport }[];
+  comparison: GroupComparison;
+  /** problems of the run found while fitting this group (a comparison that failed) */
+  problems: Problem[];
+}
 
 /** True when the run produced no fit (narrows a RunResult). */
 export function isErrorReport(r: RunResult): r is ErrorReport {

@@ -14,6 +14,7 @@ import {
   type FileLocation,
   type FitReport,
   type GroupComparison,
+  type GroupFit,
   type SharingTest,
   type GroupReport,
   type JsonPath,
@@ -38,7 +39,7 @@ import { analyzeModel, compareModels, dataCorrelation, resolveThresholds } from 
 import type { AnalysisOptions, ModelAnalysisInput } from './stats/api';
 import { sidecarPath, splitReport, type OutputPoints } from './pointsFile';
 import { derivedFor } from './stats/derived';
-import { jointFormula, jointModelSpec } from './joint';
+import { jointBuiltModel } from './joint';
 import { sharingTest } from './stats/sharing';
 import { DEFAULTS } from './spec/defaults';
 import { cleanStaleTemps, inputRefusal, LockBusyError, outputRefusal as pathOutputRefusal, realOrSelf, tmpName, withFileLock } from './paths';
@@ -58,7 +59,13 @@ export interface RunOptions {
   onProgress?: (msg: string) => void;
   /** analysis switches and time budgets (default ANALYSIS_DEFAULTS) */
   analysis?: AnalysisOptions;
+  /**
+   * fits the groups of data.groupBy elsewhere (the CLI's worker pool): called with the number of groups, resolves to
+   * each group's fits in the groups' order (what runSpecGroups gives for them), or an ErrorReport
+   */
+  groupRunner?: (groups: number) => Promise<GroupFit[] | ErrorReport>;
 }
+
 
 /**
  * Time budgets of profiling and cross-validation per model. Generous on purpose: a budget that runs out makes the
@@ -182,7 +189,28 @@ export async function runSpecFile(specPath: string, opts: RunOptions = {}): Prom
   }
   if (text.charCodeAt(0) === 0xfeff) text = text.slice(1);
   try {
-    return await runSpecText(specPath, text, opts);
+    return (await runSpecText(specPath, text, opts)) as RunResult;
+  } catch (e) {
+    if (e instanceof DataError) return errorReport(name, e.message, { path: e.path, location: e.location });
+    if (e instanceof FormulaError) return errorReport(name, e.message);
+    return errorReport(name, internalMessage(e, `running ${specPath}`));
+  }
+}
+
+/**
+ * The separate fits of the groups at `indices` (positions in the groups' order) of a spec with data.groupBy: the same
+ * computation as runSpecFile makes for them, for a worker of the CLI pool. Resolves to an ErrorReport where
+ * runSpecFile would.
+ */
+export async function runSpecGroups(specPath: string, opts: Omit<RunOptions, 'groupRunner'>, indices: number[]): Promise<GroupFit[] | ErrorReport> {
+  const name = specDisplayName(specPath);
+  try {
+    let text = opts.specText ?? (await fsp.readFile(specPath, 'utf8'));
+    if (text.charCodeAt(0) === 0xfeff) text = text.slice(1);
+    const r = await runSpecText(specPath, text, { ...opts, onlyGroups: indices });
+    if ('groupFits' in r) return r.groupFits;
+    if ('error' in r) return r;
+    return errorReport(name, internalMessage(new Error('the spec has no groups'), `fitting groups of ${specPath}`));
   } catch (e) {
     if (e instanceof DataError) return errorReport(name, e.message, { path: e.path, location: e.location });
     if (e instanceof FormulaError) return errorReport(name, e.message);
@@ -195,7 +223,7 @@ export function runSpec(specText: string, specPath: string, opts: Omit<RunOption
   return runSpecFile(specPath, { ...opts, specText });
 }
 
-async function runSpecText(specPath: string, text: string, opts: RunOptions): Promise<RunResult> {
+async function runSpecText(specPath: string, text: string, opts: RunOptions & { onlyGroups?: number[] }): Promise<RunResult | { groupFits: GroupFit[] }> {
   const name = specDisplayName(specPath);
   const specHash = sha256(text);
   const progress = opts.onProgress ?? (() => undefined);
@@ -372,35 +400,30 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
     const P: JsonPath = ['models', m.index];
     let base: ReturnType<typeof buildModel>;
     let built: ReturnType<typeof buildModel>;
-    let jf: ReturnType<typeof jointFormula>;
+    let groupVar = '.group';
+    while (prepared.variables.includes(groupVar)) groupVar = `.${groupVar}`;
     try {
       base = buildModel(written, prepared.variables, { X: prepared.X, y: prepared.y });
-      jf = jointFormula(base.formula, base.params, shared, ids, prepared.variables);
       const starts = separate.map(r => (r && r.status === 'converged' ? Object.fromEntries(Object.entries(r.params).map(([k, v]) => [k, v.value])) : null));
-      const jointSpec = jointModelSpec(m.name, jf, base.params, shared, ids, written.params, starts);
-      built = buildModel({ ...jointSpec, kind: 'formula', index: m.index, solver: m.solver } as NormalizedSpec['models'][number], [...prepared.variables, ...jf.indicators], { X: prepared.X, y: prepared.y });
+      built = jointBuiltModel(base, shared, ids, starts, groupVar);
     } catch (e) {
       if (e instanceof FormulaError || e instanceof DataError || isUserError(e))
         return errorReport(name, `model '${m.name}' (joint fit of the groups): ${(e as Error).message}`, { path: P, location: locationOf(text, name, P) });
       return { report: { ...failedModel(m, m.index, e, 'building the joint fit of the groups'), group: null, shared } };
     }
-    const indicatorX = jf.indicators.map((_, g) => {
-      const col = new Float64Array(prepared.y.length);
-      for (let j = 0; j < col.length; j++) col[j] = of[j] === g ? 1 : 0;
-      return col;
-    });
-    const X = [...prepared.X, ...indicatorX];
+    // the group number of each row: the joint model reads each row with its own group's parameters (joint.ts)
+    const X = [...prepared.X, Float64Array.from(of)];
     const fitData = { X, y: prepared.y, w: wFit };
     try {
       const result = fitModel(built, fitData, { maxIterations: m.solver.maxIterations, seconds: m.solver.seconds, multiStart: m.solver.multiStart, seed: RUN_SEED, shouldStop: opts.shouldStop });
       const input: ModelAnalysisInput = {
         index: m.index, name: m.name, kind: built.kind, formula: built.formula, builtin: undefined, degree: undefined,
         compiled: built.compiled, params: built.params, lower: built.lower, upper: built.upper, fixed: built.fixed,
-        linear: built.compiled.linear, variables: [...prepared.variables, ...jf.indicators], X, y: prepared.y, w: wFit,
+        linear: built.compiled.linear, variables: [...prepared.variables, groupVar], X, y: prepared.y, w: wFit,
         count: prepared.count, precision: prepared.w, rows: prepared.rows, sigmaMode: spec.data.sigmaMode, result,
         startValues: result.startValues, startSource: result.startSource, confidence: spec.confidence,
-        // predictions and inverse predictions need a group: not computed for a joint fit (see docs/fitspec.md)
-        predict: [], solveFor: [], predictWeight: spec.predictWeight, thresholds,
+        // predictions and inverse predictions: for every group, at its own parameters
+        predict: spec.predict, solveFor: spec.solveFor, jointGroups: { ids, variables: prepared.variables }, predictWeight: spec.predictWeight, thresholds,
         solverOptions: { maxIterations: m.solver.maxIterations, seconds: m.solver.seconds },
         shouldStop: opts.shouldStop, options: { ...ANALYSIS_DEFAULTS, ...opts.analysis },
       };
@@ -416,7 +439,7 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
 
   // 5. comparison (with groups: within each group)
   const runProblems: Problem[] = [];
-  const compare = (analysed: Fitted['analysed'], inGroup: string): FitReport['comparison'] => {
+  const compare = (analysed: Fitted['analysed'], inGroup: string, sink: Problem[] = runProblems): FitReport['comparison'] => {
     if (analysed.length === 0) return null;
     try {
       const c = compareModels(analysed.map(a => a.input), analysed.map(a => a.report), thresholds);
@@ -428,7 +451,7 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
       c.reason = c.best ? `${c.reason.replace(' is the only model that converged.', ' is the only model ranked by AICc.')} ${note}` : note;
       return c;
     } catch (e) {
-      runProblems.push({ code: 'comparison-failed', severity: 'warning', message: internalMessage(e, `comparing the models${inGroup}`), path: ['models'] });
+      sink.push({ code: 'comparison-failed', severity: 'warning', message: internalMessage(e, `comparing the models${inGroup}`), path: ['models'] });
       return null;
     }
   };
@@ -447,18 +470,47 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
     groups = G.ids.map((id, g) => ({ id, key: G.keys[g], rows: G.rows[g], used: members[g].length }));
     const byGroup: Record<string, GroupComparison> = {};
     const hiddenOf = new Map<number, (ModelReport | null)[]>();
-    for (let g = 0; g < G.ids.length; g++) {
-      if (opts.shouldStop?.()) break;
+    // each group's separate fits: here, or on the worker pool (opts.groupRunner), the same computation either way
+    const fitGroup = (g: number): GroupFit | ErrorReport => {
       const fitted = fitAll(subset(prepared, members[g]), G.ids[g]);
       if ('error' in fitted) return fitted;
-      models.push(...fitted.models);
-      for (const h of fitted.hidden) {
+      const problems: Problem[] = [];
+      const c = compare(fitted.analysed, ` in group '${G.ids[g]}'`, problems);
+      const comparisonOf = c ?? { ranking: [], fTests: [], best: null, reason: `No model could be fitted in group '${G.ids[g]}', so none can be recommended.` };
+      return { models: fitted.models, hidden: fitted.hidden, comparison: comparisonOf, problems };
+    };
+    if (opts.onlyGroups) {
+      const groupFits: GroupFit[] = [];
+      for (const g of opts.onlyGroups) {
+        if (opts.shouldStop?.()) break;
+        const fit = fitGroup(g);
+        if ('error' in fit) return fit;
+        groupFits.push(fit);
+      }
+      return { groupFits };
+    }
+    let fits: GroupFit[] = [];
+    if (opts.groupRunner && G.ids.length > 1) {
+      progress(`fitting ${G.ids.length} groups on the worker pool`);
+      const r = await opts.groupRunner(G.ids.length);
+      if ('error' in r) return r;
+      fits = r;
+    } else
+      for (let g = 0; g < G.ids.length; g++) {
+        if (opts.shouldStop?.()) break;
+        const fit = fitGroup(g);
+        if ('error' in fit) return fit;
+        fits.push(fit);
+      }
+    fits.forEach((fit, g) => {
+      models.push(...fit.models);
+      for (const h of fit.hidden) {
         if (!hiddenOf.has(h.index)) hiddenOf.set(h.index, G.ids.map(() => null));
         hiddenOf.get(h.index)![g] = h.report;
       }
-      const c = compare(fitted.analysed, ` in group '${G.ids[g]}'`);
-      byGroup[G.ids[g]] = c ?? { ranking: [], fTests: [], best: null, reason: `No model could be fitted in group '${G.ids[g]}', so none can be recommended.` };
-    }
+      runProblems.push(...fit.problems);
+      byGroup[G.ids[g]] = fit.comparison;
+    });
     comparison = {
       ranking: [],
       fTests: [],

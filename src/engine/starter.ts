@@ -33,6 +33,35 @@ export interface Suggestion {
   candidates: Candidate[];
   /** "," when the file is semicolon-separated with decimal commas (the spec must then say data.decimal) */
   decimal?: ',';
+  /** a long-format file's id column (text or whole numbers, few distinct values, each repeated, x repeated across them) */
+  groupBy?: string;
+}
+
+/**
+ * The id column of a long-format file (our own rule): a column other than the chosen x and y whose sample cells are
+ * text or whole numbers, with 2 to max(2, rows/3) distinct values, every value on at least 3 rows, and the x values
+ * repeating across its groups (fewer distinct x than rows / 1.5); a column named rep/replicate/repeat is not one.
+ * The first such column, or undefined.
+ */
+export function groupColumn(columns: string[], rows: string[][], exclude: number[], xj: number): number | undefined {
+  const n = rows.length;
+  if (n < 6) return undefined;
+  const xDistinct = new Set(rows.map(r => (r[xj] ?? '').trim())).size;
+  if (!(xDistinct < n / 1.5)) return undefined;
+  for (let j = 0; j < columns.length; j++) {
+    // replicate numbers repeat the same curve: they are not groups to fit one by one
+    if (exclude.includes(j) || /^(rep|replicate|repeat)s?$/i.test(columns[j].trim())) continue;
+    const cells = rows.map(r => (r[j] ?? '').trim());
+    if (cells.some(c => c === '')) continue;
+    // whole numbers or text; a column of decimals is a measurement, not an id
+    if (cells.some(c => /^[-+]?\d*[.,]\d+([eE][-+]?\d+)?$/.test(c) || /^[-+]?\d+[eE]/.test(c))) continue;
+    const count = new Map<string, number>();
+    for (const c of cells) count.set(c, (count.get(c) ?? 0) + 1);
+    if (count.size < 2 || count.size > Math.max(2, n / 3)) continue;
+    if ([...count.values()].some(k => k < 3)) continue;
+    return j;
+  }
+  return undefined;
 }
 
 /** Rows read to guess columns and shape. */
@@ -193,14 +222,34 @@ export async function suggestSpec(csvPath: string, opts: { x?: string; y?: strin
     err.name = 'DataError';
     throw err;
   }
-  const xCol = xj >= 0 ? { name: columns[xj], j: xj } : (numeric.find(c => c.j !== yj && isMonotoneIsh(values[c.j])) ?? numeric.find(c => c.j !== yj)!);
-  const yCol = yj >= 0 ? { name: columns[yj], j: yj } : (numeric.find(c => c.j > xCol.j) ?? numeric.find(c => c.j !== xCol.j) ?? xCol);
+  // a long-format file: an id column (text, or whole numbers that look like x) is proposed as data.groupBy and is
+  // never taken as x or y; the guess is made with the id column left out, then checked against the chosen x
+  let idFirst: number | undefined;
+  let fewest = Infinity;
+  for (const c of numeric) {
+    if (c.j === yj) continue;
+    const g = groupColumn(columns, rows, [c.j, xj, yj].filter(j => j >= 0), c.j);
+    const distinctOf = (j: number): number => new Set(rows.map(r => (r[j] ?? '').trim())).size;
+    const distinct = g === undefined ? Infinity : distinctOf(g);
+    // an id has fewer distinct values than the x it repeats over (hours repeat across reactors, not vice versa);
+    // of several readings, the id with the fewest
+    if (distinct < distinctOf(c.j) && distinct < fewest) [idFirst, fewest] = [g, distinct];
+  }
+  const pool = numeric.filter(c => c.j !== idFirst || numeric.length <= 2);
+  const xCol = xj >= 0 ? { name: columns[xj], j: xj } : (pool.find(c => c.j !== yj && isMonotoneIsh(values[c.j])) ?? pool.find(c => c.j !== yj)!);
+  const yCol = yj >= 0 ? { name: columns[yj], j: yj } : (pool.find(c => c.j > xCol.j) ?? pool.find(c => c.j !== xCol.j) ?? xCol);
+  const gj = groupColumn(columns, rows, [xCol.j, yCol.j], xCol.j);
+  // the shape is judged on the groups pooled (same x grid, more points than one group)
   const xs = values[xCol.j], ys = values[yCol.j];
   const finiteX = xs.filter((v, i) => Number.isFinite(v) && Number.isFinite(ys[i]));
   const xMin = finiteX.length ? Math.min(...finiteX) : 0;
   // a decimal comma is written into the spec: the reader's default is "." (and ';' files are where commas are decimals)
   const commaNumbers = decimalComma && rows.some(r => [xCol.j, yCol.j].some(j => /^\s*[-+]?\d*,\d+(?:[eE][-+]?\d+)?\s*$/.test(r[j] ?? '')));
-  return { columns, x: xCol.name, y: yCol.name, candidates: candidatesFor(classifyShape(xs, ys), xMin), ...(commaNumbers ? { decimal: ',' as const } : {}) };
+  return {
+    columns, x: xCol.name, y: yCol.name, candidates: candidatesFor(classifyShape(xs, ys), xMin),
+    ...(commaNumbers ? { decimal: ',' as const } : {}), ...(gj !== undefined ? { groupBy: columns[gj] } : {}),
+  };
 }
+
 
 

@@ -12,7 +12,7 @@ function toPosix(p: string): string {
  * Text of a starter spec (JSON with comments): data.file relative to the spec's folder, the chosen models,
  * output under results/ next to the spec.
  */
-export function starterSpecText(opts: { csvPath: string; specPath: string; x: string; y: string; models: ModelSpec[]; decimal?: ',' }): string {
+export function starterSpecText(opts: { csvPath: string; specPath: string; x: string; y: string; models: ModelSpec[]; decimal?: ','; groupBy?: string }): string {
   const specDir = path.dirname(path.resolve(opts.specPath));
   const dataRel = toPosix(path.relative(specDir, path.resolve(opts.csvPath))) || path.basename(opts.csvPath);
   const stem = path.basename(opts.specPath).replace(/\.fitspec\.json$/i, '').replace(/\.json$/i, '');
@@ -29,8 +29,9 @@ export function starterSpecText(opts: { csvPath: string; specPath: string; x: st
     `  "data": {`,
     `    "file": ${JSON.stringify(dataRel)}, // relative to this spec file`,
     `    "x": ${JSON.stringify(columnRef(opts.x))},`,
-    `    "y": ${JSON.stringify(columnRef(opts.y))}${opts.decimal ? ',' : ''}`,
-    ...(opts.decimal ? [`    "decimal": ${JSON.stringify(opts.decimal)} // numbers like 0,25`] : []),
+    `    "y": ${JSON.stringify(columnRef(opts.y))}${opts.decimal || opts.groupBy ? ',' : ''}`,
+    ...(opts.decimal ? [`    "decimal": ${JSON.stringify(opts.decimal)}${opts.groupBy ? ',' : ''} // numbers like 0,25`] : []),
+    ...(opts.groupBy ? [`    "groupBy": ${JSON.stringify(opts.groupBy)} // one curve per distinct value: every model is fitted to each group`] : []),
     `  },`,
     `  "models": [`,
     modelLines.join(',\n'),

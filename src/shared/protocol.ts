@@ -5,7 +5,7 @@
 // handshake carrying PROTOCOL_VERSION; the host sends nothing to a webview before its 'ready'.
 // The webview imports it as types plus the constants below, so this file must stay free of runtime imports of
 // vscode, the engine or Node modules (src/shared; eslint.config.mjs enforces it).
-import type { JsonPath, ModelSpec, RunResult } from '../engine/report';
+import type { ErrorReport, GroupFit, JsonPath, ModelSpec, RunResult } from '../engine/report';
 
 /** Bump when a message changes shape incompatibly; both ends compare it in the Ready handshake. */
 export const PROTOCOL_VERSION = 1;
@@ -285,8 +285,25 @@ export interface CliJobFailureMessage {
   message: string;
 }
 
-export type CliPoolToWorker = CliJobRequest;
-export type CliWorkerToPool = CliWorkerReadyMessage | CliJobResultMessage | CliJobFailureMessage;
+/** Fit the groups at `groups` (positions in the groups' order) of a spec with data.groupBy: one spec over the pool. */
+export interface CliGroupsRequest {
+  type: 'groups';
+  id: number;
+  specPath: string;
+  workspaceRoot: string;
+  trustPaths?: boolean;
+  groups: number[];
+}
+
+/** The fits of the groups of request `inReplyTo`, in the order asked, or the ErrorReport the spec gives. */
+export interface CliGroupsResultMessage {
+  type: 'groups-result';
+  inReplyTo: number;
+  result: GroupFit[] | ErrorReport;
+}
+
+export type CliPoolToWorker = CliJobRequest | CliGroupsRequest;
+export type CliWorkerToPool = CliWorkerReadyMessage | CliJobResultMessage | CliGroupsResultMessage | CliJobFailureMessage;
 
 // ------------------------------------------------------------------ webview HTML shell
 

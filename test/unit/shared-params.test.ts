@@ -9,6 +9,7 @@ import { runSpecFile } from '../../src/engine/run';
 import { isErrorReport, type FitReport, type RunResult } from '../../src/engine/report';
 import { mulberry32, normalSource } from '../../scripts/generate-demo';
 import { summaryText } from '../../src/cli/format';
+import { tQuantile } from '../../src/engine/stats/distributions';
 
 function csv(rates: number[]): string {
   const rand = normalSource(mulberry32(5));
@@ -95,6 +96,31 @@ describe('models[].shared: joint fit of the groups', function () {
     assert.ok(s.p! < 1e-6, `p = ${s.p}`);
     assert.match(s.verdict, /^r differs between groups \(p = /);
     assert.ok(s.aiccSeparate! < s.aiccShared!);
+  });
+
+  it('predicts and back-calculates per group at the group\'s own parameters, intervals from the full covariance (delta method by hand)', async () => {
+    const r = ok(await run({ 'd.csv': csv([0.3, 0.3, 0.3]) }, { data, models: [{ name: 'common', builtin: 'logistic3', shared: ['r', 'x0'] }], predict: [10, 30], solveFor: [1] }));
+    const j = r.models[0];
+    assert.deepEqual(j.predictions.map(p => [p.group, p.x]), [['R1', 10], ['R1', 30], ['R2', 10], ['R2', 30], ['R3', 10], ['R3', 30]]);
+    assert.deepEqual(j.inverse.map(v => v.group), ['R1', 'R2', 'R3']);
+    const v = (k: string) => j.params[k].value;
+    const order = j.paramOrder;
+    const dof = j.stats.dof;
+    for (const p of j.predictions) {
+      const K = v(`K[${p.group}]`), rr = v('r'), x0 = v('x0'), x = p.x as number;
+      const e = Math.exp(-rr * (x - x0));
+      assert.ok(Math.abs(p.y! - K / (1 + e)) <= 1e-12 * Math.abs(p.y!));
+      // gradient of K/(1+e) in (K[g], r, x0), other entries 0; Var = gᵀ V g with V the reported covariance
+      const g = order.map(k => (k === `K[${p.group}]` ? 1 / (1 + e) : k === 'r' ? (K * e * (x - x0)) / (1 + e) ** 2 : k === 'x0' ? (-K * e * rr) / (1 + e) ** 2 : 0));
+      let varFit = 0;
+      for (let a = 0; a < g.length; a++) for (let b = 0; b < g.length; b++) varFit += g[a] * (j.covariance![a][b] as number) * g[b];
+      const half = (p.ci![1] - p.ci![0]) / 2;
+      // half-width = t(0.975, dof of the joint fit) · √(gᵀVg)
+      assert.ok(Math.abs(half - tQuantile(0.975, dof) * Math.sqrt(varFit)) <= 1e-9 * half, `half-width ${half} at ${dof} dof`);
+    }
+    const inv = j.inverse[1];
+    const K2 = v('K[R2]');
+    assert.ok(Math.abs(inv.roots[0].x - (v('x0') - Math.log(K2 / 1 - 1) / v('r'))) < 1e-6, 'x where K/(1+e) = 1');
   });
 
   it('refuses shared without groupBy, an unknown parameter (did-you-mean) and every parameter shared', async () => {

@@ -5,7 +5,8 @@ import type { JsonPath, ModelSpec } from '../report';
 import type { CompiledFormula } from '../formula/types';
 import type { LsqProblem, SolveResult } from '../solve/types';
 import { compileFormula, formulaParameters, suggest } from '../formula';
-import { solveLinear, solveNonlinear } from '../solve';
+import { solve, solveLinear, solveNonlinear } from '../solve';
+import { blocksOf } from '../solve/block';
 import { multiStart } from '../solve/multistart';
 import { BUILTINS } from './catalogue';
 import { polynomialFormula } from './polynomial';
@@ -192,11 +193,13 @@ export function buildModel(spec: ModelSpec, variables: string[], data: { X: Floa
 export function modelProblem(model: BuiltModel, data: FitData): LsqProblem {
   const { compiled } = model;
   const X = data.X;
+  const blocks = blocksOf(compiled, X);
   return {
     n: data.y.length,
     p: model.params.length,
     y: data.y,
     w: data.w ?? undefined,
+    ...(blocks ? { blocks } : {}),
     model(theta, f, J) {
       if (J) compiled.evaluateWithJacobian(theta, X, f, J);
       else compiled.evaluate(theta, X, f);
@@ -249,6 +252,11 @@ function fitModelRaw(model: BuiltModel, data: FitData, opts: FitOptions): FitRes
   const t0 = Date.now();
   const remaining = (): number => Math.max(0.05, seconds - (Date.now() - t0) / 1000);
   const base = { lower: model.lower, upper: model.upper, fixed: model.fixed, maxIterations: opts.maxIterations, shouldStop: opts.shouldStop };
+  // a joint fit with its starts from the separate fits: the block solver
+  if (problem.blocks && model.start.every(s => s !== undefined)) {
+    const theta0 = Float64Array.from(model.start as number[]);
+    return { ...solve(problem, { ...base, theta0, seconds }), startValues: theta0, startSource: 'spec' };
+  }
 
   if (model.compiled.linear) {
     const theta0 = Float64Array.from(model.start, (s, j) => clampInside(s ?? 0, model.lower[j], model.upper[j]));

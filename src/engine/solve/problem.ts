@@ -31,7 +31,8 @@ export interface Prepared {
   evaluations: number;
 }
 
-export function prepare(problem: LsqProblem, opts: SolveOptions, defaultMaxIterations: number): Prepared {
+/** `denseJacobian` false: no n×p Jacobian scratch (the block solver of solve/block.ts keeps its own compact one) */
+export function prepare(problem: LsqProblem, opts: SolveOptions, defaultMaxIterations: number, denseJacobian = true): Prepared {
   const { n, p } = problem;
   if (!(Number.isInteger(n) && n >= 0 && Number.isInteger(p) && p >= 0)) {
     throw new Error(`least-squares problem has invalid size n=${n}, p=${p}: both must be non-negative integers`);
@@ -71,7 +72,7 @@ export function prepare(problem: LsqProblem, opts: SolveOptions, defaultMaxItera
   return {
     problem, n, p, free, q: free.length, sw, lower, upper, theta0, maxIterations, refine: opts.refine !== false, deadline,
     shouldStop: opts.shouldStop, onIteration: opts.onIteration,
-    f: new Float64Array(n), J: new Float64Array(n * p), evaluations: 0,
+    f: new Float64Array(n), J: new Float64Array(denseJacobian ? n * p : 0), evaluations: 0,
   };
 }
 

@@ -1,5 +1,6 @@
 // Types shared by the least-squares solvers (linear QR/SVD and trust-region Levenberg–Marquardt).
 import type { Termination } from '../report';
+import type { BlockStructure } from './block';
 
 /**
  * Weighted least squares: minimise S(θ) = Σ_i w_i (y_i − f_i(θ))².
@@ -13,6 +14,8 @@ export interface LsqProblem {
   /** weights 1/σ²; omitted = all 1 */
   w?: Float64Array;
   model(theta: Float64Array, f: Float64Array, J: Float64Array | null): void;
+  /** block structure of a joint fit (solve/block.ts): the solvers factor it block by block */
+  blocks?: BlockStructure;
 }
 
 export interface SolveOptions {

@@ -37,6 +37,11 @@ export const DEFAULTS = {
     profilePoints: 40,
     /** Levenberg–Marquardt iterations of each cross-validation refit (a count of work) */
     cvIterations: 8,
+    /**
+     * work budget of profiling a joint fit (models[].shared), in model evaluations × rows: with many groups it bounds
+     * the profile by work, not time, so the report does not depend on the machine (problem `profile-incomplete`)
+     */
+    jointProfileWork: 20_000_000,
     /** wall-clock guard of profiling one model, seconds: stops only a runaway profile (problem `profile-incomplete`) */
     profileSeconds: 10,
     /** wall-clock guard of cross-validating one model, seconds: stops only a runaway run (problem `cv-incomplete`) */

@@ -5,15 +5,18 @@ import type { LsqProblem } from '../solve/types';
 import type { ModelAnalysisInput } from './api';
 import { sortedOrder } from './crossval';
 import { mgsProject, mgsQr } from '../solve/linalg';
+import { blocksOf } from '../solve/block';
 
 /** LsqProblem over the given data for a compiled formula. */
 export function lsqProblem(input: Pick<ModelAnalysisInput, 'compiled' | 'X' | 'y' | 'w' | 'params'>): LsqProblem {
   const { compiled, X, y, w } = input;
+  const blocks = blocksOf(compiled, X);
   return {
     n: y.length,
     p: input.params.length,
     y,
     w: w ?? undefined,
+    ...(blocks ? { blocks } : {}),
     model: (theta, out, J) => (J ? compiled.evaluateWithJacobian(theta, X, out, J) : compiled.evaluate(theta, X, out)),
   };
 }

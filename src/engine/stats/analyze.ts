@@ -4,6 +4,7 @@
 // problemsDetect.ts; the fit statistics in fitStats.ts, predictions in predictReport.ts, the data helpers in
 // analysisData.ts).
 import type { ModelReport, ParamReport, PointsReport, Problem, ResidualTests } from '../report';
+import { blocksOf } from '../solve/block';
 import type { ModelAnalysisInput } from './api';
 import { covarianceFromJacobian, leverage } from './covariance';
 import { normalQuantile, tQuantile, tTwoSidedP, normalSf } from './distributions';
@@ -12,7 +13,7 @@ import { runsByPosition } from './runs';
 import { profileIntervals } from './profile';
 import { crossValidate } from './crossval';
 import type { PredictionContext } from './predict';
-import { predictionsAndInverse } from './predictReport';
+import { groupTargets, predictionsAndInverse } from './predictReport';
 import { DEFAULTS } from '../spec/defaults';
 import { emptyStats, fitStatistics } from './fitStats';
 import { expandByCount, identityOrder, lsqProblem, orderByX } from './analysisData';
@@ -126,7 +127,9 @@ export function analyzeModel(input: ModelAnalysisInput): ModelReport {
   const waldIsProfile = input.linear && !boundActive;
 
   // ------------------------------------------------------------ covariance and parameters
-  const covInfo0 = covarianceFromJacobian(J, n, p, w, free, 1);
+  // a joint fit (solve/block.ts): covariance and hat values block by block
+  const blocks = blocksOf(compiled, X);
+  const covInfo0 = covarianceFromJacobian(J, n, p, w, free, 1, blocks);
   const rank = covInfo0.rank;
   const dof = nObs - rank;
   const s2 = dof > 0 ? sse / dof : NaN;
@@ -177,7 +180,7 @@ export function analyzeModel(input: ModelAnalysisInput): ModelReport {
 
   // ------------------------------------------------------------ points: leverage, standardized residuals, Cook's D
   // (with counts: the leverage of one of the row's identical observations, h/count, as in the expanded data)
-  const h = leverage(J, n, p, w, free);
+  const h = leverage(J, n, p, w, free, blocks);
   if (count) for (let i = 0; i < n; i++) h[i] /= count[i];
   for (let i = 0; i < n; i++) {
     const hi = h[i];
@@ -210,7 +213,8 @@ export function analyzeModel(input: ModelAnalysisInput): ModelReport {
     const cv = crossValidate({
       compiled, X, y, w, theta, lower: input.lower, upper: input.upper, fixed: input.fixed, linear: input.linear, order,
       maxIterations: input.solverOptions?.maxIterations,
-      deadline: Date.now() + 1000 * (opts.cvSeconds ?? CV_SECONDS), shouldStop: input.shouldStop,
+      // a joint fit: no time guard (10 block refits of bounded iterations), so the result does not depend on the machine
+      deadline: blocks ? Infinity : Date.now() + 1000 * (opts.cvSeconds ?? CV_SECONDS), shouldStop: input.shouldStop,
     });
     report.stats.cvRmse = cv.rmse;
     report.stats.cvFolds = cv.folds;
@@ -232,10 +236,13 @@ export function analyzeModel(input: ModelAnalysisInput): ModelReport {
   // (an exact fit, s = 0, has no profile to walk: its intervals are degenerate and profileCi stays null)
   if (!waldIsProfile && opts.profile !== false && dof > 0 && Number.isFinite(qWald) && scale > 0) {
     const seconds = opts.profileSeconds ?? PROFILE_SECONDS;
+    // a joint fit is profiled within a budget of work (its many parameters would otherwise meet the time guard, and
+    // the report would depend on the machine's speed)
+    const maxWork = blocks ? DEFAULTS.analysis.jointProfileWork : undefined;
     const prof = profileIntervals({
       problem: lsqProblem(input), theta, lower: input.lower, upper: input.upper, fixed: input.fixed,
       sseHat: sse, scale, q: qWald, se, maxIterations: DEFAULTS.analysis.profileIterations,
-      deadline: Date.now() + 1000 * seconds, shouldStop: input.shouldStop,
+      deadline: blocks ? Infinity : Date.now() + 1000 * seconds, maxWork, shouldStop: input.shouldStop,
     });
     const timedOut: string[] = [];
     prof.ci.forEach((b, j) => {
@@ -252,7 +259,9 @@ export function analyzeModel(input: ModelAnalysisInput): ModelReport {
         code: 'profile-incomplete',
         severity: 'info',
         message:
-          `${input.name}: the profile-likelihood interval of ${quoteList(timedOut)} was not finished within the ${seconds} s budget, so those bounds are null (not computed). ` +
+          (maxWork !== undefined
+            ? `${input.name}: the profile-likelihood interval of ${quoteList(timedOut)} was not computed within the joint fit's work budget (${maxWork.toExponential(0)} model evaluations × rows; shared parameters are profiled first), so those bounds are null. `
+            : `${input.name}: the profile-likelihood interval of ${quoteList(timedOut)} was not finished within the ${seconds} s budget, so those bounds are null (not computed). `) +
           `The Wald interval (ci) is still reported; a model with fewer parameters or fewer rows profiles faster.`,
         path: base,
       });
@@ -261,7 +270,11 @@ export function analyzeModel(input: ModelAnalysisInput): ModelReport {
 
   // ------------------------------------------------------------ band, predictions, inverse
   const pctx: PredictionContext = { compiled, theta, cov, free, q: qWald, scale, X, w: wPrec, predictWeight: input.predictWeight };
-  predictionsAndInverse(input, report, pctx, opts.bandPoints ?? DEFAULTS.analysis.bandPoints, f, qWald);
+  // a joint fit: predictions and inverse predictions for each group, at its own parameters (full covariance)
+  if (input.jointGroups)
+    for (const t of groupTargets(pctx, input.jointGroups, input.name, f))
+      predictionsAndInverse({ ...input, name: t.who, variables: t.variables, X: t.pctx.X }, report, t.pctx, 0, t.f, qWald, t.group);
+  else predictionsAndInverse(input, report, pctx, opts.bandPoints ?? DEFAULTS.analysis.bandPoints, f, qWald);
 
   // ------------------------------------------------------------ problems
   detectProblems(input, report, { rank, dof, unidentifiable, se, openProfile, profiled, h, n, pFree, runs });

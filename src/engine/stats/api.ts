@@ -63,6 +63,11 @@ export interface ModelAnalysisInput {
   shouldStop?: () => boolean;
   /** analysis switches (all default true); for tests and the CLI's fast paths */
   options?: AnalysisOptions;
+  /**
+   * a joint fit (models[].shared): the group ids in order and the model's own x variables; the last column of X holds
+   * each row's group number, and predictions and inverse predictions are made for every group
+   */
+  jointGroups?: { ids: string[]; variables: string[] };
 }
 
 export interface AnalysisOptions {

@@ -1,5 +1,13 @@
 // Parameter covariance s²(JᵀWJ)⁻¹ and hat values from the SVD of the column-scaled, pivoted-QR R factor of the weighted Jacobian (Golub & Van Loan, Matrix Computations, 4th ed., §5.3, §5.5), each covariance column refined on the augmented system (Björck 1967); JᵀJ is never formed.
 import { analyzeRank, refineAugmented, residualDD } from '../solve/linalg';
+import { blockCovariance, type BlockStructure } from '../solve/block';
+
+/** block factors of one Jacobian, shared by covarianceFromJacobian and leverage */
+const blockMemo = new WeakMap<Float64Array, ReturnType<typeof blockCovariance>>();
+function blockFactors(bs: BlockStructure, J: Float64Array, n: number, p: number, w: Float64Array | null, free: ArrayLike<boolean>): ReturnType<typeof blockCovariance> {
+  if (!blockMemo.has(J)) blockMemo.set(J, blockCovariance(bs, J, n, p, w, free));
+  return blockMemo.get(J)!;
+}
 
 /** refinement steps of each covariance column (double-double residuals) */
 const COV_REFINEMENT_STEPS = 2;
@@ -22,8 +30,16 @@ function weightedFree(J: Float64Array, n: number, p: number, w: Float64Array | n
  * J is n×p column-major (all parameters); the result is p×p row-major.
  */
 export function covarianceFromJacobian(
-  J: Float64Array, n: number, p: number, w: Float64Array | null, free: ArrayLike<boolean>, s2: number,
+  J: Float64Array, n: number, p: number, w: Float64Array | null, free: ArrayLike<boolean>, s2: number, blocks?: BlockStructure,
 ): { cov: Float64Array; rank: number; unidentifiable: number[] } {
+  // a joint fit of full rank: block by block (solve/block.ts); otherwise, and when rank-deficient, densely
+  const bc = blocks ? blockFactors(blocks, J, n, p, w, free) : null;
+  if (bc) {
+    const cov = Float64Array.from(bc.cov, v => v * s2);
+    let rank = 0;
+    for (let j = 0; j < p; j++) if (free[j]) rank++;
+    return { cov, rank, unidentifiable: [] };
+  }
   const cov = new Float64Array(p * p).fill(NaN);
   const cols: number[] = [];
   for (let j = 0; j < p; j++) if (free[j]) cols.push(j);
@@ -80,7 +96,9 @@ export function covarianceFromJacobian(
  * Hat values h_ii of the weighted Jacobian of the free parameters: h_ii = ‖row i of U_A‖² over the kept singular
  * directions, with U_A = A D⁻¹ P V Σ⁻¹.
  */
-export function leverage(J: Float64Array, n: number, p: number, w: Float64Array | null, free: ArrayLike<boolean>): Float64Array {
+export function leverage(J: Float64Array, n: number, p: number, w: Float64Array | null, free: ArrayLike<boolean>, blocks?: BlockStructure): Float64Array {
+  const bc = blocks ? blockFactors(blocks, J, n, p, w, free) : null;
+  if (bc) return Float64Array.from(bc.h);
   const h = new Float64Array(n);
   const cols: number[] = [];
   for (let j = 0; j < p; j++) if (free[j]) cols.push(j);

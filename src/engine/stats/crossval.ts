@@ -11,6 +11,7 @@
 import type { CompiledFormula } from '../formula/types';
 import { solve } from '../solve';
 import { qrFactor, applyQ, rankTolerance } from '../solve/linalg';
+import { blocksOf } from '../solve/block';
 import { DEFAULTS } from '../spec/defaults';
 import { sortedOrder } from '../data/order';
 
@@ -185,6 +186,12 @@ function cholSolve(G: Float64Array, u: Float64Array, q: number): Float64Array | 
   return z;
 }
 
+/** { blocks } of a joint model on the training rows (solve/block.ts), else nothing */
+function blocksIn(compiled: CompiledFormula, X: Float64Array[]): { blocks?: ReturnType<typeof blocksOf> } {
+  const blocks = blocksOf(compiled, X);
+  return blocks ? { blocks } : {};
+}
+
 /** √(Σ w_i (y_i − ŷ_(−i))² / n), ŷ_(−i) from the fit without row i's fold. */
 export function crossValidate(ctx: CvContext): CvResult {
   const n = ctx.y.length;
@@ -195,13 +202,15 @@ export function crossValidate(ctx: CvContext): CvResult {
   // the smallest training set must leave at least one residual degree of freedom
   if (n - Math.ceil(n / k) <= pFree) return { rmse: null, folds: k, method: null, reason: 'too-few-rows' };
   const { test: testRows, start } = foldRows(fold, k);
-  if (ctx.linear && ctx.method !== 'refit' && unbounded(ctx)) {
+  // a joint fit (solve/block.ts): block refits from θ̂ (the downdate would factor the dense n × p Jacobian)
+  const joint = blocksOf(ctx.compiled, ctx.X) !== undefined;
+  if (ctx.linear && !joint && ctx.method !== 'refit' && unbounded(ctx)) {
     const s = foldDowndates(ctx, k, testRows, start);
     if (s !== null) return { rmse: Math.sqrt(s.sum / n), folds: k, method: 'downdate' };
   }
   // nonlinear: each refit starts from the linearised downdate of its fold (second-order close, so the capped refit
   // converges in fewer iterations), or from θ̂ where there is none
-  const lin = ctx.linear ? null : foldDowndates(ctx, k, testRows, start);
+  const lin = ctx.linear || joint ? null : foldDowndates(ctx, k, testRows, start);
   return refitFolds(ctx, fold, k, testRows, start, lin ? lin.delta : null);
 }
 
@@ -224,7 +233,7 @@ function refitFolds(ctx: CvContext, fold: Int32Array, k: number, testRows: Int32
     // refits predict held-out rows: the full-data fit is the certified one, so no refinement and a shorter cap here
     const refit = (theta0: Float64Array) => solve(
       {
-        n: m, p: ctx.theta.length, y: yt, w: wt,
+        n: m, p: ctx.theta.length, y: yt, w: wt, ...blocksIn(compiled, Xt),
         model: (theta, out, J) => (J ? compiled.evaluateWithJacobian(theta, Xt, out, J) : compiled.evaluate(theta, Xt, out)),
       },
       {

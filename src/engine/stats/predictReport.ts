@@ -7,16 +7,20 @@ import { fmtMessage as fmt } from '../../shared/numberFormat';
 import { maxOf, minOf } from './analysisData';
 import { describePoint, describeRanges } from './problemText';
 
-/** Fills report.band, report.predictions and report.inverse; qWald is the interval's quantile (NaN when dof ≤ 0). */
-export function predictionsAndInverse(input: ModelAnalysisInput, report: ModelReport, pctx: PredictionContext, bandPoints: number, f: ArrayLike<number>, qWald: number): void {
+/**
+ * Fills report.band, report.predictions and report.inverse; qWald is the interval's quantile (NaN when dof ≤ 0).
+ * With `group` (a joint fit, one call per group): no band, and every entry says its group.
+ */
+export function predictionsAndInverse(input: ModelAnalysisInput, report: ModelReport, pctx: PredictionContext, bandPoints: number, f: ArrayLike<number>, qWald: number, group?: string): void {
   const { X } = input;
   const problems = report.problems;
-  if (input.variables.length === 1) report.band = computeBand(pctx, input.variables[0], bandPoints);
+  const tag = group === undefined ? {} : { group };
+  if (input.variables.length === 1 && group === undefined) report.band = computeBand(pctx, input.variables[0], bandPoints);
   const ranges = variableRange(X);
   input.predict.forEach((entry, k) => {
     const pt = predictionPoint(entry, input.variables);
     if ('error' in pt) {
-      report.predictions.push({ x: entry, y: null, ci: null, pi: null, extrapolated: false });
+      report.predictions.push({ x: entry, y: null, ci: null, pi: null, extrapolated: false, ...tag });
       problems.push({
         code: 'prediction-invalid',
         severity: 'warning',
@@ -26,7 +30,7 @@ export function predictionsAndInverse(input: ModelAnalysisInput, report: ModelRe
       return;
     }
     const pr = computePrediction(pctx, entry, pt.x);
-    report.predictions.push(pr);
+    report.predictions.push({ ...pr, ...tag });
     if (pr.extrapolated) {
       problems.push({
         code: 'extrapolation',
@@ -40,7 +44,7 @@ export function predictionsAndInverse(input: ModelAnalysisInput, report: ModelRe
   });
   input.solveFor.forEach((yv, k) => {
     if (input.variables.length !== 1) {
-      report.inverse.push({ y: yv, roots: [], extrapolated: false });
+      report.inverse.push({ y: yv, roots: [], extrapolated: false, ...tag });
       problems.push({
         code: 'inverse-no-root',
         severity: 'warning',
@@ -50,7 +54,7 @@ export function predictionsAndInverse(input: ModelAnalysisInput, report: ModelRe
       return;
     }
     const inv = computeInverse(pctx, yv);
-    report.inverse.push(inv);
+    report.inverse.push({ ...inv, ...tag });
     const [lo, hi] = ranges[0];
     if (inv.flat)
       problems.push({
@@ -101,5 +105,21 @@ export function predictionsAndInverse(input: ModelAnalysisInput, report: ModelRe
         path: ['solveFor', k],
       });
     }
+  });
+}
+
+/** Per-group prediction contexts of a joint fit: the group's rows, and the model read at that group's parameters. */
+export function groupTargets(ctx: PredictionContext, jg: { ids: string[]; variables: string[] }, name: string, fAll: ArrayLike<number>): { group: string; pctx: PredictionContext; variables: string[]; who: string; f: Float64Array }[] {
+  const nv = jg.variables.length;
+  const gcol = ctx.X[nv];
+  return jg.ids.map((id, g) => {
+    const rows: number[] = [];
+    for (let i = 0; i < gcol.length; i++) if (gcol[i] === g) rows.push(i);
+    const X = ctx.X.slice(0, nv).map(col => Float64Array.from(rows, i => col[i]));
+    const w = ctx.w ? Float64Array.from(rows, i => ctx.w![i]) : null;
+    const c = ctx.compiled;
+    const withGroup = (x: ArrayLike<number>): number[] => [...Array.from(x), g];
+    const compiled = { ...c, variables: jg.variables, at: (t: ArrayLike<number>, x: ArrayLike<number>) => c.at(t, withGroup(x)), gradientAt: (t: ArrayLike<number>, x: ArrayLike<number>, gr: Float64Array) => c.gradientAt(t, withGroup(x), gr) };
+    return { group: id, pctx: { ...ctx, compiled, X, w }, variables: jg.variables, who: `${name} (group '${id}')`, f: Float64Array.from(rows, i => fAll[i]) };
   });
 }

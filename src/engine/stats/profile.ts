@@ -12,10 +12,14 @@
 //   τ(v) − q from the Wald guess θ̂_j ± q·SE, kept inside the bracket once a point with τ ≥ q is found (regula falsi
 //   with the Illinois modification when Newton leaves it); at most DEFAULTS.analysis.profilePoints points per side.
 // Every budget is a count; the deadline only stops a runaway profile (status 'timeout').
+// - a joint fit (problem.blocks, solve/block.ts): every point by the block Levenberg–Marquardt refit (a dense
+//   Gauss–Newton step would factor the whole n × p Jacobian), ∂S/∂θ_j from the compact Jacobian, and a budget of
+//   work (maxWork: model evaluations × rows) instead of the deadline.
 import type { LsqProblem } from '../solve/types';
 import { solve } from '../solve';
 import { qrFactor, applyQt, rankTolerance } from '../solve/linalg';
 import { DEFAULTS } from '../spec/defaults';
+import { blockSseGradient } from '../solve/block';
 
 export interface ProfileContext {
   problem: LsqProblem;
@@ -34,6 +38,8 @@ export interface ProfileContext {
   maxIterations?: number;
   /** absolute time (Date.now()) after which profiling stops */
   deadline: number;
+  /** work budget: model evaluations × rows of all refits together, after which profiling stops (status 'timeout') */
+  maxWork?: number;
   shouldStop?: () => boolean;
 }
 
@@ -48,6 +54,8 @@ export interface ProfileResult {
   points: number;
   /** QR factorizations of the reduced Jacobian by the Gauss–Newton continuation */
   factorizations: number;
+  /** model evaluations × rows spent by the refits */
+  work: number;
 }
 
 const TIMEOUT = new Error('profile-timeout');
@@ -64,13 +72,15 @@ export function profileIntervals(ctx: ProfileContext): ProfileResult {
   const { problem } = ctx;
   const { n, p, y } = problem;
   const ci: ([ProfileBound, ProfileBound] | null)[] = [];
-  const stats = { refits: 0, points: 0, factorizations: 0 };
+  const stats = { refits: 0, points: 0, factorizations: 0, work: 0 };
+  const blocks = problem.blocks;
   const sw = new Float64Array(n);
   for (let i = 0; i < n; i++) sw[i] = Math.sqrt(problem.w ? problem.w[i] : 1);
   const f = new Float64Array(n);
-  const J = new Float64Array(n * p);
+  // (a joint fit never forms the dense Jacobian here)
+  const J = new Float64Array(blocks ? 0 : n * p);
   const r = new Float64Array(n);
-  const A = new Float64Array(n * Math.max(1, p));
+  const A = new Float64Array(blocks ? 0 : n * Math.max(1, p));
   const maxSteps = DEFAULTS.analysis.profileSteps;
   const tolS = 1e-9 * ctx.scale;
 
@@ -94,6 +104,7 @@ export function profileIntervals(ctx: ProfileContext): ProfileResult {
 
   /** Gauss–Newton on the parameters `free` with θ_j held; null when it does not settle (the caller refits by LM) */
   const gaussNewton = (start: Float64Array, j: number, free: number[]): Point | null => {
+    if (blocks) return null;
     const theta = Float64Array.from(start);
     const k = free.length;
     let S = evalAt(theta);
@@ -167,6 +178,7 @@ export function profileIntervals(ctx: ProfileContext): ProfileResult {
     const lmRefit = (from: Float64Array, v: number): Point => {
       const start = Float64Array.from(from);
       start[j] = v;
+      if (ctx.maxWork !== undefined && stats.work >= ctx.maxWork) throw TIMEOUT;
       stats.refits++;
       const remaining = Math.max(0.05, (ctx.deadline - Date.now()) / 1000);
       const res = solve(problem, {
@@ -174,7 +186,12 @@ export function profileIntervals(ctx: ProfileContext): ProfileResult {
         theta0: start, lower: ctx.lower, upper: ctx.upper, fixed: mask, refine: false,
         maxIterations: ctx.maxIterations ?? DEFAULTS.analysis.profileIterations, seconds: remaining, shouldStop: ctx.shouldStop,
       });
+      stats.work += res.evaluations * n;
       if (res.termination === 'cancelled' || res.termination === 'time-limit') throw TIMEOUT;
+      if (blocks) {
+        const bg = blockSseGradient(blocks, res.theta, y, sw, j);
+        return { S: res.sse, theta: res.theta, g: bg, ok: res.converged && Number.isFinite(res.sse) };
+      }
       const S = evalAt(res.theta);
       return { S: res.sse, theta: res.theta, g: Number.isFinite(S) ? gradJ(j) : NaN, ok: res.converged && Number.isFinite(res.sse) };
     };

@@ -15,11 +15,17 @@
 // - bounds: a parameter on a bound whose descent direction −g_j points outward is held (active set); the LM step is
 //   computed over the others and then shortened along its own direction to stay in the box, the blocking parameter
 //   landing exactly on its bound; ρ uses the predicted reduction of the shortened step. Never clamped after the step.
-// - at the end, (damped) Gauss–Newton steps polish the solution while they contract (see polish()).
+// - at the end, (damped) Gauss–Newton steps polish the solution while they contract (polish.ts).
+//
+// Files: this one is the driver (the iteration, the retry with the other scaling, the result); the step (lmpar,
+// qrsolv) is in lmStep.ts, the polish in polish.ts, the run's evaluated point and buffers in lmPoint.ts.
 import type { LsqProblem, SolveOptions, SolveResult } from './types';
 import type { Termination } from '../report';
-import { EPS, norm2, qrFactor, applyQt, rankTolerance, dotAt, diffOfSquares } from './linalg';
-import { CONVERGED, Prepared, evaluate, jacobianIsRaw, prepare, solutionInfo, stopReason } from './problem';
+import { EPS, norm2, dotAt, diffOfSquares } from './linalg';
+import { CONVERGED, Prepared, evaluate, prepare, solutionInfo, stopReason } from './problem';
+import { RunResult, fullTheta, newPoint, weightedY } from './lmPoint';
+import { Scratch, buildSub, lmpar, scaledGradient, scaledNorm } from './lmStep';
+import { polish } from './polish';
 import { DEFAULTS } from '../spec/defaults';
 
 /** default cap on LM iterations (accepted steps, each with a new Jacobian) per scaling strategy */
@@ -36,33 +42,6 @@ const DWARF = 2.2250738585072014e-308;
 
 export type Scaling = 'jacobian' | 'unit';
 
-interface RunResult {
-  x: Float64Array; // free parameters
-  fnorm: number;
-  termination: Termination;
-  iterations: number;
-  gnorm: number;
-  message: string;
-  /** the evaluation at x (residuals, Jacobian, raw f and J), kept so that nothing is evaluated twice at one point */
-  at: Point;
-  /** a second set of buffers of the same sizes, for trial points */
-  spare: Point;
-}
-
-/** weighted residuals r (length m) and Jacobian A (m×q) of the free parameters, raw f (n) and J (n×p) at one point */
-interface Point {
-  r: Float64Array;
-  A: Float64Array;
-  f: Float64Array;
-  J: Float64Array;
-  /** false when the point was never evaluated successfully (r, A, f, J undefined) */
-  ok: boolean;
-}
-
-function newPoint(P: Prepared, m: number): Point {
-  const J = new Float64Array(P.n * P.p);
-  return { r: new Float64Array(m), A: jacobianIsRaw(P, m) ? J : new Float64Array(m * P.q), f: new Float64Array(P.n), J, ok: false };
-}
 
 /**
  * Each trial point is evaluated once, with its Jacobian (kept when the step is accepted, so the next iteration needs no
@@ -134,12 +113,6 @@ function shouldRetry(P: Prepared, run: RunResult, keep?: (info: RankInfo) => voi
   return info.rank < P.q;
 }
 
-function fullTheta(P: Prepared, x: Float64Array): Float64Array {
-  const theta = Float64Array.from(P.theta0);
-  for (let k = 0; k < P.q; k++) theta[P.free[k]] = x[k];
-  return theta;
-}
-
 /** the result at run.x from the run's own evaluation there (run.at): the solution is never evaluated again */
 function finish(P: Prepared, run: RunResult, known: RankInfo | null = null): SolveResult {
   const theta = fullTheta(P, run.x);
@@ -162,42 +135,6 @@ function finish(P: Prepared, run: RunResult, known: RankInfo | null = null): Sol
 
 // ---------------------------------------------------------------- the LM iteration
 
-interface Sub {
-  /** free-parameter indices of the columns in the subproblem */
-  idx: number[];
-  k: number;
-  /** k×k R (column-major, ldr = k); strict lower triangle is workspace of qrsolv */
-  r: Float64Array;
-  ipvt: Int32Array;
-  qtf: Float64Array;
-  /** column norms of the sub-Jacobian */
-  acnorm: Float64Array;
-  diag: Float64Array;
-}
-
-/** scratch buffers reused across iterations (large fits would otherwise churn the garbage collector) */
-interface Scratch {
-  a: Float64Array;
-  wa: Float64Array;
-}
-
-function buildSub(A: Float64Array, m: number, fvec: Float64Array, idx: number[], diagAll: Float64Array, scratch: Scratch): Sub {
-  const k = idx.length;
-  const a = scratch.a.subarray(0, m * k);
-  for (let t = 0; t < k; t++) a.set(A.subarray(idx[t] * m, idx[t] * m + m), t * m);
-  const qr = qrFactor(a, m, k, true);
-  const wa = scratch.wa;
-  wa.set(fvec);
-  applyQt(qr, wa);
-  const r = new Float64Array(k * k);
-  for (let j = 0; j < k; j++) {
-    for (let i = 0; i < j; i++) r[j * k + i] = a[j * m + i];
-    r[j * k + j] = qr.rdiag[j];
-  }
-  const diag = new Float64Array(k);
-  for (let t = 0; t < k; t++) diag[t] = diagAll[idx[t]];
-  return { idx, k, r, ipvt: qr.perm, qtf: wa.subarray(0, k).slice(), acnorm: qr.acnorm, diag };
-}
 
 function lmRun(P: Prepared, xStart: Float64Array, scaling: Scaling): RunResult {
   const { n, q } = P;
@@ -394,284 +331,6 @@ function inactive(mask: Uint8Array): number[] {
   const idx: number[] = [];
   for (let j = 0; j < mask.length; j++) if (!mask[j]) idx.push(j);
   return idx;
-}
-
-function weightedY(P: Prepared): Float64Array {
-  const wy = new Float64Array(P.n);
-  for (let i = 0; i < P.n; i++) wy[i] = P.sw[i] * P.problem.y[i];
-  return wy;
-}
-
-function scaledNorm(d: Float64Array, x: Float64Array): number {
-  let s = 0;
-  for (let j = 0; j < x.length; j++) s += d[j] * x[j] * (d[j] * x[j]);
-  return Math.sqrt(s);
-}
-
-/** max_j |(Aᵀ r)_j| / (‖A_j‖ ‖r‖) over the sub-problem columns (MINPACK gnorm) */
-function scaledGradient(sub: Sub, fnorm: number): number {
-  if (fnorm === 0) return 0;
-  let gnorm = 0;
-  for (let j = 0; j < sub.k; j++) {
-    const l = sub.ipvt[j];
-    if (sub.acnorm[l] === 0) continue;
-    let sum = 0;
-    for (let i = 0; i <= j; i++) sum += sub.r[j * sub.k + i] * (sub.qtf[i] / fnorm);
-    gnorm = Math.max(gnorm, Math.abs(sum / sub.acnorm[l]));
-  }
-  return gnorm;
-}
-
-/**
- * MINPACK lmpar: λ ≥ 0 with ‖D p‖ ≈ Δ (within 10%) or λ = 0 when the Gauss–Newton step is inside the region,
- * where p solves min ‖[A; √λ D] p + [r; 0]‖. Returns λ and x = −p (the step is subtracted), in sub-column order.
- */
-function lmpar(sub: Sub, delta: number, parIn: number): { par: number; x: Float64Array } {
-  const { k: n, r, ipvt, diag, qtf } = sub;
-  const ldr = n;
-  const x = new Float64Array(n);
-  const sdiag = new Float64Array(n);
-  const wa1 = new Float64Array(n);
-  const wa2 = new Float64Array(n);
-  // Gauss–Newton direction (least squares if singular)
-  let nsing = n;
-  for (let j = 0; j < n; j++) {
-    wa1[j] = qtf[j];
-    if (r[j * ldr + j] === 0 && nsing === n) nsing = j;
-    if (nsing < n) wa1[j] = 0;
-  }
-  for (let j = nsing - 1; j >= 0; j--) {
-    wa1[j] /= r[j * ldr + j];
-    const temp = wa1[j];
-    for (let i = 0; i < j; i++) wa1[i] -= r[j * ldr + i] * temp;
-  }
-  for (let j = 0; j < n; j++) x[ipvt[j]] = wa1[j];
-  let iter = 0;
-  for (let j = 0; j < n; j++) wa2[j] = diag[j] * x[j];
-  let dxnorm = norm2(wa2);
-  let fp = dxnorm - delta;
-  if (fp <= 0.1 * delta || !Number.isFinite(dxnorm)) {
-    if (Number.isFinite(dxnorm)) return { par: 0, x };
-  }
-  // lower bound parl of the Newton iteration (zero if singular)
-  let parl = 0;
-  if (nsing >= n && Number.isFinite(dxnorm)) {
-    for (let j = 0; j < n; j++) {
-      const l = ipvt[j];
-      wa1[j] = diag[l] * (wa2[l] / dxnorm);
-    }
-    for (let j = 0; j < n; j++) {
-      let sum = 0;
-      for (let i = 0; i < j; i++) sum += r[j * ldr + i] * wa1[i];
-      wa1[j] = (wa1[j] - sum) / r[j * ldr + j];
-    }
-    const temp = norm2(wa1);
-    parl = fp / delta / temp / temp;
-    if (!Number.isFinite(parl)) parl = 0;
-  }
-  // upper bound paru
-  for (let j = 0; j < n; j++) {
-    let sum = 0;
-    for (let i = 0; i <= j; i++) sum += r[j * ldr + i] * qtf[i];
-    const l = ipvt[j];
-    wa1[j] = sum / diag[l];
-  }
-  const gnorm = norm2(wa1);
-  let paru = gnorm / delta;
-  if (paru === 0) paru = DWARF / Math.min(delta, 0.1);
-  let par = Math.max(parIn, parl);
-  par = Math.min(par, paru);
-  if (par === 0) par = Number.isFinite(dxnorm) && dxnorm > 0 ? gnorm / dxnorm : paru;
-  for (;;) {
-    iter++;
-    if (par === 0) par = Math.max(DWARF, 0.001 * paru);
-    const temp = Math.sqrt(par);
-    for (let j = 0; j < n; j++) wa1[j] = temp * diag[j];
-    qrsolv(n, r, ldr, ipvt, wa1, qtf, x, sdiag);
-    for (let j = 0; j < n; j++) wa2[j] = diag[j] * x[j];
-    dxnorm = norm2(wa2);
-    const fpOld = fp;
-    fp = dxnorm - delta;
-    if (Math.abs(fp) <= 0.1 * delta || (parl === 0 && fp <= fpOld && fpOld < 0) || iter === 10) break;
-    // Newton correction
-    for (let j = 0; j < n; j++) {
-      const l = ipvt[j];
-      wa1[j] = diag[l] * (wa2[l] / dxnorm);
-    }
-    for (let j = 0; j < n; j++) {
-      wa1[j] /= sdiag[j];
-      const t = wa1[j];
-      for (let i = j + 1; i < n; i++) wa1[i] -= r[j * ldr + i] * t;
-    }
-    const tn = norm2(wa1);
-    const parc = fp / delta / tn / tn;
-    if (fp > 0) parl = Math.max(parl, par);
-    if (fp < 0) paru = Math.min(paru, par);
-    par = Math.max(parl, par + parc);
-    if (!Number.isFinite(par)) { par = paru; }
-  }
-  return { par, x };
-}
-
-/** MINPACK qrsolv: solve min ‖[R; D̃] z − [Qᵀr; 0]‖ by Givens rotations; R's strict lower triangle receives Sᵀ. */
-function qrsolv(n: number, r: Float64Array, ldr: number, ipvt: Int32Array, diag: Float64Array, qtb: Float64Array, x: Float64Array, sdiag: Float64Array): void {
-  const wa = new Float64Array(n);
-  for (let j = 0; j < n; j++) {
-    for (let i = j; i < n; i++) r[j * ldr + i] = r[i * ldr + j];
-    x[j] = r[j * ldr + j];
-    wa[j] = qtb[j];
-  }
-  for (let j = 0; j < n; j++) {
-    const l = ipvt[j];
-    if (diag[l] !== 0) {
-      for (let k = j; k < n; k++) sdiag[k] = 0;
-      sdiag[j] = diag[l];
-      let qtbpj = 0;
-      for (let k = j; k < n; k++) {
-        if (sdiag[k] === 0) continue;
-        const rkk = r[k * ldr + k];
-        let cos: number;
-        let sin: number;
-        if (Math.abs(rkk) < Math.abs(sdiag[k])) {
-          const cotan = rkk / sdiag[k];
-          sin = 0.5 / Math.sqrt(0.25 + 0.25 * cotan * cotan);
-          cos = sin * cotan;
-        } else {
-          const tan = sdiag[k] / rkk;
-          cos = 0.5 / Math.sqrt(0.25 + 0.25 * tan * tan);
-          sin = cos * tan;
-        }
-        r[k * ldr + k] = cos * rkk + sin * sdiag[k];
-        const temp = cos * wa[k] + sin * qtbpj;
-        qtbpj = -sin * wa[k] + cos * qtbpj;
-        wa[k] = temp;
-        for (let i = k + 1; i < n; i++) {
-          const t = cos * r[k * ldr + i] + sin * sdiag[i];
-          sdiag[i] = -sin * r[k * ldr + i] + cos * sdiag[i];
-          r[k * ldr + i] = t;
-        }
-      }
-    }
-    sdiag[j] = r[j * ldr + j];
-    r[j * ldr + j] = x[j];
-  }
-  let nsing = n;
-  for (let j = 0; j < n; j++) {
-    if (sdiag[j] === 0 && nsing === n) nsing = j;
-    if (nsing < n) wa[j] = 0;
-  }
-  for (let j = nsing - 1; j >= 0; j--) {
-    let sum = 0;
-    for (let i = j + 1; i < nsing; i++) sum += r[j * ldr + i] * wa[i];
-    wa[j] = (wa[j] - sum) / sdiag[j];
-  }
-  for (let j = 0; j < n; j++) x[ipvt[j]] = wa[j];
-}
-
-// ---------------------------------------------------------------- Gauss–Newton polishing
-
-/**
- * (Damped) Gauss–Newton steps at the LM solution, z = argmin ‖A_s z − r‖² + λ‖z‖² in column-scaled units. Near the
- * minimum the SSE is flat to rounding, so steps are judged by contraction, not by SSE: a step is taken while
- * ‖z_k‖ < ‖z_{k−1}‖ and the residual norm does not grow by more than its rounding level 16 ε ‖√w y‖ (common
- * practice). On a large-residual problem plain Gauss–Newton may expand (the second-order term exceeds JᵀJ); then λ
- * grows (0 → 1e-4 → ×4 … ≤ 1), which makes the fixed-point iteration contract. Stops when ‖z‖ ≤ 1e-15 ‖D θ‖.
- */
-function polish(P: Prepared, run: RunResult): void {
-  const { n, q } = P;
-  const m = Math.max(n, q);
-  if (!run.at.ok) return;
-  // the run's evaluation at its solution starts the polish; trial points go to the spare buffers, swapped when taken
-  let r = run.at.r;
-  let A = run.at.A;
-  let fnorm = norm2(r, 0, n);
-  const tolAbs = 16 * EPS * norm2(weightedY(P), 0, n);
-  const lo = P.free.map((j) => P.lower[j]);
-  const hi = P.free.map((j) => P.upper[j]);
-  let prevZ = Infinity;
-  let lambda = 0;
-  let raises = 0;
-  const aBuf = new Float64Array((m + q) * q);
-  const bBuf = new Float64Array(m + q);
-  for (let step = 0; step < 60; step++) {
-    // hold parameters on a bound whose descent direction points outward
-    const idx: number[] = [];
-    for (let k = 0; k < q; k++) {
-      const g = dotAt(A, k * m, r, m);
-      if ((run.x[k] <= lo[k] && g > 0) || (run.x[k] >= hi[k] && g < 0)) continue;
-      idx.push(k);
-    }
-    const kk = idx.length;
-    if (kk === 0) return;
-    const mm = m + kk;
-    const a = aBuf.subarray(0, mm * kk);
-    a.fill(0);
-    const d = new Float64Array(kk);
-    let xs = 0;
-    const sl = Math.sqrt(lambda);
-    for (let t = 0; t < kk; t++) {
-      const c = idx[t] * m;
-      const nj = norm2(A, c, m);
-      d[t] = nj > 0 ? nj : 1;
-      xs += (d[t] * run.x[idx[t]]) ** 2;
-      scaleInto(a, t * mm, A, c, m, 1 / d[t]);
-      a[t * mm + m + t] = sl;
-    }
-    xs = Math.sqrt(xs);
-    const qr = qrFactor(a, mm, kk, true);
-    const b = bBuf.subarray(0, mm);
-    b.fill(0);
-    b.set(r.subarray(0, m));
-    applyQt(qr, b);
-    const tol = rankTolerance(m, kk) * Math.abs(qr.rdiag[0]);
-    let rank = 0;
-    while (rank < kk && Math.abs(qr.rdiag[rank]) > tol) rank++;
-    const z = new Float64Array(kk);
-    for (let j = rank - 1; j >= 0; j--) {
-      let s = b[j];
-      for (let i = j + 1; i < rank; i++) s -= a[i * mm + j] * z[i];
-      z[j] = s / qr.rdiag[j];
-    }
-    const zn = norm2(z);
-    if (!(zn > 0)) return;
-    if (!(zn < prevZ)) {
-      // expanding: damp more and measure contraction afresh
-      if (raises >= 8) return;
-      raises++;
-      lambda = lambda === 0 ? 1e-4 : Math.min(1, lambda * 4);
-      prevZ = Infinity;
-      continue;
-    }
-    const xNew = Float64Array.from(run.x);
-    let changed = false;
-    for (let t = 0; t < rank; t++) {
-      const k = idx[qr.perm[t]];
-      const v = run.x[k] - z[t] / d[qr.perm[t]];
-      if (v < lo[k] || v > hi[k]) return; // a step that leaves the box is not a polish
-      if (v !== run.x[k]) changed = true;
-      xNew[k] = v;
-    }
-    if (!changed) return;
-    const trial = run.spare;
-    if (!evaluate(P, fullTheta(P, xNew), trial.r, trial.A, m, trial)) return;
-    const fnorm1 = norm2(trial.r, 0, n);
-    if (!(fnorm1 <= fnorm + tolAbs)) return;
-    run.x = xNew;
-    run.fnorm = fnorm1;
-    trial.ok = true;
-    run.spare = run.at;
-    run.at = trial;
-    r = trial.r;
-    A = trial.A;
-    fnorm = Math.min(fnorm, fnorm1);
-    prevZ = zn;
-    if (zn <= 1e-15 * xs) return;
-  }
-}
-
-/** dst[doff + i] = src[soff + i] · s, i < len (d is a power of two in practice only when chosen so; here any scale) */
-function scaleInto(dst: Float64Array, doff: number, src: Float64Array, soff: number, len: number, s: number): void {
-  for (let i = 0; i < len; i++) dst[doff + i] = src[soff + i] * s;
 }
 
 export type { SolveOptions };

@@ -547,3 +547,27 @@ export function refineAugmented(
     for (let t = 0; t < q; t++) x[perm[t]] += dx[t] / d[perm[t]];
   }
 }
+
+/** Means and centred sums of squares and products of the first n values of a and b, by two passes (mean first, then
+ *  the centred sums; the textbook remedy for the cancellation of the one-pass formula, common practice). */
+export function centredMoments(a: ArrayLike<number>, b: ArrayLike<number>, n: number): { ma: number; mb: number; saa: number; sbb: number; sab: number } {
+  let ma = 0;
+  let mb = 0;
+  for (let i = 0; i < n; i++) {
+    ma += a[i];
+    mb += b[i];
+  }
+  ma /= n;
+  mb /= n;
+  let saa = 0;
+  let sbb = 0;
+  let sab = 0;
+  for (let i = 0; i < n; i++) {
+    const da = a[i] - ma;
+    const db = b[i] - mb;
+    saa += da * da;
+    sbb += db * db;
+    sab += da * db;
+  }
+  return { ma, mb, saa, sbb, sab };
+}

@@ -2,6 +2,7 @@
 import type { CompiledFormula } from '../formula/types';
 import type { LsqProblem, SolveResult } from './types';
 import { solveNonlinear } from './lm';
+import { centredMoments } from './linalg';
 
 /**
  * Deming regression of y on x with error-variance ratio λ = σ_y²/σ_x² (both constant): slope
@@ -9,25 +10,7 @@ import { solveNonlinear } from './lm';
  * eq. 5). null when s_xy = 0 (no direction preferred).
  */
 export function deming(x: ArrayLike<number>, y: ArrayLike<number>, lambda: number): { intercept: number; slope: number } | null {
-  const n = x.length;
-  let mx = 0;
-  let my = 0;
-  for (let i = 0; i < n; i++) {
-    mx += x[i];
-    my += y[i];
-  }
-  mx /= n;
-  my /= n;
-  let sxx = 0;
-  let syy = 0;
-  let sxy = 0;
-  for (let i = 0; i < n; i++) {
-    const dx = x[i] - mx;
-    const dy = y[i] - my;
-    sxx += dx * dx;
-    syy += dy * dy;
-    sxy += dx * dy;
-  }
+  const { ma: mx, mb: my, saa: sxx, sbb: syy, sab: sxy } = centredMoments(x, y, x.length);
   if (!(Math.abs(sxy) > 0)) return null;
   const d = syy - lambda * sxx;
   const slope = (d + Math.sqrt(d * d + 4 * lambda * sxy * sxy)) / (2 * sxy);

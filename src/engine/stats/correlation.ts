@@ -1,28 +1,12 @@
 // Pearson correlation of y with each x variable, and the "linear tendency" hint (|r| ≥ 0.7: common practice, no source).
 import type { Problem, Thresholds } from '../report';
+import { centredMoments } from '../solve/linalg';
 
 /** Pearson r of a and b (two-pass, centred); null when either has zero variance or n < 2. */
 export function pearson(a: ArrayLike<number>, b: ArrayLike<number>): number | null {
   const n = Math.min(a.length, b.length);
   if (n < 2) return null;
-  let ma = 0;
-  let mb = 0;
-  for (let i = 0; i < n; i++) {
-    ma += a[i];
-    mb += b[i];
-  }
-  ma /= n;
-  mb /= n;
-  let sab = 0;
-  let saa = 0;
-  let sbb = 0;
-  for (let i = 0; i < n; i++) {
-    const da = a[i] - ma;
-    const db = b[i] - mb;
-    sab += da * db;
-    saa += da * da;
-    sbb += db * db;
-  }
+  const { saa, sbb, sab } = centredMoments(a, b, n);
   if (!(saa > 0) || !(sbb > 0)) return null;
   const r = sab / Math.sqrt(saa * sbb);
   return Math.max(-1, Math.min(1, r));

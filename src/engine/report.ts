@@ -65,6 +65,52 @@ export interface DataSpec {
   groupBy?: string | string[];
 }
 
+/**
+ * Unknown samples read off the standard curve (docs/calibration.md): each id's readings are averaged and
+ * back-calculated with the interval for the mean of m readings, then multiplied by its dilution factor.
+ */
+export interface UnknownsSpec {
+  /** CSV of the readings, relative to the spec file (inside the workspace, like data.file) */
+  file: string;
+  /** column naming the sample; rows with the same id (and dilution) are replicate readings of one sample */
+  id: string;
+  /** column or expression of the reading on the scale of data.y (default: data.y's own expression) */
+  y?: string;
+  /** column of the dilution factor (> 0; default 1): the reported value is x × dilution */
+  dilution?: string;
+  /** the model that reads them (default: the best model, or the only one) */
+  model?: string;
+  /** CSV file the results are also written to (inside the workspace, a .csv file) */
+  output?: string;
+}
+
+/**
+ * Spiked controls with a nominal value: recovery % = 100 · reported value / nominal, with its interval and pass/fail
+ * against `accept`; also the recovery of the back-calculated standards. file, id, y and dilution default to unknowns'.
+ */
+export interface ControlsSpec {
+  file?: string;
+  id?: string;
+  y?: string;
+  dilution?: string;
+  /** column of the nominal (spiked) value, on the scale of the reported value (x × dilution) */
+  nominal: string;
+  /** acceptance range of the recovery, in %, e.g. [80, 120] */
+  accept?: [number, number];
+  /** acceptance range of the standards' recovery, in % (default: none, no pass/fail) */
+  acceptStandards?: [number, number];
+  model?: string;
+}
+
+/** Limits of detection and quantitation from the calibration (docs/calibration.md names each convention). */
+export interface LimitsSpec {
+  /** σ of the limits: the fit's residual SD (default) or the SD of the blank readings */
+  sigma?: 'residual' | 'blanks';
+  /** id of the blank readings in the unknowns file (default: the standards at x = 0) */
+  blanks?: string;
+  model?: string;
+}
+
 export type ExpectSpec = { value: number; tol: number } | { value: number; rel: number };
 
 export interface FitSpec {
@@ -87,6 +133,9 @@ export interface FitSpec {
   thresholds?: Partial<Thresholds>;
   /** name -> expression over a model's parameters (e.g. "log(2)/r"), reported for every model that has them */
   derived?: Record<string, string>;
+  unknowns?: UnknownsSpec;
+  controls?: ControlsSpec;
+  limits?: LimitsSpec;
 }
 
 /** A derived quantity of one fitted model (and group): value, delta-method SE and Wald interval. */
@@ -393,6 +442,113 @@ export interface ExpectResult {
   ok: boolean;
 }
 
+/** Something about one read-out worth a look: a stable kind (docs/calibration.md) and the words. */
+export interface ReadoutFlag {
+  kind:
+    | 'above-curve'
+    | 'below-curve'
+    | 'above-range'
+    | 'below-range'
+    | 'open-interval'
+    | 'no-interval'
+    | 'several-roots'
+    | 'below-lod'
+    | 'below-loq';
+  message: string;
+}
+
+/** One sample (id and dilution) read off the curve: the mean of its m readings back-calculated, with its interval. */
+export interface UnknownReport {
+  id: string;
+  /** 1-based data rows of its readings in the file */
+  rows: number[];
+  /** readings averaged */
+  m: number;
+  /** the readings, on the scale of data.y */
+  y: number[];
+  meanY: number;
+  /** standard deviation of the readings (null for one reading) */
+  sdY: number | null;
+  /** the back-calculated x of the mean reading (in the measured solution), null when there is none */
+  x: number | null;
+  /** interval of x for the mean of m readings (the prediction variance uses σ²/m); an end that does not exist is null */
+  interval: [number | null, number | null] | null;
+  dilution: number;
+  /** x × dilution, the value in the original sample */
+  value: number | null;
+  valueInterval: [number | null, number | null] | null;
+  flags: ReadoutFlag[];
+}
+
+/** spec.unknowns read off one model. */
+export interface UnknownsReport {
+  model: string;
+  /** why this model: named in the spec, the best by the comparison, or the only converged one */
+  modelFrom: 'spec' | 'best' | 'only';
+  file: string;
+  /** the CSV file written beside the results (spec unknowns.output), relative to the spec */
+  output?: string;
+  results: UnknownReport[];
+}
+
+/** A spiked control: the unknown's read-out with its nominal value, recovery % and its interval, and pass/fail. */
+export interface ControlReport extends UnknownReport {
+  nominal: number;
+  /** 100 · value / nominal */
+  recovery: number | null;
+  recoveryInterval: [number | null, number | null] | null;
+  /** recovery within controls.accept; null without accept or without a value */
+  pass: boolean | null;
+}
+
+/** One standard level back-calculated from the mean of its readings: recovery against its nominal x. */
+export interface StandardRecovery {
+  x: number;
+  m: number;
+  meanY: number;
+  back: number | null;
+  interval: [number | null, number | null] | null;
+  /** 100 · back / x (null at x = 0) */
+  recovery: number | null;
+  pass: boolean | null;
+}
+
+export interface ControlsReport {
+  model: string;
+  modelFrom: 'spec' | 'best' | 'only';
+  file: string | null;
+  accept: [number, number] | null;
+  acceptStandards: [number, number] | null;
+  results: ControlReport[];
+  standards: StandardRecovery[];
+  /** every control with a pass/fail passed (null without accept or without controls) */
+  pass: boolean | null;
+}
+
+/** Limits of detection and quantitation, with the convention each follows. */
+export interface LimitsReport {
+  model: string;
+  modelFrom: 'spec' | 'best' | 'only';
+  /** σ used and where it came from: the fit's residual SD, or the SD of n blank readings */
+  sigma: { from: 'residual' | 'blanks'; value: number | null; n: number };
+  /** the blank: its x and its response (the fitted value at x, or the mean of the blank readings) */
+  blank: { x: number; y: number | null };
+  /**
+   * "ich-line": LOD = 3.3·σ/|slope|, LOQ = 10·σ/|slope| (a straight line); "response": the x where the curve
+   * reaches the blank's response ± 3.3·σ and ± 10·σ (a curve)
+   */
+  convention: 'ich-line' | 'response';
+  lod: number | null;
+  loq: number | null;
+  /**
+   * Hubaux–Vos detection limit: the decision level yC (the upper prediction limit of the blank) and the smallest x whose
+   * lower prediction limit reaches it
+   */
+  detection: { decisionY: number | null; x: number | null };
+  /** the conventions and the caution, in words */
+  note: string;
+}
+
 /** What the results depend on: engine version, hashes of the spec and the data, and the random seed. */
 export interface ReportMeta {
   /** ENGINE_VERSION */
@@ -455,6 +611,12 @@ export interface FitReport {
   expect: ExpectResult[];
   /** with spec.derived: each derived quantity for each model (and group) that has its parameters */
   derived?: DerivedReport[];
+  /** with spec.unknowns: every unknown sample read off the curve */
+  unknowns?: UnknownsReport;
+  /** with spec.controls: spiked controls' and standards' recovery */
+  controls?: ControlsReport;
+  /** with spec.limits: limits of detection and quantitation */
+  limits?: LimitsReport;
   /** confidence level of every interval */
   confidence: number;
   /** the sidecar file holding every model's points and band (outputPoints "sidecar"), relative to this file */

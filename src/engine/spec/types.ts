@@ -30,7 +30,7 @@ export interface NormalizedModel extends ModelSpec {
   solver: Required<SolverSpec>;
 }
 
-export interface NormalizedSpec extends FitSpec {
+export interface NormalizedSpec extends Omit<FitSpec, 'unknowns' | 'controls' | 'limits'> {
   /** absolute path of the spec file */
   specFile: string;
   /** the spec file name as given to validateSpec */
@@ -49,4 +49,21 @@ export interface NormalizedSpec extends FitSpec {
   outputGiven?: string;
   expect: Record<string, Record<string, { value: number; tol: number } | { value: number; rel: number }>>;
   thresholds: Partial<Thresholds>;
+  unknowns?: NormalizedReadings & { output?: string; outputGiven?: string };
+  controls?: NormalizedReadings & { nominal: string; accept: [number, number] | null; acceptStandards: [number, number] | null; fromUnknowns: boolean };
+  limits?: { sigma: 'residual' | 'blanks'; blanks?: string; model?: string };
+}
+
+/** A file of readings to read off the curve (unknowns, controls), its paths resolved. */
+export interface NormalizedReadings {
+  /** absolute path; null for controls without a file of their own (only the standards' recovery) */
+  file: string | null;
+  fileGiven: string | null;
+  id: string;
+  /** expression of the reading (default data.y) */
+  y: string;
+  dilution?: string;
+  model?: string;
+  /** the spec key the block came from, for messages and paths */
+  key: 'unknowns' | 'controls';
 }

@@ -108,19 +108,19 @@ async function readSamples(
   try {
     header = await readHeader(file, readOpts);
   } catch (e) {
-    if (e instanceof DataError) fail(e.message.replace(/point data\.file/g, `point ${key}.file`), [key, 'file'], env);
+    if (e instanceof DataError) fail(e.message.replace(/data\.file/g, `${key}.file`), [key, 'file'], env);
     throw e;
   }
   const listed = header.length <= 12 ? header.join(', ') : `${header.slice(0, 12).join(', ')}, …`;
-  const column = (k: string, name: string) => {
+  const column = (k: string, name: string, owner: string = key) => {
     if (!header.includes(name)) {
       const s = suggest(name, header);
-      fail(`${key}.${k} names column '${name}', which ${label} does not have${s ? ` — did you mean '${s}'?` : ''} (columns: ${listed})`, [key, k], env);
+      fail(`${owner}.${k} names column '${name}', which ${label} does not have${s ? ` — did you mean '${s}'?` : ''} (columns: ${listed})`, [owner, k], env);
     }
   };
   column('id', r.id);
   if (r.dilution !== undefined) column('dilution', r.dilution);
-  if (opts.nominal !== undefined) column('nominal', opts.nominal);
+  if (opts.nominal !== undefined) column('nominal', opts.nominal, 'controls');
   const yNames = [...new Set(formulaIdentifiers(r.y).map((u) => u.name))].filter((n) => header.includes(n));
   let yExpr: ReturnType<typeof compileExpression>;
   try {

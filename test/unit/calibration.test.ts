@@ -1,0 +1,188 @@
+// Calibration read-outs through the spec and the function the CLI calls: dilution, flags in words, controls' and
+// standards' recovery with pass/fail, limits on a curve, and the CSV export (atomic, quoted, never over a foreign file).
+// The reference figures (R, Miller & Miller) are in test/reference/r-calibration.test.ts.
+import { strict as assert } from 'assert';
+import * as fs from 'fs';
+import * as os from 'os';
+import * as path from 'path';
+import { runSpecFile, serializeReport, writeResults, OutputError } from '../../src/engine/run';
+import { READOUTS_HEADER } from '../../src/engine/calibration';
+import type { FitReport } from '../../src/engine/report';
+import { asReport } from './reports';
+
+// a 4PL with lower 0.1, upper 2.0, ec50 5, slope 1.2 at 8 levels in duplicate, with small fixed deviations
+const f4 = (x: number) => 0.1 + 1.9 / (1 + (5 / x) ** 1.2);
+const LEVELS = [0.2, 0.5, 1, 2, 5, 10, 25, 60];
+const DEV = [0.012, -0.009, 0.004, -0.011, 0.008, -0.006, 0.01, -0.003, -0.007, 0.009, 0.002, -0.012, 0.006, -0.004, 0.011, -0.008];
+const STANDARDS = 'conc,signal\n' + LEVELS.flatMap((x, k) => [0, 1].map((r) => `${x},${(f4(x) + DEV[2 * k + r]).toFixed(4)}`)).join('\n') + '\n';
+const MODEL = { name: '4PL', builtin: 'logistic4', params: { slope: { min: 0 } } };
+
+function workspace(files: Record<string, string>): string {
+  const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'cw-cal-'));
+  for (const [k, v] of Object.entries(files)) {
+    fs.mkdirSync(path.dirname(path.join(dir, k)), { recursive: true });
+    fs.writeFileSync(path.join(dir, k), v);
+  }
+  return dir;
+}
+
+async function run(dir: string, spec: Record<string, unknown>): Promise<FitReport> {
+  fs.writeFileSync(path.join(dir, 'a.fitspec.json'), JSON.stringify({ data: { file: 'std.csv', x: 'conc', y: 'signal' }, models: [MODEL], ...spec }));
+  return asReport(await runSpecFile(path.join(dir, 'a.fitspec.json'), { workspaceRoot: dir }));
+}
+
+const PLATE = [
+  'sample,reading,dilution,nominal',
+  `S1,${f4(3).toFixed(4)},1,`,
+  `S1,${(f4(3) + 0.01).toFixed(4)},1,`,
+  `S2,${f4(3).toFixed(4)},10,`, // same reading, diluted tenfold
+  'HIGH,2.30,1,', // above the upper asymptote: no finite value
+  'LOW,0.02,1,', // below the lower asymptote
+  `EXTRA,${f4(90).toFixed(4)},1,`, // past the highest standard, still under the asymptote
+  `QC1,${f4(4).toFixed(4)},1,4`,
+  `QC1,${f4(4).toFixed(4)},1,4`,
+  `QC2,${f4(8).toFixed(4)},1,4`, // recovers about 200 %: fails 80–120
+  'BLK,0.101,1,',
+  'BLK,0.094,1,',
+  'BLK,0.108,1,',
+].join('\n') + '\n';
+
+describe('calibration read-outs', function () {
+  this.timeout(60000);
+  let dir: string;
+  let report: FitReport;
+  before(async () => {
+    dir = workspace({ 'std.csv': STANDARDS, 'plate.csv': PLATE });
+    report = await run(dir, {
+      unknowns: { file: 'plate.csv', id: 'sample', y: 'reading', dilution: 'dilution', output: 'out/readouts.csv' },
+      controls: { nominal: 'nominal', accept: [80, 120], acceptStandards: [85, 115] },
+      limits: { sigma: 'blanks', blanks: 'BLK' },
+    });
+  });
+
+  it('averages replicates of an id, keeps controls and blanks out of the unknowns, in order of appearance', () => {
+    const ids = report.unknowns!.results.map((u) => u.id);
+    assert.deepEqual(ids, ['S1', 'S2', 'HIGH', 'LOW', 'EXTRA']);
+    const s1 = report.unknowns!.results[0];
+    assert.equal(s1.m, 2);
+    assert.deepEqual(s1.rows, [1, 2]);
+    assert.ok(Math.abs(s1.meanY - (f4(3) + 0.005)) < 1e-4);
+    assert.ok(s1.sdY! > 0);
+    assert.ok(Math.abs(s1.x! - 3) < 0.15, String(s1.x));
+    assert.deepEqual(s1.flags, []);
+    assert.equal(report.unknowns!.modelFrom, 'best');
+  });
+
+  it('applies the dilution to the value and its interval, not to x', () => {
+    const [, s2] = report.unknowns!.results;
+    assert.equal(s2.dilution, 10);
+    assert.equal(s2.value, s2.x! * 10);
+    assert.deepEqual(s2.valueInterval, [s2.interval![0]! * 10, s2.interval![1]! * 10]);
+    // one reading: a wider interval than S1's mean of two at about the same reading
+    const s1 = report.unknowns!.results[0];
+    assert.ok(s2.interval![1]! - s2.interval![0]! > s1.interval![1]! - s1.interval![0]!);
+  });
+
+  it('flags readings beyond the curve and past the standards, in words', () => {
+    const by = Object.fromEntries(report.unknowns!.results.map((u) => [u.id, u]));
+    assert.equal(by.HIGH.x, null);
+    assert.equal(by.HIGH.value, null);
+    assert.deepEqual(by.HIGH.flags.map((f) => f.kind), ['above-curve']);
+    assert.match(by.HIGH.flags[0].message, /no finite value — dilute the sample/);
+    assert.deepEqual(by.LOW.flags.map((f) => f.kind), ['below-curve']);
+    assert.ok(by.EXTRA.flags.some((f) => f.kind === 'above-range'), JSON.stringify(by.EXTRA.flags));
+    assert.match(by.EXTRA.flags.find((f) => f.kind === 'above-range')!.message, /above the highest standard \(60\)/);
+    const p = report.problems.find((q) => q.code === 'unknown-flagged')!;
+    assert.equal(p.severity, 'info');
+    assert.match(p.message, /3 of 5 unknowns/);
+  });
+
+  it('controls: recovery with its interval, pass/fail against accept, and an error problem for a failed control', () => {
+    const c = report.controls!;
+    assert.deepEqual(c.results.map((r) => r.id), ['QC1', 'QC2']);
+    const [q1, q2] = c.results;
+    assert.ok(Math.abs(q1.recovery! - 100) < 5, String(q1.recovery));
+    assert.equal(q1.pass, true);
+    assert.ok(q1.recoveryInterval![0]! < q1.recovery! && q1.recovery! < q1.recoveryInterval![1]!);
+    assert.ok(q2.recovery! > 150);
+    assert.equal(q2.pass, false);
+    assert.equal(c.pass, false);
+    const p = report.problems.find((x) => x.code === 'control-failed')!;
+    assert.equal(p.severity, 'error');
+    assert.match(p.message, /QC2: \d+(\.\d+)? %/);
+  });
+
+  it('standards back-calculate near 100 % of nominal', () => {
+    const s = report.controls!.standards;
+    assert.deepEqual(s.map((x) => x.x), LEVELS);
+    for (const level of s) {
+      assert.equal(level.m, 2);
+      assert.ok(Math.abs(level.recovery! - 100) < 15, `${level.x}: ${level.recovery}`);
+    }
+  });
+
+  it('limits on a curve: the x where the curve leaves the blank by 3.3σ and 10σ, and Hubaux–Vos', () => {
+    const L = report.limits!;
+    assert.equal(L.convention, 'response');
+    assert.equal(L.sigma.from, 'blanks');
+    assert.equal(L.sigma.n, 3);
+    const b = [0.101, 0.094, 0.108];
+    const mu = (b[0] + b[1] + b[2]) / 3;
+    const sd = Math.sqrt(b.reduce((a, v) => a + (v - mu) ** 2, 0) / 2);
+    assert.ok(Math.abs(L.sigma.value! - sd) < 1e-15);
+    assert.ok(Math.abs(L.blank.y! - mu) < 1e-15);
+    const m = report.models[0].params;
+    const fit = (x: number) => m.lower.value + (m.upper.value - m.lower.value) / (1 + (m.ec50.value / x) ** m.slope.value);
+    assert.ok(Math.abs(fit(L.lod!) - (mu + 3.3 * sd)) < 1e-9, `f(LOD) ${fit(L.lod!)}`);
+    assert.ok(Math.abs(fit(L.loq!) - (mu + 10 * sd)) < 1e-9, `f(LOQ) ${fit(L.loq!)}`);
+    assert.ok(L.loq! > L.lod!);
+    assert.ok(L.detection.x! > 0 && L.detection.decisionY! > mu);
+    assert.match(L.note, /local regulations/);
+  });
+
+  it('writes the CSV export atomically, quoted, with its own header; leaves an identical file untouched', async () => {
+    const specPath = path.join(dir, 'a.fitspec.json');
+    await writeResults(report, specPath, { workspaceRoot: dir });
+    const file = path.join(dir, 'out', 'readouts.csv');
+    const text = fs.readFileSync(file, 'utf8');
+    const lines = text.trimEnd().split('\n');
+    assert.equal(lines[0], READOUTS_HEADER);
+    assert.equal(lines.length, 1 + 5 + 2);
+    assert.match(lines[1], /^unknown,S1,2,/);
+    assert.match(lines[7], /^control,QC2,.*,fail,$/);
+    assert.match(lines[3], /^unknown,HIGH,1,2\.3,,,,,1,,,,,,,,,the reading 2\.3 is beyond what the curve reaches/); // no value: empty cells
+    assert.deepEqual(fs.readdirSync(path.join(dir, 'out')), ['readouts.csv']); // no temporary left
+    const before = fs.statSync(file).mtimeMs;
+    await new Promise((r) => setTimeout(r, 20));
+    await writeResults(report, specPath, { workspaceRoot: dir });
+    assert.equal(fs.statSync(file).mtimeMs, before);
+  });
+
+  it('refuses to replace a CSV it did not write, and leaves it as it was', async () => {
+    const d2 = workspace({ 'std.csv': STANDARDS, 'plate.csv': PLATE, 'mine.csv': 'a,b\n1,2\n' });
+    const r = await run(d2, { unknowns: { file: 'plate.csv', id: 'sample', y: 'reading', output: 'mine.csv' } });
+    await assert.rejects(writeResults(r, path.join(d2, 'a.fitspec.json'), { workspaceRoot: d2 }), (e: unknown) => e instanceof OutputError && /unknowns\.output.*not a Curvewright table/.test((e as Error).message));
+    assert.equal(fs.readFileSync(path.join(d2, 'mine.csv'), 'utf8'), 'a,b\n1,2\n');
+  });
+
+  it('a cell a spreadsheet would run as a formula is written as text', async () => {
+    const d3 = workspace({ 'std.csv': STANDARDS, 'u.csv': `sample,reading\n"=cmd|x,y",${f4(3).toFixed(4)}\n` });
+    const r = await run(d3, { unknowns: { file: 'u.csv', id: 'sample', y: 'reading', output: 'r.csv' } });
+    await writeResults(r, path.join(d3, 'a.fitspec.json'), { workspaceRoot: d3 });
+    assert.match(fs.readFileSync(path.join(d3, 'r.csv'), 'utf8').split('\n')[1], /^unknown,"'=cmd\|x,y",1,/);
+  });
+
+  it('is deterministic: the same spec and files give the same report', async () => {
+    const again = await run(dir, {
+      unknowns: { file: 'plate.csv', id: 'sample', y: 'reading', dilution: 'dilution', output: 'out/readouts.csv' },
+      controls: { nominal: 'nominal', accept: [80, 120], acceptStandards: [85, 115] },
+      limits: { sigma: 'blanks', blanks: 'BLK' },
+    });
+    assert.equal(serializeReport(again), serializeReport(report));
+  });
+
+  it('a spec without the blocks has no calibration keys (existing reports unchanged)', async () => {
+    const r = await run(dir, {});
+    assert.ok(!('unknowns' in r) && !('controls' in r) && !('limits' in r));
+  });
+});

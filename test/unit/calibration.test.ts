@@ -9,6 +9,7 @@ import { runSpecFile, serializeReport, writeResults, OutputError } from '../../s
 import { READOUTS_HEADER } from '../../src/engine/calibration';
 import type { FitReport } from '../../src/engine/report';
 import { asReport } from './reports';
+import { calibrationHtml } from '../../src/shared/html';
 
 // a 4PL with lower 0.1, upper 2.0, ec50 5, slope 1.2 at 8 levels in duplicate, with small fixed deviations
 const f4 = (x: number) => 0.1 + 1.9 / (1 + (5 / x) ** 1.2);
@@ -170,6 +171,18 @@ describe('calibration read-outs', function () {
     const r = await run(d3, { unknowns: { file: 'u.csv', id: 'sample', y: 'reading', output: 'r.csv' } });
     await writeResults(r, path.join(d3, 'a.fitspec.json'), { workspaceRoot: d3 });
     assert.match(fs.readFileSync(path.join(d3, 'r.csv'), 'utf8').split('\n')[1], /^unknown,"'=cmd\|x,y",1,/);
+  });
+
+  it('the HTML report section lists every read-out, with the ids escaped', async () => {
+    const d4 = workspace({ 'std.csv': STANDARDS, 'u.csv': `sample,reading\n<img src=x onerror=alert(1)>,${f4(3).toFixed(4)}\n` });
+    const r = await run(d4, { unknowns: { file: 'u.csv', id: 'sample', y: 'reading' } });
+    const html = calibrationHtml(r);
+    assert.ok(!html.includes('<img'), html);
+    assert.match(html, /&lt;img src=x onerror=alert\(1\)&gt;/);
+    const full = calibrationHtml(report);
+    for (const id of ['S1', 'S2', 'HIGH', 'LOW', 'EXTRA', 'QC1', 'QC2']) assert.match(full, new RegExp(`<td>${id}</td>`));
+    assert.match(full, /Limits \(model 4PL\)/);
+    assert.equal(calibrationHtml(await run(dir, {})), '');
   });
 
   it('is deterministic: the same spec and files give the same report', async () => {

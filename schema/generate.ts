@@ -417,6 +417,24 @@ export function fitreportSchema(): Schema {
     band,
     predictions: arr('Predictions at spec.predict.', prediction),
     inverse: arr('Inverse predictions at spec.solveFor.', inverse),
+    originalScale: obj('When data.y is log10, log/ln or sqrt of a column: the predictions and band on that column\'s scale (inverse transform, each interval end mapped).', {
+      column: str('The column data.y transforms.'),
+      transform: { enum: ['log10', 'log', 'sqrt'], description: 'The transform of data.y.' },
+      note: str('What the numbers are, in words.'),
+      predictions: arr('The predictions at spec.predict, back-transformed.', obj('One prediction on the original scale.', {
+        x: { description: 'The x value (a number, or an object for several variables).', oneOf: [{ type: 'number' }, { type: 'object', additionalProperties: { type: 'number' } }] },
+        y: nnum('Back-transformed prediction (the median on the original scale).'),
+        ci: numOrNull2('Back-transformed confidence interval.'),
+        pi: numOrNull2('Back-transformed prediction interval.'),
+      }, ['x', 'y', 'ci', 'pi'])),
+      band: {
+        description: 'The band back-transformed, or null.',
+        oneOf: [{ type: 'null' }, obj('Band on the original scale.', {
+          x: numbers('Grid of x.'), fit: numbers('Curve.'), ciLow: numbers('Lower confidence limit.'), ciHigh: numbers('Upper confidence limit.'),
+          piLow: numbers('Lower prediction limit.'), piHigh: numbers('Upper prediction limit.'),
+        }, ['x', 'fit', 'ciLow', 'ciHigh', 'piLow', 'piHigh'])],
+      },
+    }, ['column', 'transform', 'note', 'predictions', 'band']),
     problems: arr('Problems of this model.', { $ref: '#/definitions/problem' }),
   }, ['name', 'kind', 'formula', 'linear', 'status', 'termination', 'iterations', 'paramOrder', 'params', 'covariance', 'correlation', 'stats', 'residualTests', 'band', 'predictions', 'inverse', 'problems']);
   const ranking = arr('Models ranked by AICc.', obj('One model.', {
@@ -606,6 +624,12 @@ export function fitreportSchema(): Schema {
     meanY: num('Mean reading.'),
     sdY: nnum('Standard deviation of the readings (null for one).'),
     x: nnum('Back-calculated x of the mean reading, in the measured solution; null when there is none.'),
+    xOriginal: obj('When data.x is log10, log/ln or sqrt of a column: x and its interval on that column\'s scale (the value uses it).', {
+      column: str('The column data.x transforms.'),
+      transform: { enum: ['log10', 'log', 'sqrt'], description: 'The transform of data.x.' },
+      x: nnum('x back-transformed.'),
+      interval: numOrNull2('The interval back-transformed.'),
+    }, ['column', 'transform', 'x', 'interval']),
     interval: numOrNull2('Interval of x for the mean of m readings (prediction variance with σ²/m); an end that does not exist is null.'),
     dilution: num('Dilution factor.'),
     value: nnum('x × dilution: the value in the original sample.'),

@@ -11,8 +11,18 @@ import type { ControlReport, ControlsReport, FileLocation, FitReport, JsonPath, 
 import type { NormalizedReadings, NormalizedSpec } from './spec/types';
 import type { ModelAnalysisInput } from './stats/api';
 import { detectionLimits, readOff, recovery, standardsRecovery, fmtNum } from './stats/calibration';
+import { originalScaleOf } from './stats/calibrationScale';
+
+/** Every model's predictions and band on the original scale when data.y is a transform of a column (in place). */
+export function addOriginalScale(spec: NormalizedSpec, models: ModelReport[]): void {
+  for (const m of models) {
+    const o = originalScaleOf(m, spec.data.y);
+    if (o) m.originalScale = o;
+  }
+}
 import { normalQuantile, tQuantile } from './stats/distributions';
 import type { PredictionContext } from './stats/predict';
+import { transformOf, type ScaleTransform } from './stats/calibrationScale';
 import { cleanStaleTemps, inputRefusal, realOrSelf, tmpName } from './paths';
 
 /** Samples (id × dilution) read off in one run; each is a root search over the curve, so a plate-sized bound. */
@@ -25,6 +35,12 @@ export interface CalibrationEnv {
   locate: (p: JsonPath) => FileLocation | undefined;
   /** the x column's label, for messages */
   xLabel: string;
+}
+
+/** data.x as a transform of a column (read-outs then also on the column's scale), or undefined. */
+function xScaleOf(spec: NormalizedSpec): { column: string; transform: ScaleTransform } | undefined {
+  const v = Object.keys(spec.data.x);
+  return v.length === 1 ? (transformOf(spec.data.x[v[0]]) ?? undefined) : undefined;
 }
 
 export interface FittedModel {
@@ -198,9 +214,13 @@ export async function runCalibration(
   const sameFile = !!(u && k && k.file !== null && u.file === k.file);
   const blankId = l?.blanks;
   let blankReadings: number[] | null = null;
+  const xScale = xScaleOf(spec);
+  const scaleOpt = xScale ? { xScale } : {};
 
   // limits first: the unknowns' flags say when a value is below them
   if (l) {
+    if (xScale)
+      fail(`limits need x on its own scale, but data.x is ${xScale.transform}(${xScale.column}) — fit the standards against ${xScale.column} itself for limits, or leave "limits" out`, ['limits'], env);
     const { m, from } = pickModel(fitted, best, l.model, 'limits', env);
     const ctx = contextOf(m, spec);
     let sigma: LimitsReport['sigma'];
@@ -255,7 +275,7 @@ export async function runCalibration(
       keep: (id, nominalCell) => id !== blankId && !(sameFile && nominalCell !== undefined && nominalCell.trim() !== ''),
     });
     const results = samples.map((s) => {
-      const r = readOff(ctx, { id: s.id, rows: s.rows, y: s.y, dilution: s.dilution, xLabel: env.xLabel });
+      const r = readOff(ctx, { id: s.id, rows: s.rows, y: s.y, dilution: s.dilution, xLabel: env.xLabel, ...scaleOpt });
       flagLimits(r);
       return r;
     });
@@ -279,14 +299,14 @@ export async function runCalibration(
         nominal: k.nominal,
         keep: (id, nominalCell) => id !== blankId && nominalCell !== undefined && nominalCell.trim() !== '',
       });
-      if (samples.length === 0) fail(`controls: no row of ${k.fileGiven} has a nominal value in column '${k.nominal}' — fill in the spiked value of each control`, ['controls', 'nominal'], env);
+      if (samples.length === 0 && k.accept) fail(`controls: no row of ${k.fileGiven} has a nominal value in column '${k.nominal}' — fill in the spiked value of each control, or leave controls.accept out to check only the standards`, ['controls', 'nominal'], env);
       results = samples.map((s) => {
-        const r = readOff(ctx, { id: s.id, rows: s.rows, y: s.y, dilution: s.dilution, xLabel: env.xLabel });
+        const r = readOff(ctx, { id: s.id, rows: s.rows, y: s.y, dilution: s.dilution, xLabel: env.xLabel, ...scaleOpt });
         flagLimits(r);
         return { ...r, nominal: s.nominal!, ...recovery(r.value, r.valueInterval, s.nominal!, k.accept) };
       });
     }
-    const standards = standardsRecovery(ctx, m.input.y, k.acceptStandards);
+    const standards = standardsRecovery(ctx, m.input.y, k.acceptStandards, xScale);
     const verdicts = results.map((r) => r.pass).filter((p): p is boolean => p !== null);
     out.controls = {
       model: m.report.name,

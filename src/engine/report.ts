@@ -327,6 +327,20 @@ export interface InverseReport {
   moreRoots?: number;
 }
 
+/**
+ * data.y is log10, log/ln or sqrt of one column: the predictions and band on that column's scale, by the inverse
+ * transform with each interval end mapped (docs/calibration.md "Original scale").
+ */
+export interface OriginalScaleReport {
+  /** the column data.y transforms */
+  column: string;
+  transform: 'log10' | 'log' | 'sqrt';
+  /** what the numbers are, in words */
+  note: string;
+  predictions: { x: number | Record<string, number>; y: number | null; ci: [number, number] | null; pi: [number, number] | null }[];
+  band: { x: number[]; fit: number[]; ciLow: number[]; ciHigh: number[]; piLow: number[]; piHigh: number[] } | null;
+}
+
 /** Everything known about one fitted model: how the solver ended, parameters, statistics, diagnostics and problems. */
 export interface ModelReport {
   name: string;
@@ -358,6 +372,8 @@ export interface ModelReport {
   band: BandReport | null;
   predictions: PredictionReport[];
   inverse: InverseReport[];
+  /** when data.y is a transform of a column: predictions and band on the column's own scale */
+  originalScale?: OriginalScaleReport;
   problems: Problem[];
 }
 
@@ -471,10 +487,12 @@ export interface UnknownReport {
   sdY: number | null;
   /** the back-calculated x of the mean reading (in the measured solution), null when there is none */
   x: number | null;
+  /** when data.x is log10, log/ln or sqrt of a column: x and its interval on that column's scale (value uses it) */
+  xOriginal?: { column: string; transform: 'log10' | 'log' | 'sqrt'; x: number | null; interval: [number | null, number | null] | null };
   /** interval of x for the mean of m readings (the prediction variance uses σ²/m); an end that does not exist is null */
   interval: [number | null, number | null] | null;
   dilution: number;
-  /** x × dilution, the value in the original sample */
+  /** x × dilution (x on the original scale when data.x is transformed), the value in the original sample */
   value: number | null;
   valueInterval: [number | null, number | null] | null;
   flags: ReadoutFlag[];

@@ -38,7 +38,7 @@ import { jointFormula, jointModelSpec } from './joint';
 import { sharingTest } from './stats/sharing';
 import { DEFAULTS } from './spec/defaults';
 import { cleanStaleTemps, inputRefusal, LockBusyError, outputRefusal as pathOutputRefusal, realOrSelf, tmpName, withFileLock } from './paths';
-import { isReadoutsFile, readoutsCsv, runCalibration, writeTextAtomic, type FittedModel } from './calibration';
+import { addOriginalScale, isReadoutsFile, readoutsCsv, runCalibration, writeTextAtomic, type FittedModel } from './calibration';
 
 export interface RunOptions {
   /** spec text to use instead of the file on disk (e.g. unsaved editor text) */
@@ -469,7 +469,8 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
       }
   }
 
-  // 7. calibration: unknowns, controls and limits read off the curve (docs/calibration.md)
+  // 7. calibration: predictions back on the original scale of a transformed y, then unknowns, controls and limits
+  addOriginalScale(spec, models);
   const calibration = spec.unknowns || spec.controls || spec.limits
     ? await runCalibration(spec, single, comparison ? comparison.best : null, {
         workspaceRoot,

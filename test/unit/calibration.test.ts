@@ -199,3 +199,66 @@ describe('calibration read-outs', function () {
     assert.ok(!('unknowns' in r) && !('controls' in r) && !('limits' in r));
   });
 });
+
+describe('back on the original scale', function () {
+  this.timeout(60000);
+  const X = [1, 2, 3, 4, 5, 6, 7, 8];
+  const D = [0.01, -0.008, 0.004, -0.012, 0.009, -0.003, 0.006, -0.005];
+
+  it('data.y = log10(signal): predictions and band also as signal, each interval end back-transformed, labelled', async () => {
+    const csv = 'x,signal\n' + X.map((x, i) => `${x},${(10 ** (0.5 + 0.2 * x + D[i])).toFixed(5)}`).join('\n') + '\n';
+    const dir = workspace({ 'd.csv': csv });
+    fs.writeFileSync(path.join(dir, 'a.fitspec.json'), JSON.stringify({ data: { file: 'd.csv', x: 'x', y: 'log10(signal)' }, models: [{ name: 'line', builtin: 'linear' }], predict: [2, 5] }));
+    const r = asReport(await runSpecFile(path.join(dir, 'a.fitspec.json'), { workspaceRoot: dir }));
+    const m = r.models[0];
+    const o = m.originalScale!;
+    assert.equal(o.column, 'signal');
+    assert.equal(o.transform, 'log10');
+    assert.match(o.note, /signal = 10\^\(log10\(signal\)\).*median/);
+    m.predictions.forEach((p, k) => {
+      assert.equal(o.predictions[k].y, 10 ** p.y!);
+      assert.deepEqual(o.predictions[k].ci, [10 ** p.ci![0], 10 ** p.ci![1]]);
+      assert.deepEqual(o.predictions[k].pi, [10 ** p.pi![0], 10 ** p.pi![1]]);
+    });
+    assert.deepEqual(o.band!.x, m.band!.x);
+    assert.deepEqual(o.band!.piHigh, m.band!.piHigh.map((v) => 10 ** v));
+    // not a transform of one column: no original scale (e.g. the thermistor's temp_c + 273.15)
+    fs.writeFileSync(path.join(dir, 'b.fitspec.json'), JSON.stringify({ data: { file: 'd.csv', x: 'x', y: 'signal + 1' }, models: [{ name: 'line', builtin: 'linear' }] }));
+    const plain = asReport(await runSpecFile(path.join(dir, 'b.fitspec.json'), { workspaceRoot: dir }));
+    assert.ok(!('originalScale' in plain.models[0]));
+  });
+
+  it('sqrt: a negative interval end maps to 0, not to its square', async () => {
+    const csv = 'x,count\n' + X.map((x, i) => `${x},${((0.1 * x + D[i] * 20) ** 2).toFixed(5)}`).join('\n') + '\n';
+    const dir = workspace({ 'd.csv': csv });
+    fs.writeFileSync(path.join(dir, 'a.fitspec.json'), JSON.stringify({ data: { file: 'd.csv', x: 'x', y: 'sqrt(count)' }, models: [{ name: 'line', builtin: 'linear' }], predict: [0] }));
+    const r = asReport(await runSpecFile(path.join(dir, 'a.fitspec.json'), { workspaceRoot: dir }));
+    const p = r.models[0].predictions[0];
+    const o = r.models[0].originalScale!.predictions[0];
+    assert.ok(p.pi![0] < 0, String(p.pi));
+    assert.equal(o.pi![0], 0);
+    assert.equal(o.pi![1], p.pi![1] ** 2);
+  });
+
+  it('data.x = log10(conc): unknowns and standards read back as conc, the dilution applied to conc', async () => {
+    const conc = [0.5, 1, 2, 5, 10, 20, 50, 100];
+    const csv = 'conc,signal\n' + conc.map((c, i) => `${c},${(0.3 + 0.8 * Math.log10(c) + D[i]).toFixed(5)}`).join('\n') + '\n';
+    const dir = workspace({ 'd.csv': csv, 'u.csv': `sample,signal,dilution,nominal\nA,${(0.3 + 0.8 * Math.log10(8)).toFixed(5)},4,\n` });
+    fs.writeFileSync(path.join(dir, 'a.fitspec.json'), JSON.stringify({
+      data: { file: 'd.csv', x: 'log10(conc)', y: 'signal' }, models: [{ name: 'line', builtin: 'linear' }],
+      unknowns: { file: 'u.csv', id: 'sample', dilution: 'dilution' }, controls: { nominal: 'nominal' },
+    }));
+    const r = asReport(await runSpecFile(path.join(dir, 'a.fitspec.json'), { workspaceRoot: dir }));
+    const u = r.unknowns!.results[0];
+    assert.equal(u.xOriginal!.column, 'conc');
+    assert.equal(u.xOriginal!.x, 10 ** u.x!);
+    assert.ok(Math.abs(u.xOriginal!.x! - 8) < 0.3, String(u.xOriginal!.x));
+    assert.equal(u.value, u.xOriginal!.x! * 4);
+    assert.deepEqual(u.valueInterval, [10 ** u.interval![0]! * 4, 10 ** u.interval![1]! * 4]);
+    for (const s of r.controls!.standards) assert.ok(Math.abs(s.recovery! - 100) < 6, `${s.x}: ${s.recovery}`);
+    // limits need x on its own scale
+    fs.writeFileSync(path.join(dir, 'b.fitspec.json'), JSON.stringify({ data: { file: 'd.csv', x: 'log10(conc)', y: 'signal' }, models: [{ name: 'line', builtin: 'linear' }], limits: {} }));
+    const bad = await runSpecFile(path.join(dir, 'b.fitspec.json'), { workspaceRoot: dir });
+    assert.ok('error' in bad && /limits need x on its own scale/.test(bad.error.message) && JSON.stringify(bad.error.path) === '["limits"]');
+  });
+});

@@ -6,6 +6,7 @@
 import type { LimitsReport, ReadoutFlag, StandardRecovery, UnknownReport } from '../report';
 import { computeInverse, makePredictor, variableRange, type PredictionContext } from './predict';
 import { bisectBoundary } from './roots';
+import { inverseOf, type ScaleTransform } from './calibrationScale';
 
 /** Shortest form of a number for messages (4 significant digits). */
 export function fmtNum(v: number): string {
@@ -44,6 +45,8 @@ export interface ReadOffInput {
   dilution: number;
   /** what x is called in messages, e.g. "conc_ng_ml" */
   xLabel: string;
+  /** data.x is a transform of a column: x is also given on the column's scale, and the value uses that */
+  xScale?: { column: string; transform: ScaleTransform };
 }
 
 /**
@@ -111,6 +114,10 @@ export function readOff(ctx: PredictionContext, input: ReadOffInput): UnknownRep
     }
   } else if (x !== null) interval = null;
   const d = input.dilution;
+  const back = input.xScale ? inverseOf(input.xScale.transform) : (v: number) => v;
+  const orig = (v: number | null) => (v === null ? null : back(v));
+  const xo = orig(x);
+  const io: [number | null, number | null] | null = interval ? [orig(interval[0]), orig(interval[1])] : null;
   const scaleEnd = (v: number | null) => (v === null ? null : v * d);
   return {
     id: input.id,
@@ -120,10 +127,11 @@ export function readOff(ctx: PredictionContext, input: ReadOffInput): UnknownRep
     meanY,
     sdY: sd(input.y),
     x,
+    ...(input.xScale ? { xOriginal: { column: input.xScale.column, transform: input.xScale.transform, x: xo, interval: io } } : {}),
     interval,
     dilution: d,
-    value: x === null ? null : x * d,
-    valueInterval: interval ? [scaleEnd(interval[0]), scaleEnd(interval[1])] : null,
+    value: xo === null ? null : xo * d,
+    valueInterval: io ? [scaleEnd(io[0]), scaleEnd(io[1])] : null,
     flags,
   };
 }
@@ -145,7 +153,8 @@ export function recovery(
 }
 
 /** Each standard level (distinct x) back-calculated from the mean of its readings, and its recovery against x. */
-export function standardsRecovery(ctx: PredictionContext, ys: ArrayLike<number>, accept: [number, number] | null): StandardRecovery[] {
+export function standardsRecovery(ctx: PredictionContext, ys: ArrayLike<number>, accept: [number, number] | null, xScale?: ReadOffInput['xScale']): StandardRecovery[] {
+  const inv = xScale ? inverseOf(xScale.transform) : (v: number) => v;
   const X = ctx.X[0];
   const levels = new Map<number, number[]>();
   for (let i = 0; i < X.length; i++) {
@@ -157,8 +166,10 @@ export function standardsRecovery(ctx: PredictionContext, ys: ArrayLike<number>,
   for (const x of [...levels.keys()].sort((a, b) => a - b)) {
     const idx = levels.get(x)!;
     const y = idx.map((i) => ys[i]);
-    const r = readOff(ctx, { id: String(x), rows: [], y, dilution: 1, xLabel: 'x' });
-    const rec = x !== 0 ? recovery(r.x, r.interval, x, accept) : { recovery: null, pass: null };
+    const r = readOff(ctx, { id: String(x), rows: [], y, dilution: 1, xLabel: 'x', ...(xScale ? { xScale } : {}) });
+    // on the original scale when x is transformed: the recovery of the concentration, not of its logarithm
+    const nominal = inv(x);
+    const rec = nominal !== 0 ? recovery(r.value, r.valueInterval, nominal, accept) : { recovery: null, pass: null };
     out.push({ x, m: idx.length, meanY: r.meanY, back: r.x, interval: r.interval, recovery: rec.recovery, pass: rec.pass });
   }
   return out;

@@ -247,6 +247,15 @@ export function fitspecSchema(): Schema {
         acceptStandards: arr('Acceptance range of the back-calculated standards\' recovery in %, [low, high]. Default: none (no pass/fail).', { type: 'number', minimum: 0 }, { minItems: 2, maxItems: 2 }),
         model: str('Model that reads them (default: unknowns.model, else the best model).', { minLength: 1 }),
       }, ['nominal']),
+      potency: obj('Relative potency of groups against a reference group from a joint 4PL/5PL fit with the asymptotes and slope shared (models[].shared), and parallelism by equivalence (docs/calibration.md). Needs data.groupBy.', {
+        model: str('The joint model: builtin logistic4 (or logistic5) with shared lower, upper, slope (and asym). Default: the only such model.', { minLength: 1 }),
+        reference: str('Group id of the reference.', { minLength: 1 }),
+        test: arr('Group ids compared with the reference (default: every other group).', { type: 'string', minLength: 1 }, { minItems: 1 }),
+        margin: obj('Equivalence margins of the ratios test/reference, each [low, high] with 0 < low < 1 < high.', {
+          slope: arr('Margin of the ratio of slopes, e.g. [0.8, 1.25].', { type: 'number', exclusiveMinimum: 0 }, { minItems: 2, maxItems: 2 }),
+          span: arr('Margin of the ratio of spans (upper − lower), e.g. [0.8, 1.25].', { type: 'number', exclusiveMinimum: 0 }, { minItems: 2, maxItems: 2 }),
+        }, ['slope', 'span']),
+      }, ['reference']),
       limits: obj('Limits of detection and quantitation (docs/calibration.md names each convention; validate them under your own procedure).', {
         sigma: { enum: ['residual', 'blanks'], description: 'σ of the limits: the fit\'s residual standard deviation, or the standard deviation of the blank readings.', default: 'residual' },
         blanks: str('Id of the blank readings in the unknowns file. Default: the standards at x = 0.', { minLength: 1 }),
@@ -612,6 +621,30 @@ export function fitreportSchema(): Schema {
       }, ['decisionY', 'x']),
       note: str('The conventions and the caution, in words.'),
     }, ['model', 'modelFrom', 'sigma', 'blank', 'convention', 'lod', 'loq', 'detection', 'note']),
+    potency: obj('With spec.potency: relative potency of each test group, and parallelism by equivalence.', {
+      model: str('The joint model the potency comes from.'),
+      separate: { type: ['string', 'null'], description: 'The separate fits the parallelism check uses, or null.' },
+      reference: str('Group id of the reference.'),
+      confidence: num('Level of the potency interval.'),
+      method: { enum: ['fieller'], description: 'Interval of a ratio: Fieller\'s theorem.' },
+      results: arr('One entry per test group.', obj('One test group.', {
+        test: str('Group id.'),
+        ratio: nnum('Midpoint of the reference / midpoint of the test (above 1: the test is more potent).'),
+        interval: numOrNull2('Fieller interval at the spec confidence; null ends when unbounded.'),
+        reference: num('Midpoint (ec50 or xc) of the reference in the joint fit.'),
+        testValue: num('Midpoint of the test group in the joint fit.'),
+        parallelism: {
+          description: 'Equivalence of slopes and spans from the separate fits, or null without them.',
+          oneOf: [{ type: 'null' }, obj('Parallelism by equivalence.', {
+            level: num('Level of the intervals: 2·confidence − 1 (two one-sided tests).'),
+            slopeRatio: obj('A ratio and its Fieller interval.', { value: num('The ratio test/reference.'), interval: numOrNull2('Fieller interval; null ends when unbounded.') }, ['value', 'interval']),
+            spanRatio: obj('A ratio and its Fieller interval.', { value: num('The ratio test/reference.'), interval: numOrNull2('Fieller interval; null ends when unbounded.') }, ['value', 'interval']),
+            verdict: { enum: ['equivalent', 'not-equivalent', 'inconclusive', null], description: 'Both intervals within the margins / one outside / neither; null without a margin.' },
+          }, ['level', 'slopeRatio', 'spanRatio', 'verdict'])],
+        },
+      }, ['test', 'ratio', 'interval', 'reference', 'testValue', 'parallelism'])),
+      note: str('The method, the margins and which test to read, in words.'),
+    }, ['model', 'separate', 'reference', 'confidence', 'method', 'results', 'note']),
     confidence: num('Confidence level of every interval.'),
     pointsFile: str('The sidecar file with every model\'s points and band (outputPoints "sidecar"), relative to this file.'),
     check: { $ref: '#/definitions/checkVerdict', description: 'Only in check --json output: the verdict.' },

@@ -75,5 +75,34 @@ out$logistic4 <- obj(
   reads = arr(unlist(reads4))
 )
 
+# ---------------------------------------------------------------- relative potency: the Tarnwell two-lot demo (invented)
+# joint 4PL with lower, upper, slope shared and ec50 per lot (indexed parameters in nls); Fieller intervals found from
+# their definition, {rho : (a - rho b)^2 <= t^2 (va - 2 rho c + rho^2 vb)}, by uniroot (not the closed form)
+pl <- read.csv("examples/data/potency-lots.csv")
+pl$g <- ifelse(pl$lot == "RS-04", 1L, 2L)
+fj <- nls(response ~ lower + (upper - lower) / (1 + (ec50[g] / dose_ng_ml)^slope), data = pl,
+  start = list(lower = 0.131, upper = 1.858, ec50 = c(14.59, 10.30), slope = 1.306), control = nls.control(tol = 1e-7, maxiter = 500))
+cj <- coef(fj); Vj <- vcov(fj)
+fieller_root <- function(a, b, va, vb, c, t) {
+  h <- function(r) (a - r * b)^2 - t^2 * (va - 2 * r * c + r^2 * vb)
+  r0 <- a / b
+  c(r0, uniroot(h, c(r0 / 10, r0), tol = 1e-14)$root, uniroot(h, c(r0, r0 * 10), tol = 1e-14)$root)
+}
+tj <- qt(0.975, df.residual(fj))
+pot <- fieller_root(cj[["ec501"]], cj[["ec502"]], Vj["ec501", "ec501"], Vj["ec502", "ec502"], Vj["ec501", "ec502"], tj)
+sep <- lapply(c("RS-04", "L-221"), function(l) nls(response ~ lower + (upper - lower) / (1 + (ec50 / dose_ng_ml)^slope), data = subset(pl, lot == l),
+  start = list(lower = 0.13, upper = 1.86, ec50 = if (l == "RS-04") 14.7 else 10.26, slope = 1.3), control = nls.control(tol = 1e-7, maxiter = 500)))
+te <- qt(0.95, min(df.residual(sep[[1]]), df.residual(sep[[2]])))
+sl <- function(f) c(coef(f)[["slope"]], vcov(f)["slope", "slope"])
+sp <- function(f) { V <- vcov(f); c(coef(f)[["upper"]] - coef(f)[["lower"]], V["upper", "upper"] + V["lower", "lower"] - 2 * V["upper", "lower"]) }
+slr <- fieller_root(sl(sep[[2]])[1], sl(sep[[1]])[1], sl(sep[[2]])[2], sl(sep[[1]])[2], 0, te)
+spr <- fieller_root(sp(sep[[2]])[1], sp(sep[[1]])[1], sp(sep[[2]])[2], sp(sep[[1]])[2], 0, te)
+out$potency <- obj(
+  source = str("R stats::nls (joint fit with ec50[lot]), vcov, qt, uniroot on examples/data/potency-lots.csv"),
+  ec50_ref = num(cj[["ec501"]]), ec50_test = num(cj[["ec502"]]), dof = num(df.residual(fj)),
+  ratio = num(pot[1]), low = num(pot[2]), high = num(pot[3]),
+  slope_ratio = vec(slr), span_ratio = vec(spr)
+)
+
 cat("{\n", sprintf("\"R\": %s,\n", str(R.version.string)),
   paste(sprintf("\"%s\": %s", names(out), unlist(out)), collapse = ",\n"), "\n}\n", sep = "")

@@ -256,5 +256,15 @@ function calibrationLines(r: FitReport): string[] {
     const rule = l.convention === 'ich-line' ? '3.3·σ/slope and 10·σ/slope (ICH Q2(R1))' : 'blank ± 3.3·σ and ± 10·σ read off the curve';
     out.push(`  limits (${l.model}, σ from ${l.sigma.from === 'blanks' ? `${l.sigma.n} blanks` : 'the residuals'} = ${num(l.sigma.value, 4)}): LOD ${num(l.lod, 4)}, LOQ ${num(l.loq, 4)} by ${rule}; detection limit ${num(l.detection.x, 4)} (Hubaux–Vos) — conventions to validate under your own procedure`);
   }
+  if (r.potency) {
+    const p = r.potency;
+    for (const x of p.results.slice(0, MAX_GROUP_ROWS)) {
+      const par = x.parallelism;
+      const eq = par
+        ? `; parallelism (${num(par.level * 100, 3)} % intervals): slope ratio ${num(par.slopeRatio.value, 4)} ${iv(par.slopeRatio.interval)}, span ratio ${num(par.spanRatio.value, 4)} ${iv(par.spanRatio.interval)}${par.verdict ? ` — ${par.verdict}` : ''}`
+        : '';
+      out.push(`  relative potency ${x.test} vs ${p.reference} (${p.model}): ${num(x.ratio, 4)} ${iv(x.interval)} (${conf} Fieller)${eq}`);
+    }
+  }
   return out;
 }

@@ -12,6 +12,48 @@ import type { NormalizedReadings, NormalizedSpec } from './spec/types';
 import type { ModelAnalysisInput } from './stats/api';
 import { detectionLimits, readOff, recovery, standardsRecovery, fmtNum } from './stats/calibration';
 import { originalScaleOf } from './stats/calibrationScale';
+import { relativePotency } from './stats/calibrationPotency';
+import type { ComparisonReport, PotencyReport } from './report';
+
+/** spec.potency from the joint fit and the separate fits of its twin; throws DataError for a group that is not there. */
+export function runPotency(spec: NormalizedSpec, models: ModelReport[], comparison: ComparisonReport | null, groupIds: string[], env: Pick<CalibrationEnv, 'locate'>): PotencyReport {
+  const p = spec.potency!;
+  const e = env as CalibrationEnv;
+  const listed = groupIds.slice(0, 12).join(', ') + (groupIds.length > 12 ? ', …' : '');
+  if (!groupIds.includes(p.reference)) {
+    const s = suggest(p.reference, groupIds);
+    fail(`potency.reference '${p.reference}' is not a group of data.groupBy${s ? ` — did you mean '${s}'?` : ''} (groups: ${listed})`, ['potency', 'reference'], e);
+  }
+  for (const t of p.test ?? [])
+    if (!groupIds.includes(t)) {
+      const s = suggest(t, groupIds);
+      fail(`potency.test names '${t}', which is not a group of data.groupBy${s ? ` — did you mean '${s}'?` : ''} (groups: ${listed})`, ['potency', 'test'], e);
+    }
+  const tests = (p.test ?? groupIds).filter((g) => g !== p.reference);
+  if (tests.length === 0) fail(`potency needs a test group besides the reference '${p.reference}' — data.groupBy gives only ${listed}`, ['potency', 'reference'], e);
+  const joint = models.find((m) => m.name === p.model && m.group === null);
+  if (!joint || joint.status !== 'converged' || !joint.covariance)
+    fail(`potency: the joint fit '${p.model}' did not converge with a covariance, so no potency can be computed — see its problems`, ['potency', 'model'], e);
+  const sm = spec.models.find((m) => m.name === p.model)!;
+  const twin = spec.models.find((o) => !o.shared && o.builtin === sm.builtin);
+  const separate = new Map<string, ModelReport>();
+  if (twin) for (const g of [p.reference, ...tests]) {
+    const r = models.find((m) => m.name === twin.name && m.group === g);
+    if (r) separate.set(g, r);
+  }
+  const sharing = comparison?.sharing?.find((t) => t.model === p.model) ?? null;
+  return relativePotency({
+    joint,
+    separate,
+    mid: sm.builtin === 'logistic5' ? 'xc' : 'ec50',
+    reference: p.reference,
+    tests,
+    confidence: spec.confidence,
+    absolute: spec.data.sigmaMode === 'absolute',
+    margin: p.margin,
+    sharing,
+  });
+}
 
 /** Every model's predictions and band on the original scale when data.y is a transform of a column (in place). */
 export function addOriginalScale(spec: NormalizedSpec, models: ModelReport[]): void {

@@ -111,6 +111,21 @@ export interface LimitsSpec {
   model?: string;
 }
 
+/**
+ * Relative potency of groups against a reference group, from a joint 4PL/5PL fit with the asymptotes and slope shared
+ * (models[].shared), and a parallelism check by equivalence (docs/calibration.md).
+ */
+export interface PotencySpec {
+  /** the joint model (builtin logistic4 or logistic5 with shared lower, upper, slope — and asym for logistic5); default: the only such model */
+  model?: string;
+  /** group id of the reference */
+  reference: string;
+  /** group ids compared with it (default: every other group) */
+  test?: string[];
+  /** equivalence margins of the ratios test/reference: of the slopes and of the spans (upper − lower), e.g. [0.8, 1.25] */
+  margin?: { slope: [number, number]; span: [number, number] };
+}
+
 export type ExpectSpec = { value: number; tol: number } | { value: number; rel: number };
 
 export interface FitSpec {
@@ -136,6 +151,7 @@ export interface FitSpec {
   unknowns?: UnknownsSpec;
   controls?: ControlsSpec;
   limits?: LimitsSpec;
+  potency?: PotencySpec;
 }
 
 /** A derived quantity of one fitted model (and group): value, delta-method SE and Wald interval. */
@@ -567,6 +583,39 @@ export interface LimitsReport {
   note: string;
 }
 
+/** spec.potency: relative potency of each test group against the reference, and parallelism by equivalence. */
+export interface PotencyReport {
+  /** the joint model the potency comes from */
+  model: string;
+  /** the separate fits the parallelism check uses (the same model without shared), or null when the spec has none */
+  separate: string | null;
+  reference: string;
+  confidence: number;
+  /** how the interval of a ratio is computed: Fieller's theorem */
+  method: 'fieller';
+  results: {
+    test: string;
+    /** midpoint[reference] / midpoint[test]: above 1, the test group is more potent (needs less) */
+    ratio: number | null;
+    /** Fieller interval at the spec's confidence; null ends when unbounded */
+    interval: [number | null, number | null] | null;
+    /** the midpoints (ec50 or xc) of the reference and the test group in the joint fit */
+    reference: number;
+    testValue: number;
+    /** equivalence of slopes and spans from the separate fits; null without them */
+    parallelism: {
+      /** level of the intervals: 2·confidence − 1 (two one-sided tests) */
+      level: number;
+      slopeRatio: { value: number; interval: [number | null, number | null] };
+      spanRatio: { value: number; interval: [number | null, number | null] };
+      /** both intervals within the margins / one outside / neither; null without potency.margin */
+      verdict: 'equivalent' | 'not-equivalent' | 'inconclusive' | null;
+    } | null;
+  }[];
+  /** the method, the margins and which test to read, in words */
+  note: string;
+}
+
 /** What the results depend on: engine version, hashes of the spec and the data, and the random seed. */
 export interface ReportMeta {
   /** ENGINE_VERSION */
@@ -635,6 +684,8 @@ export interface FitReport {
   controls?: ControlsReport;
   /** with spec.limits: limits of detection and quantitation */
   limits?: LimitsReport;
+  /** with spec.potency: relative potency and parallelism */
+  potency?: PotencyReport;
   /** confidence level of every interval */
   confidence: number;
   /** the sidecar file holding every model's points and band (outputPoints "sidecar"), relative to this file */

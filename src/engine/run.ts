@@ -38,7 +38,7 @@ import { jointFormula, jointModelSpec } from './joint';
 import { sharingTest } from './stats/sharing';
 import { DEFAULTS } from './spec/defaults';
 import { cleanStaleTemps, inputRefusal, LockBusyError, outputRefusal as pathOutputRefusal, realOrSelf, tmpName, withFileLock } from './paths';
-import { addOriginalScale, isReadoutsFile, readoutsCsv, runCalibration, writeTextAtomic, type FittedModel } from './calibration';
+import { addOriginalScale, runPotency, isReadoutsFile, readoutsCsv, runCalibration, writeTextAtomic, type FittedModel } from './calibration';
 
 export interface RunOptions {
   /** spec text to use instead of the file on disk (e.g. unsaved editor text) */
@@ -480,6 +480,7 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
       })
     : null;
   if (calibration) runProblems.push(...calibration.problems);
+  const potency = spec.potency && groups ? runPotency(spec, models, comparison, groups.map(g => g.id), { locate: (p) => locationOf(text, name, p) }) : null;
 
   const specDir = path.dirname(path.resolve(specPath));
   const report: FitReport = {
@@ -498,6 +499,7 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
     ...(calibration?.unknowns ? { unknowns: calibration.unknowns } : {}),
     ...(calibration?.controls ? { controls: calibration.controls } : {}),
     ...(calibration?.limits ? { limits: calibration.limits } : {}),
+    ...(potency ? { potency } : {}),
     confidence: spec.confidence,
   };
   // results files are committed: no absolute paths of this machine in them, only paths relative to the spec
@@ -699,7 +701,7 @@ export interface SerializeOptions {
 }
 
 /** Top-level key order of a FitReport (others follow in insertion order). */
-const REPORT_KEYS = ['version', 'spec', 'title', 'error', 'meta', 'data', 'groups', 'models', 'comparison', 'best', 'problems', 'expect', 'derived', 'unknowns', 'controls', 'limits', 'confidence'];
+const REPORT_KEYS = ['version', 'spec', 'title', 'error', 'meta', 'data', 'groups', 'models', 'comparison', 'best', 'problems', 'expect', 'derived', 'unknowns', 'controls', 'limits', 'potency', 'confidence'];
 
 function normalise(v: unknown): unknown {
   if (typeof v === 'number') return Number.isFinite(v) ? (Object.is(v, -0) ? 0 : v) : null;

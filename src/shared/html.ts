@@ -142,7 +142,7 @@ function cells(tag: 'th' | 'td', values: string[]): string {
 export function calibrationHtml(r: RunResult): string {
   if ('error' in r) return '';
   const f = r as FitReport;
-  if (!f.unknowns && !f.controls && !f.limits) return '';
+  if (!f.unknowns && !f.controls && !f.limits && !f.potency) return '';
   const iv = (i: [number | null, number | null] | null) => (i ? `[${n4(i[0])}, ${n4(i[1])}]` : '');
   const flags = (u: UnknownReport) => u.flags.map(x => x.message).join(' ');
   const conf = `${n4(f.confidence * 100)} %`;
@@ -173,6 +173,16 @@ export function calibrationHtml(r: RunResult): string {
     parts.push(cells('th', ['LOD', 'LOQ', 'detection limit (Hubaux\u2013Vos)', '\u03c3', 'from']));
     parts.push(cells('td', [n4(l.lod), n4(l.loq), n4(l.detection.x), n4(l.sigma.value), l.sigma.from === 'blanks' ? `${l.sigma.n} blank readings` : 'the residuals']));
     parts.push(`</table><p>${escapeHtml(l.note)}</p>`);
+  }
+  if (f.potency) {
+    const p = f.potency;
+    parts.push(`<h3>Relative potency against ${escapeHtml(p.reference)} (model ${escapeHtml(p.model)}; ${escapeHtml(conf)} Fieller intervals)</h3><table>`);
+    parts.push(cells('th', ['test', 'potency', 'interval', 'slope ratio', 'interval', 'span ratio', 'interval', 'parallelism']));
+    for (const x of p.results) {
+      const q = x.parallelism;
+      parts.push(cells('td', [x.test, n4(x.ratio), iv(x.interval), q ? n4(q.slopeRatio.value) : '', q ? iv(q.slopeRatio.interval) : '', q ? n4(q.spanRatio.value) : '', q ? iv(q.spanRatio.interval) : '', q?.verdict ?? '']));
+    }
+    parts.push(`</table><p>${escapeHtml(p.note)}</p>`);
   }
   parts.push('</section>');
   return parts.join('\n');

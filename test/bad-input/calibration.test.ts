@@ -12,7 +12,19 @@ const files = (text: string, unk = UNK): Record<string, string> => ({ 'h.fitspec
 const U = { file: 'u.csv', id: 'sample', y: 'reading', dilution: 'dilution' };
 const c = (name: string, f: Record<string, string | Buffer>, place: RegExp, fix: RegExp, more: Partial<BadInputCase> = {}): BadInputCase => ({ name, cls: 'calibration', files: f, place, fix, ...more });
 
+const LOTS = 'lot,conc,signal\n' + ['R', 'T'].flatMap((lot, k) => [0.5, 1, 3, 10, 30, 100].flatMap((x) => [0, 1].map((r) => `${lot},${x},${(0.1 + 1.8 / (1 + ((4 + 3 * k) / x) ** 1.2) + (r ? 0.01 : -0.01)).toFixed(4)}`))).join('\n') + '\n';
+const P4 = [{ name: '4PL', builtin: 'logistic4', params: { slope: { min: 0 } } }, { name: 'par', builtin: 'logistic4', params: { slope: { min: 0 } }, shared: ['lower', 'upper', 'slope'] }];
+const pot = (potency: unknown, models: unknown = P4, groupBy: unknown = 'lot') =>
+  ({ 'h.fitspec.json': JSON.stringify({ data: { file: 'l.csv', x: 'conc', y: 'signal', ...(groupBy ? { groupBy } : {}) }, models, potency }, null, 2), 'l.csv': LOTS });
+
 export const CALIBRATION_CASES: BadInputCase[] = [
+  c('potency without groupBy', pot({ reference: 'R' }, [P4[0]], null), /\[potency\]|potency/, /name the column that tells the reference/),
+  c('potency model without shared slope', pot({ reference: 'R', model: 'par' }, [P4[0], { ...P4[1], shared: ['lower', 'upper'] }]), /potency\.model/, /"shared": \["lower","upper","slope"\]/),
+  c('potency without a joint model', pot({ reference: 'R' }, [P4[0]]), /\[potency\]|potency/, /add it to models/),
+  c('potency reference not a group', pot({ reference: 'REF' }), /potency\.reference/, /did you mean 'R'|groups: R, T/),
+  c('potency test not a group', pot({ reference: 'R', test: ['TT'] }), /potency\.test/, /did you mean 'T'/),
+  c('potency margin not around 1', pot({ reference: 'R', margin: { slope: [1.1, 1.3], span: [0.8, 1.25] } }), /potency\.margin\.slope/, /0 < low < 1 < high/),
+  c('potency without reference', pot({ margin: { slope: [0.8, 1.25], span: [0.8, 1.25] } }), /potency\.reference/, /the group id of the reference/),
   c('unknown id column missing', files(spec({ unknowns: { ...U, id: 'sampel' } })), /unknowns\.id/, /did you mean 'sample'/),
   c('dilution column missing', files(spec({ unknowns: { ...U, dilution: 'dil' } })), /unknowns\.dilution/, /did you mean 'dilution'/),
   c('negative dilution', files(spec({ unknowns: U }), UNK.replace('B,0.6,1,', 'B,0.6,-5,')), /u\.csv line 4 \(data row 3\)[\s\S]*unknowns\.dilution|unknowns\.dilution[\s\S]*u\.csv line 4/, /must be a positive number/),

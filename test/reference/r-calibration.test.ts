@@ -5,7 +5,9 @@
 //     the mean of m readings (Draper & Smith §3.2 with 1/m for the new mean);
 // (2) R 4.2.2 (stats::lm / nls, predict, vcov, deriv, uniroot; scripts/reference-calibration.R, figures committed in
 //     test/fixtures/reference/r-calibration.json) inverting the prediction band for the mean of m readings, on the line
-//     and on a 4PL fitted to the demo standards. Also the Hubaux & Vos (1970) detection limit on the line.
+//     and on a 4PL fitted to the demo standards. Also the Hubaux & Vos (1970) detection limit on the line, and the
+//     relative potency of the two-lot demo (joint nls with ec50[lot]) with Fieller intervals found by uniroot from
+//     their definition, and the slope and span ratios of the separate fits (examples/potency-lots.fitspec.json).
 import { strict as assert } from 'assert';
 import * as fs from 'fs';
 import * as os from 'os';
@@ -20,6 +22,7 @@ const R = JSON.parse(fs.readFileSync(path.join(root, 'test', 'fixtures', 'refere
   R: string;
   line: { x: number[]; y: number[]; intercept: number; slope: number; sigma: number; reads: Read[]; decisionY: number; detectionX: number };
   logistic4: { lower: number; upper: number; ec50: number; slope: number; sigma: number; reads: Read[] };
+  potency: { ec50_ref: number; ec50_test: number; dof: number; ratio: number; low: number; high: number; slope_ratio: number[]; span_ratio: number[] };
 };
 const rel = (a: number, b: number) => Math.abs(a - b) / Math.abs(b);
 const close = (what: string, a: number | null | undefined, b: number, tol: number) =>
@@ -120,5 +123,29 @@ describe(`calibration read-outs vs Miller & Miller and ${R.R}`, function () {
       close(`low at ${r.y} (m=${r.m})`, u.interval![0], r.low, 1e-5);
       close(`high at ${r.y} (m=${r.m})`, u.interval![1], r.high, 1e-5);
     });
+  });
+
+  it('relative potency and parallelism of the two-lot demo agree with R (nls with ec50[lot], Fieller by uniroot)', async () => {
+    const r = await runSpecFile(path.join(root, 'examples', 'potency-lots.fitspec.json'), { workspaceRoot: root });
+    if (isErrorReport(r)) assert.fail(r.error.message);
+    const p = (r as FitReport).potency!;
+    const x = p.results[0];
+    const P = R.potency;
+    assert.equal((r as FitReport).models.find((m) => m.group === null)!.stats.dof, P.dof);
+    close('ec50 reference', x.reference, P.ec50_ref, 1e-6);
+    close('ec50 test', x.testValue, P.ec50_test, 1e-6);
+    close('potency', x.ratio, P.ratio, 1e-6);
+    close('potency low', x.interval![0], P.low, 1e-6);
+    close('potency high', x.interval![1], P.high, 1e-6);
+    const q = x.parallelism!;
+    assert.equal(q.level, 0.9);
+    close('slope ratio', q.slopeRatio.value, P.slope_ratio[0], 1e-6);
+    close('slope ratio low', q.slopeRatio.interval[0], P.slope_ratio[1], 1e-6);
+    close('slope ratio high', q.slopeRatio.interval[1], P.slope_ratio[2], 1e-6);
+    close('span ratio', q.spanRatio.value, P.span_ratio[0], 1e-6);
+    close('span ratio low', q.spanRatio.interval[0], P.span_ratio[1], 1e-6);
+    close('span ratio high', q.spanRatio.interval[1], P.span_ratio[2], 1e-6);
+    assert.equal(q.verdict, 'equivalent');
+    assert.equal(p.method, 'fieller');
   });
 });

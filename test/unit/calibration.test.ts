@@ -10,6 +10,7 @@ import { READOUTS_HEADER } from '../../src/engine/calibration';
 import type { FitReport } from '../../src/engine/report';
 import { asReport } from './reports';
 import { calibrationHtml } from '../../src/shared/html';
+import { fieller } from '../../src/engine/stats/calibrationPotency';
 
 // a 4PL with lower 0.1, upper 2.0, ec50 5, slope 1.2 at 8 levels in duplicate, with small fixed deviations
 const f4 = (x: number) => 0.1 + 1.9 / (1 + (5 / x) ** 1.2);
@@ -260,5 +261,57 @@ describe('back on the original scale', function () {
     fs.writeFileSync(path.join(dir, 'b.fitspec.json'), JSON.stringify({ data: { file: 'd.csv', x: 'log10(conc)', y: 'signal' }, models: [{ name: 'line', builtin: 'linear' }], limits: {} }));
     const bad = await runSpecFile(path.join(dir, 'b.fitspec.json'), { workspaceRoot: dir });
     assert.ok('error' in bad && /limits need x on its own scale/.test(bad.error.message) && JSON.stringify(bad.error.path) === '["limits"]');
+  });
+});
+
+describe('relative potency and parallelism', function () {
+  this.timeout(60000);
+  const curve = (x: number, ec50: number, slope: number, upper = 1.9) => 0.1 + (upper - 0.1) / (1 + (ec50 / x) ** slope);
+  const DOSES = [0.3, 1, 3, 10, 30, 100, 300];
+  const DV = [0.008, -0.011, 0.005, -0.004, 0.012, -0.007, 0.003, -0.009, 0.006, -0.002, 0.01, -0.006, 0.004, -0.008];
+  async function lots(test: { ec50: number; slope: number; upper?: number }, margin: unknown = { slope: [0.8, 1.25], span: [0.8, 1.25] }) {
+    let k = 0;
+    const rows = ['lot,dose,resp'];
+    for (const [lot, e, s, u] of [['REF', 5, 1.2, 1.9], ['NEW', test.ec50, test.slope, test.upper ?? 1.9]] as [string, number, number, number][])
+      for (const x of DOSES) for (let r = 0; r < 2; r++) rows.push(`${lot},${x},${(curve(x, e, s, u) + DV[k++ % DV.length]).toFixed(5)}`);
+    const dir = workspace({ 'l.csv': rows.join('\n') + '\n' });
+    fs.writeFileSync(path.join(dir, 'a.fitspec.json'), JSON.stringify({
+      data: { file: 'l.csv', x: 'dose', y: 'resp', groupBy: 'lot' },
+      models: [{ name: '4PL', builtin: 'logistic4', params: { slope: { min: 0 } } }, { name: 'par', builtin: 'logistic4', params: { slope: { min: 0 } }, shared: ['lower', 'upper', 'slope'] }],
+      potency: { reference: 'REF', ...(margin ? { margin } : {}) },
+    }));
+    return asReport(await runSpecFile(path.join(dir, 'a.fitspec.json'), { workspaceRoot: dir }));
+  }
+
+  it('parallel lots: potency near the true ratio, inside its interval, equivalent', async () => {
+    const r = await lots({ ec50: 2.5, slope: 1.2 });
+    const x = r.potency!.results[0];
+    assert.equal(x.test, 'NEW');
+    assert.ok(Math.abs(x.ratio! - 2) < 0.1, String(x.ratio));
+    assert.ok(x.interval![0]! < x.ratio! && x.ratio! < x.interval![1]!);
+    assert.equal(x.parallelism!.verdict, 'equivalent');
+    assert.match(r.potency!.note, /Read the equivalence check/);
+  });
+
+  it('slopes far apart: not equivalent, whatever the F-test says', async () => {
+    const r = await lots({ ec50: 5, slope: 2.4 });
+    const q = r.potency!.results[0].parallelism!;
+    assert.ok(q.slopeRatio.value > 1.6, String(q.slopeRatio.value));
+    assert.equal(q.verdict, 'not-equivalent');
+  });
+
+  it('no margin: ratios and intervals, but no verdict', async () => {
+    const r = await lots({ ec50: 2.5, slope: 1.2 }, null);
+    assert.equal(r.potency!.results[0].parallelism!.verdict, null);
+    assert.match(r.potency!.note, /no margin given/);
+  });
+
+  it('Fieller: unbounded when the denominator is not significantly different from 0; the closed form at its edges', async () => {
+    assert.deepEqual(fieller(1, 0.1, 0.01, 0.01, 0, 2), [null, null]); // g = t²·vb/b² = 4 ≥ 1
+    // zero variances: the interval collapses onto the ratio
+    assert.deepEqual(fieller(3, 2, 0, 0, 0, 2), [1.5, 1.5]);
+    // the ends satisfy (a − ρb)² = t²(va − 2ρc + ρ²vb)
+    const [lo, hi] = fieller(3, 2, 0.04, 0.03, 0.01, 2.1) as [number, number];
+    for (const r of [lo, hi]) assert.ok(Math.abs((3 - r * 2) ** 2 - 2.1 ** 2 * (0.04 - 2 * r * 0.01 + r * r * 0.03)) < 1e-12);
   });
 });

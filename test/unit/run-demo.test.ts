@@ -37,7 +37,7 @@ describe('demo generator', () => {
   });
   it('every demo spec has a title, a committed results file and a caution in the README', () => {
     const specs = fs.readdirSync(EXAMPLES).filter(f => f.endsWith('.fitspec.json'));
-    assert.equal(specs.length, 7);
+    assert.equal(specs.length, 8);
     for (const s of specs) {
       const text = fs.readFileSync(path.join(EXAMPLES, s), 'utf8');
       assert.match(text, /^\/\/ /, `${s} starts with a comment`);

@@ -30,7 +30,7 @@ export interface NormalizedModel extends ModelSpec {
   solver: Required<SolverSpec>;
 }
 
-export interface NormalizedSpec extends Omit<FitSpec, 'unknowns' | 'controls' | 'limits'> {
+export interface NormalizedSpec extends Omit<FitSpec, 'unknowns' | 'controls' | 'limits' | 'potency'> {
   /** absolute path of the spec file */
   specFile: string;
   /** the spec file name as given to validateSpec */
@@ -52,6 +52,7 @@ export interface NormalizedSpec extends Omit<FitSpec, 'unknowns' | 'controls' | 
   unknowns?: NormalizedReadings & { output?: string; outputGiven?: string };
   controls?: NormalizedReadings & { nominal: string; accept: [number, number] | null; acceptStandards: [number, number] | null; fromUnknowns: boolean };
   limits?: { sigma: 'residual' | 'blanks'; blanks?: string; model?: string };
+  potency?: { model?: string; reference: string; test?: string[]; margin: { slope: [number, number]; span: [number, number] } | null };
 }
 
 /** A file of readings to read off the curve (unknowns, controls), its paths resolved. */

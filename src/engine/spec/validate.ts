@@ -41,7 +41,7 @@ export interface ValidateResult {
   data?: { file: string; fileGiven: string; delimiter: NormalizedData['delimiter']; decimal: NormalizedData['decimal'] };
 }
 
-const TOP_KEYS = ['$schema', 'title', 'data', 'models', 'confidence', 'predict', 'solveFor', 'predictWeight', 'output', 'outputPoints', 'expect', 'thresholds', 'derived', 'unknowns', 'controls', 'limits'];
+const TOP_KEYS = ['$schema', 'title', 'data', 'models', 'confidence', 'predict', 'solveFor', 'predictWeight', 'output', 'outputPoints', 'expect', 'thresholds', 'derived', 'unknowns', 'controls', 'limits', 'potency'];
 const DATA_KEYS = ['file', 'x', 'y', 'sigma', 'weight', 'count', 'sigmaMode', 'where', 'exclude', 'delimiter', 'decimal', 'badRows', 'groupBy'];
 const MODEL_KEYS = ['name', 'builtin', 'polynomial', 'formula', 'params', 'solver', 'shared'];
 const PARAM_KEYS = ['start', 'min', 'max', 'fixed'];
@@ -500,6 +500,7 @@ export function validateSpec(raw: unknown, ctx: ValidateContext): ValidateResult
     dataFile = { file: path.resolve(specDir, d.file), fileGiven: d.file, delimiter, decimal };
   }
   const calibration = checkCalibration(c, raw, specDir, data, variables, [...paramsByModel.keys()]);
+  const potency = checkPotency(c, raw, models);
   if (c.errors > 0 || !data) return { spec: null, problems: c.problems, ...(dataFile ? { data: dataFile } : {}) };
   const spec: NormalizedSpec = {
     specFile,
@@ -521,6 +522,7 @@ export function validateSpec(raw: unknown, ctx: ValidateContext): ValidateResult
   if (outputPoints !== undefined) spec.outputPoints = outputPoints;
   if (Object.keys(derived).length > 0) spec.derived = derived;
   Object.assign(spec, calibration);
+  if (potency) spec.potency = potency;
   return { spec, problems: c.problems, ...(dataFile ? { data: dataFile } : {}) };
 }
 
@@ -991,4 +993,64 @@ function checkCalibration(c: Checker, raw: Obj, specDir: string, data: Normalize
   }
   if (unknowns) out.unknowns = unknowns;
   return out;
+}
+
+const POTENCY_KEYS = ['model', 'reference', 'test', 'margin'];
+
+/** The potency block: groups, a joint 4PL/5PL with asymptotes and slope shared, a reference group, margins. */
+function checkPotency(c: Checker, raw: Obj, models: NormalizedModel[]): NormalizedSpec['potency'] {
+  const p = raw.potency;
+  if (p === undefined) return undefined;
+  if (!isObj(p)) {
+    c.type(['potency'], 'an object { "reference": "REF", "margin": { "slope": [0.8, 1.25], "span": [0.8, 1.25] } }', p);
+    return undefined;
+  }
+  c.keys(p, POTENCY_KEYS, ['potency'], 'potency');
+  const before = c.errors;
+  if (!isObj(raw.data) || raw.data.groupBy === undefined)
+    c.add('spec-potency', ['potency'], 'potency compares curves of groups, but data.groupBy is not set — name the column that tells the reference and the test samples apart, e.g. "groupBy": "lot"');
+  const need = (m: NormalizedModel) => (m.builtin === 'logistic5' ? ['lower', 'upper', 'slope', 'asym'] : ['lower', 'upper', 'slope']);
+  const fits = (m: NormalizedModel) => (m.builtin === 'logistic4' || m.builtin === 'logistic5') && !!m.shared && need(m).every((k) => m.shared!.includes(k));
+  const name = c.str(p, 'model', ['potency'], { nonEmpty: true });
+  let model: NormalizedModel | undefined;
+  if (name !== undefined) {
+    model = models.find((m) => m.name === name.normalize('NFC'));
+    if (!model) c.add('spec-potency', ['potency', 'model'], `potency.model names '${name}', which is not in models${didYouMean(name, models.map((m) => m.name))}`);
+    else if (!fits(model))
+      c.add('spec-potency', ['potency', 'model'], `potency.model '${name}' must be a builtin "logistic4" (or "logistic5") with "shared": ${JSON.stringify(need(model))} — the relative potency is a ratio of EC50s only when the curves share their asymptotes and slope`);
+  } else {
+    const cands = models.filter(fits);
+    if (cands.length === 1) model = cands[0];
+    else if (models.length > 0)
+      c.add('spec-potency', ['potency'], cands.length === 0
+        ? 'potency needs a model with the asymptotes and slope shared, e.g. { "name": "4PL-parallel", "builtin": "logistic4", "shared": ["lower", "upper", "slope"] } — add it to models'
+        : `several models could give the potency (${quoteList(cands.map((m) => m.name))}) — name one in potency.model`);
+  }
+  const reference = c.str(p, 'reference', ['potency'], { required: 'the group id of the reference, e.g. "REF"', nonEmpty: true });
+  let test: string[] | undefined;
+  if (p.test !== undefined) {
+    if (!Array.isArray(p.test) || p.test.length === 0 || p.test.some((t) => typeof t !== 'string' || t === '')) c.type(['potency', 'test'], 'a non-empty list of group ids, e.g. ["LOT-2"]', p.test);
+    else test = p.test as string[];
+  }
+  let margin: { slope: [number, number]; span: [number, number] } | null = null;
+  if (p.margin !== undefined) {
+    const m = p.margin;
+    if (!isObj(m)) c.type(['potency', 'margin'], 'an object { "slope": [0.8, 1.25], "span": [0.8, 1.25] }', m);
+    else {
+      c.keys(m, ['slope', 'span'], ['potency', 'margin'], 'potency.margin');
+      const range = (k: 'slope' | 'span'): [number, number] | undefined => {
+        const v = m[k];
+        if (!Array.isArray(v) || v.length !== 2 || !v.every(isNum) || !((v[0] as number) > 0 && (v[0] as number) < 1 && (v[1] as number) > 1)) {
+          c.add('spec-potency', ['potency', 'margin', k], `potency.margin.${k} must be a range of the ratio test/reference around 1, [low, high] with 0 < low < 1 < high, e.g. [0.8, 1.25], not ${JSON.stringify(v)}`);
+          return undefined;
+        }
+        return [v[0] as number, v[1] as number];
+      };
+      const slope = range('slope');
+      const span = range('span');
+      if (slope && span) margin = { slope, span };
+    }
+  }
+  if (c.errors > before || reference === undefined || !model) return undefined;
+  return { model: model.name, reference, ...(test ? { test } : {}), margin };
 }

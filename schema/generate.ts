@@ -547,6 +547,7 @@ export function fitreportSchema(): Schema {
       engine: str('Engine name and version.'),
       specHash: str('sha256 of the spec text.'),
       dataHash: str('sha256 of the data file.'),
+      readingsHash: str('With unknowns or controls files: sha256 of their bytes (of their hashes when several), so check sees them change.'),
       seed: int('Seed of the multi-start search.'),
     }, ['engine', 'specHash', 'dataHash', 'seed']),
     data: dataReport,

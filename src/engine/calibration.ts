@@ -1,7 +1,7 @@
 // The run layer of calibration (docs/calibration.md): reads the unknowns and controls files (inside the workspace, like
 // data.file), groups replicate readings by id and dilution, picks the model that reads them, and hands each sample to
 // stats/calibration.ts. Also the CSV export of the read-outs (written atomically beside the results file).
-import { randomBytes } from 'crypto';
+import { createHash, randomBytes } from 'crypto';
 import { promises as fsp } from 'fs';
 import * as path from 'path';
 import { compileExpression, formulaIdentifiers } from './formula';
@@ -248,8 +248,14 @@ export async function runCalibration(
   fitted: FittedModel[],
   best: string | null,
   env: CalibrationEnv,
-): Promise<{ unknowns?: UnknownsReport; controls?: ControlsReport; limits?: LimitsReport; problems: Problem[] }> {
-  const out: { unknowns?: UnknownsReport; controls?: ControlsReport; limits?: LimitsReport; problems: Problem[] } = { problems: [] };
+): Promise<{ unknowns?: UnknownsReport; controls?: ControlsReport; limits?: LimitsReport; problems: Problem[]; readingsHash?: string }> {
+  const out: { unknowns?: UnknownsReport; controls?: ControlsReport; limits?: LimitsReport; problems: Problem[]; readingsHash?: string } = { problems: [] };
+  const hashes: string[] = [];
+  const read = async (...a: Parameters<typeof readSamples>) => {
+    const r = await readSamples(...a);
+    if (!hashes.includes(r.hash)) hashes.push(r.hash);
+    return r;
+  };
   const u = spec.unknowns;
   const k = spec.controls;
   const l = spec.limits;
@@ -270,7 +276,7 @@ export async function runCalibration(
     let blankY: number | null;
     let qBlank = NaN;
     if (blankId !== undefined) {
-      const { samples } = await readSamples(u!, spec, env, { keep: (id) => id === blankId });
+      const { samples } = await read(u!, spec, env, { keep: (id) => id === blankId });
       blankReadings = samples.flatMap((s) => s.y);
       if (blankReadings.length === 0) fail(`limits.blanks names id '${blankId}', which no row of ${u!.fileGiven} has — give the id of the blank readings`, ['limits', 'blanks'], env);
     } else {
@@ -311,7 +317,7 @@ export async function runCalibration(
   if (u) {
     const { m, from } = pickModel(fitted, best, u.model, 'unknowns', env);
     const ctx = contextOf(m, spec);
-    const { samples } = await readSamples(u, spec, env, {
+    const { samples } = await read(u, spec, env, {
       ...(sameFile ? { nominal: k!.nominal } : {}),
       // the controls' rows (a nominal value) and the blanks are not unknowns
       keep: (id, nominalCell) => id !== blankId && !(sameFile && nominalCell !== undefined && nominalCell.trim() !== ''),
@@ -337,7 +343,7 @@ export async function runCalibration(
     const ctx = contextOf(m, spec);
     let results: ControlReport[] = [];
     if (k.file !== null) {
-      const { samples } = await readSamples(k, spec, env, {
+      const { samples } = await read(k, spec, env, {
         nominal: k.nominal,
         keep: (id, nominalCell) => id !== blankId && nominalCell !== undefined && nominalCell.trim() !== '',
       });
@@ -385,6 +391,8 @@ export async function runCalibration(
         path: ['controls', 'acceptStandards'],
       });
   }
+  if (hashes.length === 1) out.readingsHash = hashes[0];
+  else if (hashes.length > 1) out.readingsHash = 'sha256:' + createHash('sha256').update(hashes.join('\n')).digest('hex');
   return out;
 }
 

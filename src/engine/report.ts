@@ -623,6 +623,8 @@ export interface ReportMeta {
   /** hash of the spec's content and of the data file's bytes: `check` reports results older than either as stale */
   specHash: string;
   dataHash: string;
+  /** with unknowns/controls files: the hash of their bytes (several files: of their hashes), so `check` sees them change */
+  readingsHash?: string;
   /** seed of the engine's random draws (the same for every run, so results do not depend on the machine) */
   seed: number;
 }

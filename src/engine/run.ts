@@ -487,7 +487,7 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions): Pr
     version: 1,
     spec: name,
     ...(spec.title !== undefined ? { title: spec.title } : {}),
-    meta: { engine: ENGINE_VERSION, specHash, dataHash: table.hash, seed: RUN_SEED },
+    meta: { engine: ENGINE_VERSION, specHash, dataHash: table.hash, ...(calibration?.readingsHash ? { readingsHash: calibration.readingsHash } : {}), seed: RUN_SEED },
     data: dataReport(spec, table, prepared, correlation),
     ...(groups ? { groups } : {}),
     models,

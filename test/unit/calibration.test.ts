@@ -11,6 +11,7 @@ import type { FitReport } from '../../src/engine/report';
 import { asReport } from './reports';
 import { calibrationHtml } from '../../src/shared/html';
 import { fieller } from '../../src/engine/stats/calibrationPotency';
+import { staleness } from '../../src/cli/check';
 
 // a 4PL with lower 0.1, upper 2.0, ec50 5, slope 1.2 at 8 levels in duplicate, with small fixed deviations
 const f4 = (x: number) => 0.1 + 1.9 / (1 + (5 / x) ** 1.2);
@@ -195,9 +196,21 @@ describe('calibration read-outs', function () {
     assert.equal(serializeReport(again), serializeReport(report));
   });
 
+  it('check sees results go stale when the unknowns file changes (meta.readingsHash)', async () => {
+    const d5 = workspace({ 'std.csv': STANDARDS, 'u.csv': `sample,reading\nA,${f4(3).toFixed(4)}\n` });
+    const spec = { unknowns: { file: 'u.csv', id: 'sample', y: 'reading' }, output: 'r.json' };
+    const first = await run(d5, spec);
+    assert.match(first.meta.readingsHash!, /^sha256:[0-9a-f]{64}$/);
+    await writeResults(first, path.join(d5, 'a.fitspec.json'), { workspaceRoot: d5 });
+    const out = path.join(d5, 'r.json');
+    assert.equal(await staleness(await run(d5, spec), out, 'r.json', 'a.fitspec.json'), null);
+    fs.writeFileSync(path.join(d5, 'u.csv'), `sample,reading\nA,${f4(4).toFixed(4)}\n`);
+    assert.match((await staleness(await run(d5, spec), out, 'r.json', 'a.fitspec.json'))!, /stale: the unknowns or controls file changed/);
+  });
+
   it('a spec without the blocks has no calibration keys (existing reports unchanged)', async () => {
     const r = await run(dir, {});
-    assert.ok(!('unknowns' in r) && !('controls' in r) && !('limits' in r));
+    assert.ok(!('unknowns' in r) && !('controls' in r) && !('limits' in r) && !('readingsHash' in r.meta));
   });
 });
 

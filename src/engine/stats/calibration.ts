@@ -170,7 +170,9 @@ export function standardsRecovery(ctx: PredictionContext, ys: ArrayLike<number>,
     // on the original scale when x is transformed: the recovery of the concentration, not of its logarithm
     const nominal = inv(x);
     const rec = nominal !== 0 ? recovery(r.value, r.valueInterval, nominal, accept) : { recovery: null, pass: null };
-    out.push({ x, m: idx.length, meanY: r.meanY, back: r.x, interval: r.interval, recovery: rec.recovery, pass: rec.pass });
+    // a level on a plateau (an interval with an open end) cannot be quantified, so it is not judged (pass null)
+    const open = !r.interval || r.interval[0] === null || r.interval[1] === null;
+    out.push({ x, m: idx.length, meanY: r.meanY, back: r.x, interval: r.interval, recovery: rec.recovery, pass: open ? null : rec.pass });
   }
   return out;
 }

@@ -354,7 +354,7 @@ export async function runCalibration(
         return { ...r, nominal: s.nominal!, ...recovery(r.value, r.valueInterval, s.nominal!, k.accept) };
       });
     }
-    const standards = standardsRecovery(ctx, m.input.y, k.acceptStandards, xScale);
+    const standards = standardsRecovery(ctx, m.input.y, k.acceptStandards, xScale, m.input.count);
     const verdicts = results.map((r) => r.pass).filter((p): p is boolean => p !== null);
     out.controls = {
       model: m.report.name,

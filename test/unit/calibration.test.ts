@@ -328,3 +328,24 @@ describe('relative potency and parallelism', function () {
     for (const r of [lo, hi]) assert.ok(Math.abs((3 - r * 2) ** 2 - 2.1 ** 2 * (0.04 - 2 * r * 0.01 + r * r * 0.03)) < 1e-12);
   });
 });
+
+describe('standards with data.count', () => {
+  it('a row counted twice reads back exactly like the row written twice', async () => {
+    const rows = STANDARDS.trim().split('\n').slice(1);
+    const once = rows.filter((_, i) => i % 2 === 0); // one replicate per level
+    const dirA = workspace({ 'std.csv': 'conc,signal,n\n' + once.map((r) => `${r},2`).join('\n') + '\n' });
+    const dirB = workspace({ 'std.csv': 'conc,signal\n' + once.flatMap((r) => [r, r]).join('\n') + '\n' });
+    const spec = (count: boolean) => ({ data: { file: 'std.csv', x: 'conc', y: 'signal', ...(count ? { count: 'n' } : {}) }, models: [MODEL], controls: { nominal: 'x' } });
+    fs.writeFileSync(path.join(dirA, 'a.fitspec.json'), JSON.stringify(spec(true)));
+    fs.writeFileSync(path.join(dirB, 'a.fitspec.json'), JSON.stringify(spec(false)));
+    const a = asReport(await runSpecFile(path.join(dirA, 'a.fitspec.json'), { workspaceRoot: dirA })).controls!.standards;
+    const b = asReport(await runSpecFile(path.join(dirB, 'a.fitspec.json'), { workspaceRoot: dirB })).controls!.standards;
+    assert.equal(a.length, b.length);
+    a.forEach((s, k) => {
+      assert.equal(s.m, 2);
+      assert.equal(s.m, b[k].m);
+      assert.ok(Math.abs(s.back! - b[k].back!) <= 1e-9 * Math.abs(b[k].back!), `${s.x}: ${s.back} vs ${b[k].back}`);
+      assert.ok(Math.abs(s.recovery! - b[k].recovery!) <= 1e-7, `${s.x}: ${s.recovery} vs ${b[k].recovery}`);
+    });
+  });
+});

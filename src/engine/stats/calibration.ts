@@ -17,18 +17,25 @@ export function fmtNum(v: number): string {
   return v.toExponential(3);
 }
 
-function mean(v: number[]): number {
+/** Mean of v, each value counted f[i] times (frequency weights; default once each). */
+function mean(v: number[], f?: number[]): number {
   let s = 0;
-  for (const x of v) s += x;
-  return s / v.length;
+  let n = 0;
+  v.forEach((x, i) => {
+    const w = f ? f[i] : 1;
+    s += w * x;
+    n += w;
+  });
+  return s / n;
 }
 
-function sd(v: number[]): number | null {
-  if (v.length < 2) return null;
-  const mu = mean(v);
+function sd(v: number[], f?: number[]): number | null {
+  const n = f ? f.reduce((a, b) => a + b, 0) : v.length;
+  if (n < 2) return null;
+  const mu = mean(v, f);
   let s = 0;
-  for (const x of v) s += (x - mu) * (x - mu);
-  return Math.sqrt(s / (v.length - 1));
+  v.forEach((x, i) => (s += (f ? f[i] : 1) * (x - mu) * (x - mu)));
+  return Math.sqrt(s / (n - 1));
 }
 
 /** The curve's value at the ends of the data range and whether it rises with x there (for words about direction). */
@@ -45,6 +52,8 @@ export interface ReadOffInput {
   dilution: number;
   /** what x is called in messages, e.g. "conc_ng_ml" */
   xLabel: string;
+  /** frequency of each reading (data.count of the standards); default 1 each */
+  freq?: number[];
   /** data.x is a transform of a column: x is also given on the column's scale, and the value uses that */
   xScale?: { column: string; transform: ScaleTransform };
 }
@@ -55,8 +64,8 @@ export interface ReadOffInput {
  * found beyond it (extrapolated, flagged); several inside: no single answer (flagged).
  */
 export function readOff(ctx: PredictionContext, input: ReadOffInput): UnknownReport {
-  const m = input.y.length;
-  const meanY = mean(input.y);
+  const m = input.freq ? input.freq.reduce((a, b) => a + b, 0) : input.y.length;
+  const meanY = mean(input.y, input.freq);
   const flags: ReadoutFlag[] = [];
   const inv = computeInverse({ ...ctx, replicates: m }, meanY);
   const { lo, hi, fLo, fHi } = curveEnds(ctx);
@@ -125,7 +134,7 @@ export function readOff(ctx: PredictionContext, input: ReadOffInput): UnknownRep
     m,
     y: input.y,
     meanY,
-    sdY: sd(input.y),
+    sdY: sd(input.y, input.freq),
     x,
     ...(input.xScale ? { xOriginal: { column: input.xScale.column, transform: input.xScale.transform, x: xo, interval: io } } : {}),
     interval,
@@ -153,7 +162,7 @@ export function recovery(
 }
 
 /** Each standard level (distinct x) back-calculated from the mean of its readings, and its recovery against x. */
-export function standardsRecovery(ctx: PredictionContext, ys: ArrayLike<number>, accept: [number, number] | null, xScale?: ReadOffInput['xScale']): StandardRecovery[] {
+export function standardsRecovery(ctx: PredictionContext, ys: ArrayLike<number>, accept: [number, number] | null, xScale?: ReadOffInput['xScale'], count?: ArrayLike<number> | null): StandardRecovery[] {
   const inv = xScale ? inverseOf(xScale.transform) : (v: number) => v;
   const X = ctx.X[0];
   const levels = new Map<number, number[]>();
@@ -166,13 +175,14 @@ export function standardsRecovery(ctx: PredictionContext, ys: ArrayLike<number>,
   for (const x of [...levels.keys()].sort((a, b) => a - b)) {
     const idx = levels.get(x)!;
     const y = idx.map((i) => ys[i]);
-    const r = readOff(ctx, { id: String(x), rows: [], y, dilution: 1, xLabel: 'x', ...(xScale ? { xScale } : {}) });
+    const freq = count ? idx.map((i) => count[i]) : undefined;
+    const r = readOff(ctx, { id: String(x), rows: [], y, dilution: 1, xLabel: 'x', ...(xScale ? { xScale } : {}), ...(freq ? { freq } : {}) });
     // on the original scale when x is transformed: the recovery of the concentration, not of its logarithm
     const nominal = inv(x);
     const rec = nominal !== 0 ? recovery(r.value, r.valueInterval, nominal, accept) : { recovery: null, pass: null };
     // a level on a plateau (an interval with an open end) cannot be quantified, so it is not judged (pass null)
     const open = !r.interval || r.interval[0] === null || r.interval[1] === null;
-    out.push({ x, m: idx.length, meanY: r.meanY, back: r.x, interval: r.interval, recovery: rec.recovery, pass: open ? null : rec.pass });
+    out.push({ x, m: r.m, meanY: r.meanY, back: r.x, interval: r.interval, recovery: rec.recovery, pass: open ? null : rec.pass });
   }
   return out;
 }

@@ -161,7 +161,56 @@ export function generateDemo(seed = DEFAULT_SEED): { files: DemoFiles; unknowns:
     files['data/cell-capacity-fade.csv'] = csv(['cycle', 'capacity_ah'], rows);
   }
 
+  files['data/assay-plate-samples.csv'] = assayPlateSamples(seed);
+  files['data/potency-lots.csv'] = potencyLots(seed);
   return { files, unknowns };
+}
+
+/**
+ * (e) the samples on plate TB-A17 beside its standards: unknowns in duplicate at their dilutions, spiked controls
+ * (nominal ng/mL) and four blanks. Its own stream (seed + 15), so the files above keep their draws.
+ */
+export function assayPlateSamples(seed: number): string {
+  const normal = normalSource(mulberry32(seed + 15));
+  const t = TRUTH.assay;
+  const absorb = (conc: number) => {
+    const m = conc > 0 ? fivePL(t, conc) : t.lower;
+    return m + Math.sqrt(t.sd * t.sd + (t.cv * m) ** 2) * normal();
+  };
+  // sample, true ng/mL in the original sample, dilution factor (S-205 saturates undiluted; S-206 is near the floor)
+  const samples: [string, number, number][] = [
+    ['S-201', 3.1, 1],
+    ['S-202', 24, 1],
+    ['S-203', 180, 10],
+    ['S-204', 62, 5],
+    ['S-205', 4000, 1],
+    ['S-206', 0.09, 1],
+  ];
+  const rows: (string | number)[][] = [];
+  let well = 0;
+  const wellName = () => {
+    const k = well++;
+    return String.fromCharCode(65 + Math.floor(k / 12)) + String((k % 12) + 1);
+  };
+  for (const [id, conc, dil] of samples) for (let rep = 0; rep < 2; rep++) rows.push([wellName(), id, dil, '', fmt(absorb(conc / dil), 3)]);
+  for (const [id, nominal] of [['QC-L', 2], ['QC-M', 10], ['QC-H', 40]] as [string, number][])
+    for (let rep = 0; rep < 2; rep++) rows.push([wellName(), id, 1, nominal, fmt(absorb(nominal), 3)]);
+  for (let rep = 0; rep < 4; rep++) rows.push([wellName(), 'BLANK', 1, '', fmt(absorb(0), 3)]);
+  return csv(['well', 'sample', 'dilution', 'nominal_ng_ml', 'absorbance'], rows);
+}
+
+/**
+ * (f) a bioassay of two lots on one plate: the reference lot RS-04 and a new lot L-221 that is 1.4 times as potent
+ * (its EC50 is the reference's / 1.4), same asymptotes and slope, 8 doses in triplicate. Own stream (seed + 16).
+ */
+export function potencyLots(seed: number): string {
+  const normal = normalSource(mulberry32(seed + 16));
+  const curve = (x: number, ec50: number) => 0.12 + (1.85 - 0.12) / (1 + (ec50 / x) ** 1.3);
+  const rows: (string | number)[][] = [];
+  for (const [lot, ec50] of [['RS-04', 14], ['L-221', 14 / 1.4]] as [string, number][])
+    for (const dose of [0.5, 1.5, 4, 10, 25, 60, 150, 400])
+      for (let rep = 1; rep <= 3; rep++) rows.push([lot, dose, rep, fmt(curve(dose, ec50) * (1 + 0.02 * normal()) + 0.01 * normal(), 4)]);
+  return csv(['lot', 'dose_ng_ml', 'replicate', 'response'], rows);
 }
 
 function main(): void {

@@ -30,7 +30,7 @@ export async function staleness(report: FitReport, outputAbs: string, outShown: 
   } catch {
     return `results file ${outShown} does not exist — run \`curvewright fit ${specShown}\` and commit it`;
   }
-  let meta: { specHash?: unknown; dataHash?: unknown } | undefined;
+  let meta: { specHash?: unknown; dataHash?: unknown; readingsHash?: unknown } | undefined;
   try {
     meta = (JSON.parse(text) as { meta?: typeof meta }).meta;
   } catch {
@@ -39,6 +39,7 @@ export async function staleness(report: FitReport, outputAbs: string, outShown: 
   const what: string[] = [];
   if (!meta || meta.specHash !== report.meta.specHash) what.push('the spec');
   if (!meta || meta.dataHash !== report.meta.dataHash) what.push('the data');
+  if (meta && meta.readingsHash !== report.meta.readingsHash) what.push('the unknowns or controls file');
   if (!what.length) return sidecarStaleness(text, outputAbs, outShown, specShown);
   return `results file ${outShown} is stale: ${what.join(' and ')} changed since it was written — run \`curvewright fit ${specShown}\` and commit the results (or \`curvewright check --update\`)`;
 }

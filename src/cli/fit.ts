@@ -44,8 +44,9 @@ export async function runInputs(specsAbs: string[]): Promise<string[]> {
   const out: string[] = [...specsAbs];
   for (const s of specsAbs) {
     try {
-      const { data } = await specFiles(s);
+      const { data, readings } = await specFiles(s);
       if (data) out.push(data);
+      out.push(...readings);
     } catch {
       /* an unreadable spec is reported by its run */
     }

@@ -4,7 +4,7 @@ import * as path from 'path';
 import { allProblems, pathText } from '../shared/reportText';
 import { fmtCli as num } from '../shared/numberFormat';
 import { oneLine } from '../shared/terminalText';
-import type { ErrorReport, FitReport, ModelReport, Problem } from '../engine/report';
+import type { ErrorReport, FitReport, ModelReport, Problem, UnknownReport } from '../engine/report';
 
 function table(rows: string[][], indent = '  '): string[] {
   const widths = rows[0].map((_, j) => Math.max(...rows.map(r => (r[j] ?? '').length)));
@@ -150,6 +150,7 @@ export function summaryText(r: FitReport, specShown: string, written: string | n
       out.push(`  derived ${d.name} (${d.model}${d.group !== null ? `, group ${d.group}` : ''}): ${num(d.value, 5)}${d.se !== null ? ` ± ${num(d.se, 2)}` : ''}${d.ci ? ` [${num(d.ci[0])}, ${num(d.ci[1])}] (${conf} Wald)` : ''}`);
     if (r.derived.length > shownD.length) out.push(`  … ${r.derived.length - shownD.length} more derived values — see --json or the results file`);
   }
+  out.push(...calibrationLines(r));
   if (r.expect.length) {
     const met = r.expect.filter(e => e.ok).length;
     out.push(`  expect: ${met} of ${r.expect.length} met${met < r.expect.length ? ` — ${r.expect.filter(e => !e.ok).map(expectText).join('; ')}` : ''}`);
@@ -238,4 +239,54 @@ function foldedModels(r: FitReport): ModelReport[] {
   for (const m of r.models) if (m.status !== 'converged' && keep.size < MAX_GROUP_ROWS / 2) keep.add(m);
   for (const m of r.models) if (keep.size < MAX_GROUP_ROWS) keep.add(m);
   return r.models.filter(m => keep.has(m));
+}
+
+/** Unknowns, controls, standards' recovery and limits (docs/calibration.md), as tables under the summary. */
+function calibrationLines(r: FitReport): string[] {
+  const out: string[] = [];
+  const conf = `${num(r.confidence * 100, 3)} %`;
+  const iv = (i: [number | null, number | null] | null) => (i ? `[${i[0] === null ? '—' : num(i[0])}, ${i[1] === null ? '—' : num(i[1])}]` : '');
+  const flags = (u: UnknownReport) => u.flags.map(f => f.kind).join(', ');
+  const cap = <T>(list: T[]) => list.slice(0, MAX_GROUP_ROWS);
+  const more = (n: number, what: string) => (n > MAX_GROUP_ROWS ? [`    … ${n - MAX_GROUP_ROWS} more ${what} — see the results file or the CSV export`] : []);
+  if (r.unknowns) {
+    const u = r.unknowns;
+    out.push(`  unknowns (${u.model}, ${conf} intervals for the mean of m readings; value = x × dilution):`);
+    const rows = [['id', 'm', 'mean y', 'x', 'interval', 'dilution', 'value', 'interval', 'flags']];
+    for (const x of cap(u.results)) rows.push([x.id, String(x.m), num(x.meanY, 4), x.x === null ? '—' : num(x.x, 4), iv(x.interval), num(x.dilution), x.value === null ? '—' : num(x.value, 4), iv(x.valueInterval), flags(x)]);
+    out.push(...table(rows, '    '), ...more(u.results.length, 'unknowns'));
+    if (u.output) out.push(`    table: ${u.output}`);
+  }
+  if (r.controls) {
+    const c = r.controls;
+    if (c.results.length) {
+      out.push(`  controls (${c.model}${c.accept ? `, accept ${num(c.accept[0])}–${num(c.accept[1])} %` : ''}): ${c.pass === null ? 'no verdict' : c.pass ? 'all passed' : 'FAILED'}`);
+      const rows = [['id', 'm', 'nominal', 'value', 'recovery %', 'interval', 'verdict', 'flags']];
+      for (const x of cap(c.results)) rows.push([x.id, String(x.m), num(x.nominal), x.value === null ? '—' : num(x.value, 4), x.recovery === null ? '—' : num(x.recovery, 4), iv(x.recoveryInterval), x.pass === null ? '' : x.pass ? 'pass' : 'FAIL', flags(x)]);
+      out.push(...table(rows, '    '), ...more(c.results.length, 'controls'));
+    }
+    const s = c.standards.filter(x => x.recovery !== null);
+    if (s.length) {
+      const lo = Math.min(...s.map(x => x.recovery!));
+      const hi = Math.max(...s.map(x => x.recovery!));
+      const failed = s.filter(x => x.pass === false).length;
+      out.push(`  standards back-calculated (${c.model}): recovery ${num(lo, 4)}–${num(hi, 4)} % over ${s.length} levels${c.acceptStandards ? `, ${failed ? `${failed} outside` : 'all within'} ${num(c.acceptStandards[0])}–${num(c.acceptStandards[1])} %` : ''}`);
+    }
+  }
+  if (r.limits) {
+    const l = r.limits;
+    const rule = l.convention === 'ich-line' ? '3.3·σ/slope and 10·σ/slope (ICH Q2(R1))' : 'blank ± 3.3·σ and ± 10·σ read off the curve';
+    out.push(`  limits (${l.model}, σ from ${l.sigma.from === 'blanks' ? `${l.sigma.n} blanks` : 'the residuals'} = ${num(l.sigma.value, 4)}): LOD ${num(l.lod, 4)}, LOQ ${num(l.loq, 4)} by ${rule}; detection limit ${num(l.detection.x, 4)} (Hubaux–Vos) — conventions to validate under your own procedure`);
+  }
+  if (r.potency) {
+    const p = r.potency;
+    for (const x of p.results.slice(0, MAX_GROUP_ROWS)) {
+      const par = x.parallelism;
+      const eq = par
+        ? `; parallelism (${num(par.level * 100, 3)} % intervals): slope ratio ${num(par.slopeRatio.value, 4)} ${iv(par.slopeRatio.interval)}, span ratio ${num(par.spanRatio.value, 4)} ${iv(par.spanRatio.interval)}${par.verdict ? ` — ${par.verdict}` : ''}`
+        : '';
+      out.push(`  relative potency ${x.test} vs ${p.reference} (${p.model}): ${num(x.ratio, 4)} ${iv(x.interval)} (${conf} Fieller)${eq}`);
+    }
+  }
+  return out;
 }

@@ -29,6 +29,7 @@ export const COMMANDS: CommandDef[] = [
     summary: 'fit every model of each spec, write its results file, print a summary',
     details: [
       'Each spec\'s "output" results file is written atomically (a temporary file, then rename), one writer at a time (a lock file beside it).',
+      'A spec with "unknowns" also writes its read-outs to unknowns.output (a .csv file), atomically (docs/calibration.md).',
       'A <spec> may be a file, a folder (its *.fitspec.json files) or a pattern like examples/*.fitspec.json.',
       'Exits 0 when every spec ran, even if a model failed to converge (the summary says so); 2 for bad input.',
     ],
@@ -46,7 +47,7 @@ export const COMMANDS: CommandDef[] = [
     usage: 'curvewright check <spec...> [--strict] [--update] [--json] [--format github] [--shard K/N] [--jobs N]',
     summary: 'fit and fail (exit 1) when a model does not converge, an error is found, an expect is not met, or results are stale',
     details: [
-      'A results file is stale when its meta.specHash or meta.dataHash differ from the current spec and data.',
+      'A results file is stale when its meta.specHash, meta.dataHash or meta.readingsHash differ from the current spec, data and unknowns/controls files.',
       'check does not write results files, except with --update.',
       'With --json each line carries "check": { ok, spec (path from here), reasons, warnings } — each reason with file, line and column.',
       '--shard K/N: the specs (repeats dropped) sorted by their path from here; spec i (from 0) is in shard (i mod N) + 1.',

@@ -63,7 +63,8 @@ export async function inputRefusal(key: string, file: string, opts: BoundaryOpti
   return null;
 }
 
-export type OutputKind = 'results' | 'report';
+/** results: a JSON results file; report: an HTML report; table: a CSV export (its owner check is opts.isOwn) */
+export type OutputKind = 'results' | 'report' | 'table';
 
 /** Is the existing file one Curvewright wrote (results: JSON with its own version and meta keys; report: the marker)? */
 async function isOwnFile(file: string, kind: OutputKind): Promise<boolean> {
@@ -99,14 +100,14 @@ export async function outputRefusal(
   key: string,
   file: string,
   kind: OutputKind,
-  opts: BoundaryOptions & { inputs?: string[]; claimed?: Set<string> },
+  opts: BoundaryOptions & { inputs?: string[]; claimed?: Set<string>; isOwn?: (file: string) => Promise<boolean> },
 ): Promise<string | null> {
   const root = await realOrSelf(opts.root);
   const real = await realOrSelf(file);
   const where = shownFromRoot(root, real);
-  const ext = kind === 'results' ? '.json' : '.html';
+  const ext = kind === 'results' ? '.json' : kind === 'table' ? '.csv' : '.html';
   if (!real.toLowerCase().endsWith(ext))
-    return `${keyText(key)} ${where} is not a ${ext} file — ${kind === 'results' ? 'results go to a .json file such as "results/<name>.fitresult.json"' : 'a report goes to an .html file such as report.html'}`;
+    return `${keyText(key)} ${where} is not a ${ext} file — ${kind === 'results' ? 'results go to a .json file such as "results/<name>.fitresult.json"' : kind === 'table' ? 'a table goes to a .csv file such as "results/unknowns.csv"' : 'a report goes to an .html file such as report.html'}`;
   if (/\.fitspec\.json$/i.test(real)) return `${keyText(key)} ${where} is a spec file name — results go to a separate file such as "results/<name>.fitresult.json"`;
   if (!opts.trustOutside && !isInside(root, real))
     return `${keyText(key)} ${where} — outputs must stay inside the workspace; give a path inside it (e.g. "results/<name>.fitresult.json"), ${opts.trustHint ?? 'or run with --trust-paths if you really want this file'}`;
@@ -137,8 +138,8 @@ export async function outputRefusal(
   try {
     const st = await fsp.stat(real);
     if (st.isDirectory()) return `${keyText(key)} ${where} is a folder — name a file inside it, e.g. "${where.replace(/\/$/, '')}/results.json"`;
-    if (!(await isOwnFile(real, kind)))
-      return `${keyText(key)} ${where} exists and is not a Curvewright ${kind === 'results' ? 'results file' : 'report'} — it is left untouched; choose another output path or remove that file yourself`;
+    if (!(kind === 'table' ? (opts.isOwn ? await opts.isOwn(real) : false) : await isOwnFile(real, kind)))
+      return `${keyText(key)} ${where} exists and is not a Curvewright ${kind === 'results' ? 'results file' : kind === 'table' ? 'table' : 'report'} — it is left untouched; choose another output path or remove that file yourself`;
   } catch {
     /* does not exist yet: fine */
   }

@@ -83,6 +83,67 @@ export interface VarianceSpec {
   power: number | 'estimate';
 }
 
+/**
+ * Unknown samples read off the standard curve (docs/calibration.md): each id's readings are averaged and
+ * back-calculated with the interval for the mean of m readings, then multiplied by its dilution factor.
+ */
+export interface UnknownsSpec {
+  /** CSV of the readings, relative to the spec file (inside the workspace, like data.file) */
+  file: string;
+  /** column naming the sample; rows with the same id (and dilution) are replicate readings of one sample */
+  id: string;
+  /** column or expression of the reading on the scale of data.y (default: data.y's own expression) */
+  y?: string;
+  /** column of the dilution factor (> 0; default 1): the reported value is x × dilution */
+  dilution?: string;
+  /** the model that reads them (default: the best model, or the only one) */
+  model?: string;
+  /** CSV file the results are also written to (inside the workspace, a .csv file) */
+  output?: string;
+}
+
+/**
+ * Spiked controls with a nominal value: recovery % = 100 · reported value / nominal, with its interval and pass/fail
+ * against `accept`; also the recovery of the back-calculated standards. file, id, y and dilution default to unknowns'.
+ */
+export interface ControlsSpec {
+  file?: string;
+  id?: string;
+  y?: string;
+  dilution?: string;
+  /** column of the nominal (spiked) value, on the scale of the reported value (x × dilution) */
+  nominal: string;
+  /** acceptance range of the recovery, in %, e.g. [80, 120] */
+  accept?: [number, number];
+  /** acceptance range of the standards' recovery, in % (default: none, no pass/fail) */
+  acceptStandards?: [number, number];
+  model?: string;
+}
+
+/** Limits of detection and quantitation from the calibration (docs/calibration.md names each convention). */
+export interface LimitsSpec {
+  /** σ of the limits: the fit's residual SD (default) or the SD of the blank readings */
+  sigma?: 'residual' | 'blanks';
+  /** id of the blank readings in the unknowns file (default: the standards at x = 0) */
+  blanks?: string;
+  model?: string;
+}
+
+/**
+ * Relative potency of groups against a reference group, from a joint 4PL/5PL fit with the asymptotes and slope shared
+ * (models[].shared), and a parallelism check by equivalence (docs/calibration.md).
+ */
+export interface PotencySpec {
+  /** the joint model (builtin logistic4 or logistic5 with shared lower, upper, slope — and asym for logistic5); default: the only such model */
+  model?: string;
+  /** group id of the reference */
+  reference: string;
+  /** group ids compared with it (default: every other group) */
+  test?: string[];
+  /** equivalence margins of the ratios test/reference: of the slopes and of the spans (upper − lower), e.g. [0.8, 1.25] */
+  margin?: { slope: [number, number]; span: [number, number] };
+}
+
 export type ExpectSpec = { value: number; tol: number } | { value: number; rel: number };
 
 export interface FitSpec {
@@ -105,6 +166,10 @@ export interface FitSpec {
   thresholds?: Partial<Thresholds>;
   /** name -> expression over a model's parameters (e.g. "log(2)/r"), reported for every model that has them */
   derived?: Record<string, string>;
+  unknowns?: UnknownsSpec;
+  controls?: ControlsSpec;
+  limits?: LimitsSpec;
+  potency?: PotencySpec;
   /** how the panel and the HTML report draw the figure: axis scales, titles with units, which bands */
   plot?: PlotSpec;
 }
@@ -326,6 +391,20 @@ export interface InverseReport {
   moreRoots?: number;
 }
 
+/**
+ * data.y is log10, log/ln or sqrt of one column: the predictions and band on that column's scale, by the inverse
+ * transform with each interval end mapped (docs/calibration.md "Original scale").
+ */
+export interface OriginalScaleReport {
+  /** the column data.y transforms */
+  column: string;
+  transform: 'log10' | 'log' | 'sqrt';
+  /** what the numbers are, in words */
+  note: string;
+  predictions: { x: number | Record<string, number>; y: number | null; ci: [number, number] | null; pi: [number, number] | null }[];
+  band: { x: number[]; fit: number[]; ciLow: number[]; ciHigh: number[]; piLow: number[]; piHigh: number[] } | null;
+}
+
 /** Everything known about one fitted model: how the solver ended, parameters, statistics, diagnostics and problems. */
 export interface ModelReport {
   name: string;
@@ -357,6 +436,8 @@ export interface ModelReport {
   band: BandReport | null;
   predictions: PredictionReport[];
   inverse: InverseReport[];
+  /** when data.y is a transform of a column: predictions and band on the column's own scale */
+  originalScale?: OriginalScaleReport;
   problems: Problem[];
   /** with models[].loss other than "squares": the robust fit's loss, scale and weights (docs/robust.md) */
   robust?: RobustReport;
@@ -502,6 +583,148 @@ export interface ExpectResult {
   ok: boolean;
 }
 
+/** Something about one read-out worth a look: a stable kind (docs/calibration.md) and the words. */
+export interface ReadoutFlag {
+  kind:
+    | 'above-curve'
+    | 'below-curve'
+    | 'above-range'
+    | 'below-range'
+    | 'open-interval'
+    | 'no-interval'
+    | 'several-roots'
+    | 'below-lod'
+    | 'below-loq';
+  message: string;
+}
+
+/** One sample (id and dilution) read off the curve: the mean of its m readings back-calculated, with its interval. */
+export interface UnknownReport {
+  id: string;
+  /** 1-based data rows of its readings in the file */
+  rows: number[];
+  /** readings averaged */
+  m: number;
+  /** the readings, on the scale of data.y */
+  y: number[];
+  meanY: number;
+  /** standard deviation of the readings (null for one reading) */
+  sdY: number | null;
+  /** the back-calculated x of the mean reading (in the measured solution), null when there is none */
+  x: number | null;
+  /** when data.x is log10, log/ln or sqrt of a column: x and its interval on that column's scale (value uses it) */
+  xOriginal?: { column: string; transform: 'log10' | 'log' | 'sqrt'; x: number | null; interval: [number | null, number | null] | null };
+  /** interval of x for the mean of m readings (the prediction variance uses σ²/m); an end that does not exist is null */
+  interval: [number | null, number | null] | null;
+  dilution: number;
+  /** x × dilution (x on the original scale when data.x is transformed), the value in the original sample */
+  value: number | null;
+  valueInterval: [number | null, number | null] | null;
+  flags: ReadoutFlag[];
+}
+
+/** spec.unknowns read off one model. */
+export interface UnknownsReport {
+  model: string;
+  /** why this model: named in the spec, the best by the comparison, or the only converged one */
+  modelFrom: 'spec' | 'best' | 'only';
+  file: string;
+  /** the CSV file written beside the results (spec unknowns.output), relative to the spec */
+  output?: string;
+  results: UnknownReport[];
+}
+
+/** A spiked control: the unknown's read-out with its nominal value, recovery % and its interval, and pass/fail. */
+export interface ControlReport extends UnknownReport {
+  nominal: number;
+  /** 100 · value / nominal */
+  recovery: number | null;
+  recoveryInterval: [number | null, number | null] | null;
+  /** recovery within controls.accept; null without accept or without a value */
+  pass: boolean | null;
+}
+
+/** One standard level back-calculated from the mean of its readings: recovery against its nominal x. */
+export interface StandardRecovery {
+  x: number;
+  m: number;
+  meanY: number;
+  back: number | null;
+  interval: [number | null, number | null] | null;
+  /** 100 · back / x (null at x = 0) */
+  recovery: number | null;
+  pass: boolean | null;
+}
+
+export interface ControlsReport {
+  model: string;
+  modelFrom: 'spec' | 'best' | 'only';
+  file: string | null;
+  accept: [number, number] | null;
+  acceptStandards: [number, number] | null;
+  results: ControlReport[];
+  standards: StandardRecovery[];
+  /** every control with a pass/fail passed (null without accept or without controls) */
+  pass: boolean | null;
+}
+
+/** Limits of detection and quantitation, with the convention each follows. */
+export interface LimitsReport {
+  model: string;
+  modelFrom: 'spec' | 'best' | 'only';
+  /** σ used and where it came from: the fit's residual SD, or the SD of n blank readings */
+  sigma: { from: 'residual' | 'blanks'; value: number | null; n: number };
+  /** the blank: its x and its response (the fitted value at x, or the mean of the blank readings) */
+  blank: { x: number; y: number | null };
+  /**
+   * "ich-line": LOD = 3.3·σ/|slope|, LOQ = 10·σ/|slope| (a straight line); "response": the x where the curve
+   * reaches the blank's response ± 3.3·σ and ± 10·σ (a curve)
+   */
+  convention: 'ich-line' | 'response';
+  lod: number | null;
+  loq: number | null;
+  /**
+   * Hubaux–Vos detection limit: the decision level yC (the upper prediction limit of the blank) and the smallest x whose
+   * lower prediction limit reaches it
+   */
+  detection: { decisionY: number | null; x: number | null };
+  /** the conventions and the caution, in words */
+  note: string;
+}
+
+/** spec.potency: relative potency of each test group against the reference, and parallelism by equivalence. */
+export interface PotencyReport {
+  /** the joint model the potency comes from */
+  model: string;
+  /** the separate fits the parallelism check uses (the same model without shared), or null when the spec has none */
+  separate: string | null;
+  reference: string;
+  confidence: number;
+  /** how the interval of a ratio is computed: Fieller's theorem */
+  method: 'fieller';
+  results: {
+    test: string;
+    /** midpoint[reference] / midpoint[test]: above 1, the test group is more potent (needs less) */
+    ratio: number | null;
+    /** Fieller interval at the spec's confidence; null ends when unbounded */
+    interval: [number | null, number | null] | null;
+    /** the midpoints (ec50 or xc) of the reference and the test group in the joint fit */
+    reference: number;
+    testValue: number;
+    /** equivalence of slopes and spans from the separate fits; null without them */
+    parallelism: {
+      /** level of the intervals: 2·confidence − 1 (two one-sided tests) */
+      level: number;
+      slopeRatio: { value: number; interval: [number | null, number | null] };
+      spanRatio: { value: number; interval: [number | null, number | null] };
+      /** both intervals within the margins / one outside / neither; null without potency.margin */
+      verdict: 'equivalent' | 'not-equivalent' | 'inconclusive' | null;
+    } | null;
+  }[];
+  /** the method, the margins and which test to read, in words */
+  note: string;
+}
+
 /** What the results depend on: engine version, hashes of the spec and the data, and the random seed. */
 export interface ReportMeta {
   /** ENGINE_VERSION */
@@ -509,6 +732,8 @@ export interface ReportMeta {
   /** hash of the spec's content and of the data file's bytes: `check` reports results older than either as stale */
   specHash: string;
   dataHash: string;
+  /** with unknowns/controls files: the hash of their bytes (several files: of their hashes), so `check` sees them change */
+  readingsHash?: string;
   /** seed of the engine's random draws (the same for every run, so results do not depend on the machine) */
   seed: number;
 }
@@ -566,6 +791,14 @@ export interface FitReport {
   expect: ExpectResult[];
   /** with spec.derived: each derived quantity for each model (and group) that has its parameters */
   derived?: DerivedReport[];
+  /** with spec.unknowns: every unknown sample read off the curve */
+  unknowns?: UnknownsReport;
+  /** with spec.controls: spiked controls' and standards' recovery */
+  controls?: ControlsReport;
+  /** with spec.limits: limits of detection and quantitation */
+  limits?: LimitsReport;
+  /** with spec.potency: relative potency and parallelism */
+  potency?: PotencyReport;
   /** confidence level of every interval */
   confidence: number;
   /** the sidecar file holding every model's points and band (outputPoints "sidecar"), relative to this file */

@@ -43,6 +43,7 @@ import { jointBuiltModel } from './joint';
 import { sharingTest } from './stats/sharing';
 import { DEFAULTS } from './spec/defaults';
 import { cleanStaleTemps, inputRefusal, LockBusyError, outputRefusal as pathOutputRefusal, realOrSelf, tmpName, withFileLock } from './paths';
+import { addOriginalScale, runPotency, isReadoutsFile, readoutsCsv, runCalibration, writeTextAtomic, type FittedModel } from './calibration';
 
 export interface RunOptions {
   /** spec text to use instead of the file on disk (e.g. unsaved editor text) */
@@ -458,10 +459,12 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions & { 
   const models: ModelReport[] = [];
   let comparison: FitReport['comparison'] = null;
   let groups: GroupReport[] | undefined;
+  let single: FittedModel[] = [];
   if (!prepared.groups) {
     const fitted = fitAll({ ...data, count: prepared.count, precision: prepared.w, rows: prepared.rows, wx: prepared.wx ?? null });
     if ('error' in fitted) return fitted;
     models.push(...fitted.models);
+    single = fitted.analysed;
     comparison = compare(fitted.analysed, '');
   } else {
     const G = prepared.groups;
@@ -554,13 +557,26 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions & { 
       }
   }
 
+  // 7. calibration: predictions back on the original scale of a transformed y, then unknowns, controls and limits
+  addOriginalScale(spec, models);
+  const calibration = spec.unknowns || spec.controls || spec.limits
+    ? await runCalibration(spec, single, comparison ? comparison.best : null, {
+        workspaceRoot,
+        trustPaths,
+        locate: (p) => locationOf(text, name, p),
+        xLabel: unquote(spec.data.x[prepared.variables[0]] ?? 'x'),
+      })
+    : null;
+  if (calibration) runProblems.push(...calibration.problems);
+  const potency = spec.potency && groups ? runPotency(spec, models, comparison, groups.map(g => g.id), { locate: (p) => locationOf(text, name, p) }) : null;
+
   const specDir = path.dirname(path.resolve(specPath));
   const report: FitReport = {
     version: 1,
     spec: name,
     ...(spec.title !== undefined ? { title: spec.title } : {}),
     ...(spec.plot !== undefined ? { plot: spec.plot } : {}),
-    meta: { engine: ENGINE_VERSION, specHash, dataHash: table.hash, seed: RUN_SEED },
+    meta: { engine: ENGINE_VERSION, specHash, dataHash: table.hash, ...(calibration?.readingsHash ? { readingsHash: calibration.readingsHash } : {}), seed: RUN_SEED },
     data: dataReport(spec, table, prepared, correlation),
     ...(groups ? { groups } : {}),
     models,
@@ -569,6 +585,10 @@ async function runSpecText(specPath: string, text: string, opts: RunOptions & { 
     problems: dedupe([...specProblems, ...dataProblems, ...correlationProblems, ...runProblems]),
     expect,
     ...(derived ? { derived } : {}),
+    ...(calibration?.unknowns ? { unknowns: calibration.unknowns } : {}),
+    ...(calibration?.controls ? { controls: calibration.controls } : {}),
+    ...(calibration?.limits ? { limits: calibration.limits } : {}),
+    ...(potency ? { potency } : {}),
     confidence: spec.confidence,
   };
   // results files are committed: no absolute paths of this machine in them, only paths relative to the spec
@@ -780,7 +800,7 @@ export interface SerializeOptions {
 }
 
 /** Top-level key order of a FitReport (others follow in insertion order). */
-const REPORT_KEYS = ['version', 'spec', 'title', 'plot', 'error', 'meta', 'data', 'groups', 'models', 'comparison', 'best', 'problems', 'expect', 'derived', 'confidence'];
+const REPORT_KEYS = ['version', 'spec', 'title', 'plot', 'error', 'meta', 'data', 'groups', 'models', 'comparison', 'best', 'problems', 'expect', 'derived', 'unknowns', 'controls', 'limits', 'potency', 'confidence'];
 
 function normalise(v: unknown): unknown {
   if (typeof v === 'number') return Number.isFinite(v) ? (Object.is(v, -0) ? 0 : v) : null;
@@ -852,8 +872,14 @@ export class OutputError extends Error {
   }
 }
 
-/** The absolute results-file and data-file paths a spec names, and its outputPoints (read leniently from its text; null when absent). */
-export async function specFiles(specPath: string, specText?: string): Promise<{ output: string | null; data: string | null; outputPoints: OutputPoints }> {
+/**
+ * The absolute results-file and data-file paths a spec names, its outputPoints, the read-outs CSV (unknowns.output)
+ * and the other files it reads (unknowns.file, controls.file) — read leniently from its text; null when absent.
+ */
+export async function specFiles(
+  specPath: string,
+  specText?: string,
+): Promise<{ output: string | null; data: string | null; outputPoints: OutputPoints; table: string | null; readings: string[] }> {
   let text = specText;
   if (text === undefined) {
     try {
@@ -862,12 +888,18 @@ export async function specFiles(specPath: string, specText?: string): Promise<{ 
       throw new OutputError(`cannot read the spec ${specPath} to find its "output": ${(e as Error).message}`);
     }
   }
-  const raw = parseJsonc(text, [], { allowTrailingComma: true }) as { output?: unknown; outputPoints?: unknown; data?: { file?: unknown } } | undefined;
+  type Raw = { output?: unknown; outputPoints?: unknown; data?: { file?: unknown }; unknowns?: { file?: unknown; output?: unknown }; controls?: { file?: unknown } };
+  const raw = parseJsonc(text, [], { allowTrailingComma: true }) as Raw | undefined;
   const dir = path.dirname(specPath);
-  const output = raw && typeof raw.output === 'string' ? path.resolve(dir, raw.output) : null;
-  const data = raw && raw.data && typeof raw.data.file === 'string' ? path.resolve(dir, raw.data.file) : null;
+  const str = (v: unknown) => (typeof v === 'string' && v !== '' ? path.resolve(dir, v) : null);
+  const output = raw ? str(raw.output) : null;
+  const data = raw && raw.data ? str(raw.data.file) : null;
   const outputPoints: OutputPoints = raw && (raw.outputPoints === 'sidecar' || raw.outputPoints === 'omit') ? raw.outputPoints : 'inline';
-  return { output, data, outputPoints };
+  const table = raw && raw.unknowns && typeof raw.unknowns === 'object' ? str(raw.unknowns.output) : null;
+  const readings = [raw?.unknowns && typeof raw.unknowns === 'object' ? str(raw.unknowns.file) : null, raw?.controls && typeof raw.controls === 'object' ? str(raw.controls.file) : null].filter(
+    (f): f is string => f !== null,
+  );
+  return { output, data, outputPoints, table, readings };
 }
 
 /**
@@ -881,14 +913,33 @@ export async function writeResults(
   specPath: string,
   opts: { workspaceRoot?: string; specText?: string; trustPaths?: boolean; claimed?: Set<string>; inputs?: string[]; lockWaitMs?: number } = {},
 ): Promise<string | null> {
-  const { output, data, outputPoints } = await specFiles(specPath, opts.specText);
+  const { output, data, outputPoints, table, readings } = await specFiles(specPath, opts.specText);
+  // the read-outs CSV (unknowns.output) first: the results file names it, so a reader finding one finds the other
+  const csv = table ? readoutsCsv(report) : null;
+  if (table && csv !== null) {
+    const refusal = await pathOutputRefusal('unknowns.output', table, 'table', {
+      root: opts.workspaceRoot ?? process.cwd(),
+      trustOutside: opts.trustPaths === true,
+      inputs: [specPath, data ?? specPath, ...readings, ...(opts.inputs ?? [])],
+      claimed: opts.claimed,
+      isOwn: isReadoutsFile,
+    });
+    if (refusal) throw new OutputError(refusal);
+    try {
+      await writeTextAtomic(table, csv);
+    } catch (e) {
+      const code = (e as NodeJS.ErrnoException).code;
+      const why = code === 'EACCES' || code === 'EPERM' ? 'permission denied' : code === 'ENOSPC' ? 'the disk is full' : (e as Error).message;
+      throw new OutputError(`cannot write the unknowns table ${path.basename(table)}: ${why} — check that its folder is writable and has space`);
+    }
+  }
   if (!output) return null;
   const side = sidecarPath(output);
   for (const file of outputPoints === 'sidecar' ? [output, side] : [output]) {
     const refusal = await pathOutputRefusal('output', file, 'results', {
       root: opts.workspaceRoot ?? process.cwd(),
       trustOutside: opts.trustPaths === true,
-      inputs: [specPath, data ?? specPath, ...(opts.inputs ?? [])],
+      inputs: [specPath, data ?? specPath, ...readings, ...(opts.inputs ?? [])],
       claimed: opts.claimed,
     });
     if (refusal) throw new OutputError(refusal);

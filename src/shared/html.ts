@@ -2,7 +2,7 @@
 // the VS Code panel (script and CSS by URI, nonce CSP) and the standalone report (everything inlined, hash CSP,
 // reports embedded as JSON), so both show the same drawing.
 import { sha256Base64 } from './sha256';
-import type { RunResult } from '../engine/report';
+import type { FitReport, RunResult, UnknownReport } from '../engine/report';
 import { DATA_ELEMENT_ID, ROOT_ID } from './ids';
 
 /** Escape text for HTML content and attribute values. */
@@ -118,8 +118,72 @@ export function buildReportHtml(reports: RunResult[], assets: { js: string; css:
     head: `<style>${css}</style>`,
     body: [
       `<div id="${ROOT_ID}" class="cw-standalone"><noscript>This report needs JavaScript to draw its plots and tables.</noscript></div>`,
+      ...reports.map(calibrationHtml).filter(Boolean),
       `<script type="application/json" id="${DATA_ELEMENT_ID}">${jsonForScript(reports)}</script>`,
       `<script>${js}</script>`,
     ].join('\n'),
   });
+}
+
+/** A number for reading in the report tables (4 significant digits; the embedded JSON keeps full precision). */
+function n4(v: number | null | undefined): string {
+  if (v === null || v === undefined || !Number.isFinite(v)) return '\u2014';
+  return Math.abs(v) >= 1e-3 && Math.abs(v) < 1e6 ? String(Number(v.toPrecision(4))) : v.toExponential(3);
+}
+
+function cells(tag: 'th' | 'td', values: string[]): string {
+  return '<tr>' + values.map(v => `<${tag}>${escapeHtml(v)}</${tag}>`).join('') + '</tr>';
+}
+
+/**
+ * The read-outs of one report as static tables (unknowns, controls, standards' recovery, limits; docs/calibration.md),
+ * drawn without script so they print and read as they are; '' when the report has none.
+ */
+export function calibrationHtml(r: RunResult): string {
+  if ('error' in r) return '';
+  const f = r as FitReport;
+  if (!f.unknowns && !f.controls && !f.limits && !f.potency) return '';
+  const iv = (i: [number | null, number | null] | null) => (i ? `[${n4(i[0])}, ${n4(i[1])}]` : '');
+  const flags = (u: UnknownReport) => u.flags.map(x => x.message).join(' ');
+  const conf = `${n4(f.confidence * 100)} %`;
+  const parts: string[] = [`<section class="cw-calibration"><h2>Read-outs: ${escapeHtml(f.title ?? f.spec)}</h2>`];
+  if (f.unknowns) {
+    const u = f.unknowns;
+    parts.push(`<h3>Unknowns (model ${escapeHtml(u.model)}; ${escapeHtml(conf)} intervals for the mean of m readings; value = x \u00d7 dilution)</h3><table>`);
+    parts.push(cells('th', ['id', 'm', 'mean y', 'x', 'interval', 'dilution', 'value', 'interval', 'flags']));
+    for (const x of u.results) parts.push(cells('td', [x.id, String(x.m), n4(x.meanY), n4(x.x), iv(x.interval), n4(x.dilution), n4(x.value), iv(x.valueInterval), flags(x)]));
+    parts.push('</table>');
+  }
+  if (f.controls) {
+    const c = f.controls;
+    if (c.results.length) {
+      parts.push(`<h3>Controls (model ${escapeHtml(c.model)}${c.accept ? `; accept ${n4(c.accept[0])}\u2013${n4(c.accept[1])} %` : ''}): ${c.pass === null ? 'no verdict' : c.pass ? 'all passed' : 'FAILED'}</h3><table>`);
+      parts.push(cells('th', ['id', 'm', 'nominal', 'value', 'recovery %', 'interval', 'verdict', 'flags']));
+      for (const x of c.results) parts.push(cells('td', [x.id, String(x.m), n4(x.nominal), n4(x.value), n4(x.recovery), iv(x.recoveryInterval), x.pass === null ? '' : x.pass ? 'pass' : 'FAIL', flags(x)]));
+      parts.push('</table>');
+    }
+    parts.push(`<h3>Standards back-calculated${c.acceptStandards ? ` (accept ${n4(c.acceptStandards[0])}\u2013${n4(c.acceptStandards[1])} %)` : ''}</h3><table>`);
+    parts.push(cells('th', ['nominal x', 'm', 'mean y', 'back-calculated', 'interval', 'recovery %', 'verdict']));
+    for (const x of c.standards) parts.push(cells('td', [n4(x.x), String(x.m), n4(x.meanY), n4(x.back), iv(x.interval), n4(x.recovery), x.pass === null ? '' : x.pass ? 'pass' : 'FAIL']));
+    parts.push('</table>');
+  }
+  if (f.limits) {
+    const l = f.limits;
+    parts.push(`<h3>Limits (model ${escapeHtml(l.model)})</h3><table>`);
+    parts.push(cells('th', ['LOD', 'LOQ', 'detection limit (Hubaux\u2013Vos)', '\u03c3', 'from']));
+    parts.push(cells('td', [n4(l.lod), n4(l.loq), n4(l.detection.x), n4(l.sigma.value), l.sigma.from === 'blanks' ? `${l.sigma.n} blank readings` : 'the residuals']));
+    parts.push(`</table><p>${escapeHtml(l.note)}</p>`);
+  }
+  if (f.potency) {
+    const p = f.potency;
+    parts.push(`<h3>Relative potency against ${escapeHtml(p.reference)} (model ${escapeHtml(p.model)}; ${escapeHtml(conf)} Fieller intervals)</h3><table>`);
+    parts.push(cells('th', ['test', 'potency', 'interval', 'slope ratio', 'interval', 'span ratio', 'interval', 'parallelism']));
+    for (const x of p.results) {
+      const q = x.parallelism;
+      parts.push(cells('td', [x.test, n4(x.ratio), iv(x.interval), q ? n4(q.slopeRatio.value) : '', q ? iv(q.slopeRatio.interval) : '', q ? n4(q.spanRatio.value) : '', q ? iv(q.spanRatio.interval) : '', q?.verdict ?? '']));
+    }
+    parts.push(`</table><p>${escapeHtml(p.note)}</p>`);
+  }
+  parts.push('</section>');
+  return parts.join('\n');
 }

@@ -17,7 +17,7 @@ const reportSchema = JSON.parse(fs.readFileSync(path.join(root, 'schema', 'fitre
 
 // Every key of the contract types, listed once; `satisfies` rejects a listed key the type does not have, and the
 // Exact<> checks below reject a key of the type that is not listed (tsc --noEmit runs over tests).
-const FIT_KEYS = ['title', 'data', 'models', 'confidence', 'predict', 'solveFor', 'predictWeight', 'output', 'outputPoints', 'expect', 'thresholds', 'derived', 'plot'] as const satisfies readonly (keyof FitSpec)[];
+const FIT_KEYS = ['title', 'data', 'models', 'confidence', 'predict', 'solveFor', 'predictWeight', 'output', 'outputPoints', 'expect', 'thresholds', 'derived', 'plot', 'unknowns', 'controls', 'limits', 'potency'] as const satisfies readonly (keyof FitSpec)[];
 const DATA_KEYS = ['file', 'x', 'y', 'sigma', 'sigmaX', 'weight', 'count', 'sigmaMode', 'where', 'exclude', 'delimiter', 'decimal', 'badRows', 'groupBy'] as const satisfies readonly (keyof DataSpec)[];
 const MODEL_KEYS = ['name', 'builtin', 'polynomial', 'formula', 'params', 'solver', 'shared', 'loss', 'lossScale'] as const satisfies readonly (keyof ModelSpec)[];
 const PARAM_KEYS = ['start', 'min', 'max', 'fixed'] as const satisfies readonly (keyof ParamSpec)[];

@@ -36,7 +36,7 @@ export interface NormalizedModel extends ModelSpec {
   loss?: 'huber' | 'soft_l1' | 'cauchy';
 }
 
-export interface NormalizedSpec extends FitSpec {
+export interface NormalizedSpec extends Omit<FitSpec, 'unknowns' | 'controls' | 'limits' | 'potency'> {
   /** absolute path of the spec file */
   specFile: string;
   /** the spec file name as given to validateSpec */
@@ -55,4 +55,22 @@ export interface NormalizedSpec extends FitSpec {
   outputGiven?: string;
   expect: Record<string, Record<string, { value: number; tol: number } | { value: number; rel: number }>>;
   thresholds: Partial<Thresholds>;
+  unknowns?: NormalizedReadings & { output?: string; outputGiven?: string };
+  controls?: NormalizedReadings & { nominal: string; accept: [number, number] | null; acceptStandards: [number, number] | null; fromUnknowns: boolean };
+  limits?: { sigma: 'residual' | 'blanks'; blanks?: string; model?: string };
+  potency?: { model?: string; reference: string; test?: string[]; margin: { slope: [number, number]; span: [number, number] } | null };
+}
+
+/** A file of readings to read off the curve (unknowns, controls), its paths resolved. */
+export interface NormalizedReadings {
+  /** absolute path; null for controls without a file of their own (only the standards' recovery) */
+  file: string | null;
+  fileGiven: string | null;
+  id: string;
+  /** expression of the reading (default data.y) */
+  y: string;
+  dilution?: string;
+  model?: string;
+  /** the spec key the block came from, for messages and paths */
+  key: 'unknowns' | 'controls';
 }

@@ -41,7 +41,7 @@ export interface ValidateResult {
   data?: { file: string; fileGiven: string; delimiter: NormalizedData['delimiter']; decimal: NormalizedData['decimal'] };
 }
 
-const TOP_KEYS = ['$schema', 'title', 'data', 'models', 'confidence', 'predict', 'solveFor', 'predictWeight', 'output', 'outputPoints', 'expect', 'thresholds', 'derived', 'plot'];
+const TOP_KEYS = ['$schema', 'title', 'data', 'models', 'confidence', 'predict', 'solveFor', 'predictWeight', 'output', 'outputPoints', 'expect', 'thresholds', 'derived', 'plot', 'unknowns', 'controls', 'limits', 'potency'];
 const DATA_KEYS = ['file', 'x', 'y', 'sigma', 'sigmaX', 'weight', 'count', 'sigmaMode', 'where', 'exclude', 'delimiter', 'decimal', 'badRows', 'groupBy'];
 const MODEL_KEYS = ['name', 'builtin', 'polynomial', 'formula', 'params', 'solver', 'shared', 'loss', 'lossScale'];
 const PARAM_KEYS = ['start', 'min', 'max', 'fixed'];
@@ -503,6 +503,8 @@ export function validateSpec(raw: unknown, ctx: ValidateContext): ValidateResult
     const decimal = ['.', ','].includes(d.decimal as string) ? (d.decimal as NormalizedData['decimal']) : DEFAULTS.data.decimal;
     dataFile = { file: path.resolve(specDir, d.file), fileGiven: d.file, delimiter, decimal };
   }
+  const calibration = checkCalibration(c, raw, specDir, data, variables, [...paramsByModel.keys()]);
+  const potency = checkPotency(c, raw, models);
   if (c.errors > 0 || !data) return { spec: null, problems: c.problems, ...(dataFile ? { data: dataFile } : {}) };
   const spec: NormalizedSpec = {
     specFile,
@@ -524,6 +526,8 @@ export function validateSpec(raw: unknown, ctx: ValidateContext): ValidateResult
   if (outputPoints !== undefined) spec.outputPoints = outputPoints;
   if (Object.keys(derived).length > 0) spec.derived = derived;
   if (plot) spec.plot = plot;
+  Object.assign(spec, calibration);
+  if (potency) spec.potency = potency;
   return { spec, problems: c.problems, ...(dataFile ? { data: dataFile } : {}) };
 }
 
@@ -954,4 +958,198 @@ function checkModel(c: Checker, ctx: ValidateContext, m: unknown, i: number, var
   if (kind === 'polynomial') out.polynomial = m.polynomial as number;
   if (kind === 'formula') out.formula = m.formula as string;
   return out;
+}
+
+// ------------------------------------------------------------------ calibration: unknowns, controls, limits
+
+const UNKNOWNS_KEYS = ['file', 'id', 'y', 'dilution', 'model', 'output'];
+const CONTROLS_KEYS = ['file', 'id', 'y', 'dilution', 'nominal', 'accept', 'acceptStandards', 'model'];
+const LIMITS_KEYS = ['sigma', 'blanks', 'model'];
+
+/** The unknowns, controls and limits blocks (docs/calibration.md): shapes, the model they name, file paths. */
+function checkCalibration(c: Checker, raw: Obj, specDir: string, data: NormalizedData | undefined, variables: string[], models: string[]): Pick<NormalizedSpec, 'unknowns' | 'controls' | 'limits'> {
+  const out: Pick<NormalizedSpec, 'unknowns' | 'controls' | 'limits'> = {};
+  const keys = (['unknowns', 'controls', 'limits'] as const).filter((k) => raw[k] !== undefined);
+  if (keys.length === 0) return out;
+  const first = keys[0];
+  if (isObj(raw.data) && raw.data.groupBy !== undefined)
+    c.add('spec-calibration', [first], `${first} reads one standard curve, but data.groupBy fits several — fit the standards of one curve in a spec of their own (e.g. with data.where) to read unknowns off it`);
+  if (variables.length > 1) c.add('spec-calibration', [first], `${first} reads x off the curve, which needs a single x variable; data.x defines ${quoteList(variables)}`);
+  const model = (o: Obj, key: string): string | undefined => {
+    const m = c.str(o, 'model', [key], { nonEmpty: true });
+    if (m !== undefined && models.length > 0 && !models.includes(m.normalize('NFC')))
+      c.add('spec-calibration', [key, 'model'], `${key}.model names '${m}', which is not in models${didYouMean(m, models)} (models: ${quoteList(models)})`);
+    return m;
+  };
+  const range = (o: Obj, key: string, k: string): [number, number] | null => {
+    const v = o[k];
+    if (v === undefined) return null;
+    if (!Array.isArray(v) || v.length !== 2 || !v.every(isNum) || !((v[0] as number) < (v[1] as number)) || (v[0] as number) < 0) {
+      c.add('spec-calibration', [key, k], `${key}.${k} must be a range of recovery in % [low, high] with 0 ≤ low < high, e.g. [80, 120], not ${JSON.stringify(v)}`);
+      return null;
+    }
+    return [v[0] as number, v[1] as number];
+  };
+  const fileOf = (o: Obj, key: string, required: boolean): { file: string | null; fileGiven: string | null } | undefined => {
+    const f = c.str(o, 'file', [key], { nonEmpty: true, ...(required ? { required: 'the CSV of the readings, relative to the spec file, e.g. "data/plate-unknowns.csv"' } : {}) });
+    if (f === undefined) return required ? undefined : { file: null, fileGiven: null };
+    return { file: path.resolve(specDir, f), fileGiven: f };
+  };
+  const expr = (o: Obj, key: string, k: string): string | undefined => {
+    const v = c.str(o, k, [key], { nonEmpty: true });
+    if (v === undefined) return undefined;
+    try {
+      parseFormula(v);
+    } catch (e) {
+      if (e instanceof FormulaError) {
+        c.add('spec-expression', [key, k], `${key}.${k} ${JSON.stringify(v)} is not a valid expression: ${e.message}`, { charIndex: e.span.start });
+        return undefined;
+      }
+      throw e;
+    }
+    return v;
+  };
+  const dataY = data?.y ?? '';
+
+  let unknowns: NormalizedSpec['unknowns'];
+  const u = raw.unknowns;
+  if (u !== undefined) {
+    if (!isObj(u)) c.type(['unknowns'], 'an object { "file": "….csv", "id": "sample", "y": "absorbance", "dilution": "dilution" }', u);
+    else {
+      c.keys(u, UNKNOWNS_KEYS, ['unknowns'], 'unknowns');
+      const file = fileOf(u, 'unknowns', true);
+      const id = c.str(u, 'id', ['unknowns'], { required: 'the column naming each sample, e.g. "sample"', nonEmpty: true });
+      const y = expr(u, 'unknowns', 'y');
+      const dilution = c.str(u, 'dilution', ['unknowns'], { nonEmpty: true });
+      const m = model(u, 'unknowns');
+      const o = c.str(u, 'output', ['unknowns'], { nonEmpty: true });
+      let output: string | undefined;
+      if (o !== undefined) {
+        if (!/\.csv$/i.test(o)) c.add('spec-calibration', ['unknowns', 'output'], `unknowns.output ${JSON.stringify(o)} is not a .csv file — write e.g. "results/unknowns.csv"`);
+        else output = path.resolve(specDir, o);
+      }
+      if (file && file.file !== null && id !== undefined) {
+        unknowns = { file: file.file, fileGiven: file.fileGiven, id, y: y ?? dataY, key: 'unknowns' };
+        if (dilution !== undefined) unknowns.dilution = dilution;
+        if (m !== undefined) unknowns.model = m;
+        if (output !== undefined) {
+          unknowns.output = output;
+          unknowns.outputGiven = o;
+        }
+      }
+    }
+  }
+
+  const k = raw.controls;
+  if (k !== undefined) {
+    if (!isObj(k)) c.type(['controls'], 'an object { "nominal": "spiked_ng_ml", "accept": [80, 120] }', k);
+    else {
+      c.keys(k, CONTROLS_KEYS, ['controls'], 'controls');
+      const own = fileOf(k, 'controls', false);
+      const id = c.str(k, 'id', ['controls'], { nonEmpty: true });
+      const y = expr(k, 'controls', 'y');
+      const dilution = c.str(k, 'dilution', ['controls'], { nonEmpty: true });
+      const nominal = c.str(k, 'nominal', ['controls'], { required: 'the column of the nominal (spiked) value, e.g. "nominal_ng_ml"', nonEmpty: true });
+      const accept = range(k, 'controls', 'accept');
+      const acceptStandards = range(k, 'controls', 'acceptStandards');
+      const m = model(k, 'controls');
+      const fromUnknowns = own !== undefined && own.file === null;
+      const file = fromUnknowns ? (unknowns ? { file: unknowns.file, fileGiven: unknowns.fileGiven } : { file: null, fileGiven: null }) : own;
+      const idCol = id ?? (fromUnknowns ? unknowns?.id : undefined);
+      if (file && file.file !== null && idCol === undefined) c.required(['controls', 'id'], 'the column naming each control, e.g. "sample"');
+      if (file && nominal !== undefined && (idCol !== undefined || file.file === null)) {
+        out.controls = {
+          ...file,
+          id: idCol ?? '',
+          y: y ?? (fromUnknowns && unknowns ? unknowns.y : dataY),
+          nominal,
+          accept,
+          acceptStandards,
+          fromUnknowns,
+          key: 'controls',
+        };
+        const dil = dilution ?? (fromUnknowns ? unknowns?.dilution : undefined);
+        if (dil !== undefined) out.controls.dilution = dil;
+        const mm = m ?? unknowns?.model;
+        if (mm !== undefined) out.controls.model = mm;
+      }
+    }
+  }
+
+  const l = raw.limits;
+  if (l !== undefined) {
+    if (!isObj(l)) c.type(['limits'], 'an object { "sigma": "residual" } or { "sigma": "blanks", "blanks": "BLANK" }', l);
+    else {
+      c.keys(l, LIMITS_KEYS, ['limits'], 'limits');
+      const sigma = c.oneOf(l, 'sigma', ['limits'], ['residual', 'blanks'] as const) ?? 'residual';
+      const blanks = c.str(l, 'blanks', ['limits'], { nonEmpty: true });
+      if (blanks !== undefined && !unknowns) c.add('spec-calibration', ['limits', 'blanks'], 'limits.blanks names an id of the unknowns file, but the spec has no "unknowns" block — add it, or leave blanks out to use the standards at x = 0');
+      const m = model(l, 'limits');
+      out.limits = { sigma, ...(blanks !== undefined ? { blanks } : {}) };
+      const mm = m ?? unknowns?.model;
+      if (mm !== undefined) out.limits.model = mm;
+    }
+  }
+  if (unknowns) out.unknowns = unknowns;
+  return out;
+}
+
+const POTENCY_KEYS = ['model', 'reference', 'test', 'margin'];
+
+/** The potency block: groups, a joint 4PL/5PL with asymptotes and slope shared, a reference group, margins. */
+function checkPotency(c: Checker, raw: Obj, models: NormalizedModel[]): NormalizedSpec['potency'] {
+  const p = raw.potency;
+  if (p === undefined) return undefined;
+  if (!isObj(p)) {
+    c.type(['potency'], 'an object { "reference": "REF", "margin": { "slope": [0.8, 1.25], "span": [0.8, 1.25] } }', p);
+    return undefined;
+  }
+  c.keys(p, POTENCY_KEYS, ['potency'], 'potency');
+  const before = c.errors;
+  if (!isObj(raw.data) || raw.data.groupBy === undefined)
+    c.add('spec-potency', ['potency'], 'potency compares curves of groups, but data.groupBy is not set — name the column that tells the reference and the test samples apart, e.g. "groupBy": "lot"');
+  const need = (m: NormalizedModel) => (m.builtin === 'logistic5' ? ['lower', 'upper', 'slope', 'asym'] : ['lower', 'upper', 'slope']);
+  const fits = (m: NormalizedModel) => (m.builtin === 'logistic4' || m.builtin === 'logistic5') && !!m.shared && need(m).every((k) => m.shared!.includes(k));
+  const name = c.str(p, 'model', ['potency'], { nonEmpty: true });
+  let model: NormalizedModel | undefined;
+  if (name !== undefined) {
+    model = models.find((m) => m.name === name.normalize('NFC'));
+    if (!model) c.add('spec-potency', ['potency', 'model'], `potency.model names '${name}', which is not in models${didYouMean(name, models.map((m) => m.name))}`);
+    else if (!fits(model))
+      c.add('spec-potency', ['potency', 'model'], `potency.model '${name}' must be a builtin "logistic4" (or "logistic5") with "shared": ${JSON.stringify(need(model))} — the relative potency is a ratio of EC50s only when the curves share their asymptotes and slope`);
+  } else {
+    const cands = models.filter(fits);
+    if (cands.length === 1) model = cands[0];
+    else if (models.length > 0)
+      c.add('spec-potency', ['potency'], cands.length === 0
+        ? 'potency needs a model with the asymptotes and slope shared, e.g. { "name": "4PL-parallel", "builtin": "logistic4", "shared": ["lower", "upper", "slope"] } — add it to models'
+        : `several models could give the potency (${quoteList(cands.map((m) => m.name))}) — name one in potency.model`);
+  }
+  const reference = c.str(p, 'reference', ['potency'], { required: 'the group id of the reference, e.g. "REF"', nonEmpty: true });
+  let test: string[] | undefined;
+  if (p.test !== undefined) {
+    if (!Array.isArray(p.test) || p.test.length === 0 || p.test.some((t) => typeof t !== 'string' || t === '')) c.type(['potency', 'test'], 'a non-empty list of group ids, e.g. ["LOT-2"]', p.test);
+    else test = p.test as string[];
+  }
+  let margin: { slope: [number, number]; span: [number, number] } | null = null;
+  if (p.margin !== undefined) {
+    const m = p.margin;
+    if (!isObj(m)) c.type(['potency', 'margin'], 'an object { "slope": [0.8, 1.25], "span": [0.8, 1.25] }', m);
+    else {
+      c.keys(m, ['slope', 'span'], ['potency', 'margin'], 'potency.margin');
+      const range = (k: 'slope' | 'span'): [number, number] | undefined => {
+        const v = m[k];
+        if (!Array.isArray(v) || v.length !== 2 || !v.every(isNum) || !((v[0] as number) > 0 && (v[0] as number) < 1 && (v[1] as number) > 1)) {
+          c.add('spec-potency', ['potency', 'margin', k], `potency.margin.${k} must be a range of the ratio test/reference around 1, [low, high] with 0 < low < 1 < high, e.g. [0.8, 1.25], not ${JSON.stringify(v)}`);
+          return undefined;
+        }
+        return [v[0] as number, v[1] as number];
+      };
+      const slope = range('slope');
+      const span = range('span');
+      if (slope && span) margin = { slope, span };
+    }
+  }
+  if (c.errors > before || reference === undefined || !model) return undefined;
+  return { model: model.name, reference, ...(test ? { test } : {}), margin };
 }

@@ -22,6 +22,8 @@ export interface PredictionContext {
   w: Float64Array | null;
   /** weight of a new observation (spec predictWeight); absent: the weight of the nearest observed x */
   predictWeight?: number;
+  /** the new value is the mean of this many readings (variance σ²/m); absent: one reading */
+  replicates?: number;
 }
 
 export interface PointPrediction {
@@ -84,7 +86,7 @@ export function makePredictor(ctx: PredictionContext): (x0: ArrayLike<number>) =
       }
     }
     if (v < 0) v = 0;
-    const newVar = ctx.scale * nearestInverseWeight(ctx, x0, ranges);
+    const newVar = (ctx.scale * nearestInverseWeight(ctx, x0, ranges)) / (ctx.replicates ?? 1);
     return { y, seFit: Math.sqrt(v), sePred: Math.sqrt(v + newVar) };
   };
 }

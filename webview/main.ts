@@ -93,6 +93,7 @@ function startPanel(vscode: VsCodeApi): void {
           post(req);
         },
         onRefit: () => post({ type: 'refit' }),
+        readouts: true,
         note: state.dirty ? 'unsaved edits' : undefined,
         specLabel: state.specName,
         onStateChange: (s: ViewState) => {

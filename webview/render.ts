@@ -9,6 +9,7 @@ import { h, lineSwatch, setChildren, type Child } from './dom';
 import { parametersCsv, plotPng, renderFigure, reportJson, type FigureOptions } from './exports';
 import { ProblemsView, SEVERITY_ICON, SEVERITY_WORD, errorBox, groupProblems, severityCounts, type ProblemGroup } from './problems';
 import { baseName, isError, selectedModelOf, type RenderOptions, type ViewContext, type ViewState } from './state';
+import { readoutsCard } from './readouts';
 import { reportBody } from './tables';
 import { dashFor, type ThemeColors } from './theme';
 
@@ -336,7 +337,8 @@ export class ReportView implements ViewContext {
     const isOpen = (m: ModelReport, selected: boolean) =>
       this.openModels.has(m.name) || (!this.closedModels.has(m.name) && (selected || r.models.length === 1));
     const { tables, rest } = reportBody(this, r, sel, isOpen);
-    this.el.body.replaceChildren(...tables);
+    const readouts = this.opts.readouts ? readoutsCard(r) : null;
+    this.el.body.replaceChildren(...tables, ...(readouts ? [readouts] : []));
     this.el.rest.replaceChildren(...rest);
   }
 }

@@ -39,6 +39,9 @@ export interface RenderOptions {
   onStateChange?(state: ViewState): void;
   /** ask for a refit now; without it no Refit button is shown */
   onRefit?(): void;
+  /** draw the calibration read-outs card (unknowns, controls, limits, potency) under the tables: the panel does; the
+   *  HTML report prints the same tables statically after its figures instead */
+  readouts?: boolean;
   /** a short note beside the spec name, e.g. "unsaved edits" */
   note?: string;
   /** the spec's path as the header shows it (the panel: relative to the workspace); default the report's `spec` */

@@ -432,6 +432,38 @@ describe('webview in a real browser (headless Chromium)', function () {
     await ctx.close();
   });
 
+  it('the panel draws the calibration read-outs (unknowns, controls, standards, limits) as the report holds them', async function () {
+    fs.writeFileSync(path.join(dir, 'webview.js'), js);
+    fs.writeFileSync(path.join(dir, 'panel.css'), panelCss());
+    const file = path.join(dir, 'panel-readouts.html');
+    fs.writeFileSync(file, panelHtml({ scriptUri: 'webview.js', cssUri: 'panel.css', nonce: 'TestNonceReadouts0123456789', cspSource: 'file:' }));
+    const ctx = await browser!.newContext({ viewport: { width: 1100, height: 850 } });
+    const page = await ctx.newPage();
+    const problems = watch(page);
+    await page.addInitScript(`window.acquireVsCodeApi = function () { return { postMessage: function () {}, getState: function () {}, setState: function () {} }; };`);
+    await page.goto(`file://${file}`);
+    // the demo's committed results: a 4PL standard curve with unknowns in duplicate, dilutions, spiked controls, limits
+    const report = JSON.parse(fs.readFileSync(path.join(repoRoot, 'examples', 'results', 'assay-plate-readout.fitresult.json'), 'utf8')) as FitReport;
+    assert.ok(report.unknowns && report.controls && report.limits, 'the demo has unknowns, controls and limits');
+    await page.evaluate(m => window.postMessage(m, '*'), { type: 'report', report, specUri: 'assay-plate-readout.fitspec.json', specName: 'assay-plate-readout.fitspec.json', version: 1 });
+    await page.waitForSelector('.cw-readouts');
+    const tables = await page.$$eval('.cw-readouts table', ts => ts.map(t => ({
+      label: t.getAttribute('aria-label'),
+      rows: Array.from(t.querySelectorAll('tbody tr')).map(tr => Array.from(tr.querySelectorAll('td')).map(td => td.textContent ?? '')),
+    })));
+    const byLabel = new Map(tables.map(t => [t.label, t.rows] as const));
+    const unknowns = byLabel.get('Unknowns read off the curve')!;
+    assert.deepStrictEqual(unknowns.map(r => r[0]), report.unknowns.results.map(u => u.id), 'one row per sample, in the report\'s order');
+    assert.deepStrictEqual(unknowns.map(r => r[1]), report.unknowns.results.map(u => String(u.m)), 'the number of readings averaged');
+    assert.equal(byLabel.get('Spiked controls')!.length, report.controls.results.length);
+    assert.equal(byLabel.get('Standards back-calculated')!.length, report.controls.standards.length);
+    assert.equal(byLabel.get('Limits of detection and quantitation')!.length, 1);
+    assert.ok(await page.$eval('.cw-readouts', e => (e.textContent ?? '').includes('Read-outs')));
+    assert.deepStrictEqual(problems, []);
+    await page.screenshot({ path: path.join(SHOTS, 'panel-readouts.png'), fullPage: true });
+    await ctx.close();
+  });
+
   it('draws a dose-response series on a log x axis by default, with the plot block\'s titles, units and bands', async function () {
     // invented 3-decade standards (0.5 .. 500), a 4PL-like curve drawn through them
     const r = sampleReport();

@@ -16,6 +16,7 @@ const picks = {
   'panel-live-edit.png': 'panel-figure-live-edit.png',
   'panel-broken-last-good.png': 'panel-figure-broken-last-good.png',
   'panel-assay-log-x.png': 'panel-figure-assay-log-x.png',
+  'panel-readouts.png': 'panel-figure-readouts.png',
   'panel-narrow-400.png': 'panel-figure-narrow-400.png',
   'panel-theme-light.png': 'panel-figure-theme-light.png',
   'panel-theme-dark.png': 'panel-figure-theme-dark.png',

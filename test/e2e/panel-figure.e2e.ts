@@ -78,6 +78,16 @@ export async function run(ctx: Ctx): Promise<void> {
   await page.waitForTimeout(800);
   await ctx.shot('assay-log-x');
 
+  // the plate read-out: unknowns in duplicate with dilutions, spiked controls, limits — the Read-outs card in view
+  await openFile(page, 'assay-plate-readout.fitspec.json');
+  await ctx.runCommand('Curvewright: Show Fit Panel');
+  await until(ctx, /Read-outs/);
+  const card = ctx.webview().locator('.cw-readouts');
+  await card.scrollIntoViewIfNeeded();
+  assertOk((await card.locator('table').count()) >= 3, 'the read-outs card has its unknowns, controls and standards tables');
+  await page.waitForTimeout(500);
+  await ctx.shot('readouts');
+
   // the four themes, live (the workspace setting is rewritten; the panel re-reads its colours)
   for (const [theme, cls, name] of [['Default Dark Modern', 'vs-dark', 'dark'], ['Default High Contrast', 'hc-black', 'hc-dark'], ['Default High Contrast Light', 'hc-light', 'hc-light'], ['Default Light Modern', 'vs', 'light']] as const) {
     await setTheme(ctx, theme, cls);

@@ -87,6 +87,10 @@ export async function run(ctx: Ctx): Promise<void> {
   assertOk((await card.locator('table').count()) >= 3, 'the read-outs card has its unknowns, controls and standards tables');
   await page.waitForTimeout(500);
   await ctx.shot('readouts');
+  // back to the standard curve for the themes and the narrow panel
+  await openFile(page, 'assay-standard-curve.fitspec.json');
+  await ctx.runCommand('Curvewright: Show Fit Panel');
+  await until(ctx, /Assay standard curve/);
 
   // the four themes, live (the workspace setting is rewritten; the panel re-reads its colours)
   for (const [theme, cls, name] of [['Default Dark Modern', 'vs-dark', 'dark'], ['Default High Contrast', 'hc-black', 'hc-dark'], ['Default High Contrast Light', 'hc-light', 'hc-light'], ['Default Light Modern', 'vs', 'light']] as const) {

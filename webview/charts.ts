@@ -290,6 +290,18 @@ export class ChartsView {
     } else if (r.models.some(m => m.pointsOmitted)) {
       notes.push('Data points are not stored in this results file (too many rows); only the fitted curves are drawn.');
     }
+    // calibration unknowns read off the curve: each sample's mean reading at its back-calculated x (one triangle per
+    // sample; a sample with no x has no place on the curve and is listed in the Read-outs card only)
+    const unk = multi ? [] : (r.unknowns?.results ?? []).filter(u => u.x !== null && okX(u.x) && Number.isFinite(u.meanY) && (!logY || u.meanY > 0));
+    if (unk.length) {
+      datasets.push({
+        label: 'unknowns', data: unk.map(u => ({ x: u.x!, y: u.meanY, i: -1 })), showLine: false, order: -1,
+        pointRadius: 5, pointHoverRadius: 7, pointStyle: 'triangle',
+        pointBackgroundColor: t.highContrast ? t.background : withAlpha(t.warning, 0.85), pointBorderColor: t.foreground, pointBorderWidth: 1,
+      });
+      kinds.push({ kind: 'ref' });
+      legend.push(h('span', { class: 'cw-legend-item' }, '\u25b2', ` unknowns (${fmtInt(unk.length)} read off ${r.unknowns!.model})`));
+    }
     setChildren(el.legend, legend);
 
     // axis titles: the column or expression the spec bound (older reports without labels fall back to the names)

@@ -459,6 +459,10 @@ describe('webview in a real browser (headless Chromium)', function () {
     assert.equal(byLabel.get('Standards back-calculated')!.length, report.controls.standards.length);
     assert.equal(byLabel.get('Limits of detection and quantitation')!.length, 1);
     assert.ok(await page.$eval('.cw-readouts', e => (e.textContent ?? '').includes('Read-outs')));
+    // and on the curve: one triangle per sample with a back-calculated x, named in the legend
+    const onCurve = report.unknowns.results.filter(u => u.x !== null).length;
+    const legend = await page.$$eval('.cw-legend-item', es => es.map(e => e.textContent ?? ''));
+    assert.ok(legend.some(l => l.includes(`unknowns (${onCurve} read off ${report.unknowns!.model})`)), legend.join(' | '));
     assert.deepStrictEqual(problems, []);
     await page.screenshot({ path: path.join(SHOTS, 'panel-readouts.png'), fullPage: true });
     await ctx.close();

@@ -3,15 +3,7 @@
 # The output is committed; the tests read it, so CI never needs R. Each figure names its data and R functions.
 # Back-calculation interval (the definition Curvewright implements): the x whose prediction interval for the mean of m
 # new readings, f(x) ± t·sqrt(gᵀVg + s²/m), contains the mean reading — found here with stats::uniroot on R's own fit.
-options(digits = 17)
-num <- function(x) if (is.null(x) || length(x) == 0 || is.na(x) || !is.finite(x)) "null" else sprintf("%.17g", x)
-vec <- function(x) paste0("[", paste(vapply(x, num, ""), collapse = ","), "]")
-obj <- function(...) {
-  a <- list(...)
-  paste0("{", paste(sprintf("\"%s\":%s", names(a), unlist(a)), collapse = ","), "}")
-}
-str <- function(s) sprintf("\"%s\"", gsub("\"", "\\\\\"", s))
-arr <- function(items) paste0("[", paste(items, collapse = ","), "]")
+source(file.path(dirname(sub("^--file=", "", grep("^--file=", commandArgs(FALSE), value = TRUE))), "reference-json.R"))
 
 # inverse of a fitted curve f (vectorised) with the half-width function hw(x, m): root in [lo, hi], limits by uniroot
 invert <- function(f, hw, y0, m, lo, hi, extLo, extHi) {

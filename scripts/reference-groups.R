@@ -5,13 +5,7 @@
 # Model: Michaelis–Menten rate = Vm*conc/(K + conc), groups by state (treated, untreated);
 # separate fits per group (stats::nls), a joint fit with K common and Vm per state (indexed parameters in nls),
 # and stats::anova of the joint fit against the separate fits written as one nls with Vm and K indexed by state.
-options(digits = 17)
-num <- function(x) if (is.null(x) || length(x) == 0 || is.na(x) || !is.finite(x)) "null" else sprintf("%.17g", x)
-obj <- function(...) {
-  a <- list(...)
-  paste0("{", paste(sprintf("\"%s\":%s", names(a), unlist(a)), collapse = ","), "}")
-}
-str <- function(s) sprintf("\"%s\"", gsub("\"", "\\\\\"", s))
+source(file.path(dirname(sub("^--file=", "", grep("^--file=", commandArgs(FALSE), value = TRUE))), "reference-json.R"))
 ctl <- nls.control(tol = 1e-8, maxiter = 500, minFactor = 1e-10)
 
 d <- datasets::Puromycin

@@ -1,14 +1,7 @@
 # Reference figures from R (stats and datasets packages only) for the statistics tests of Curvewright.
 # Run:  Rscript scripts/reference-r.R > test/fixtures/reference/r-stats.json
 # The output is committed; the tests read it, so CI never needs R. Every figure names its dataset and R function.
-options(digits = 17)
-num <- function(x) if (is.null(x) || length(x) == 0 || is.na(x) || !is.finite(x)) "null" else sprintf("%.17g", x)
-vec <- function(x) paste0("[", paste(vapply(x, num, ""), collapse = ","), "]")
-obj <- function(...) {
-  a <- list(...)
-  paste0("{", paste(sprintf("\"%s\":%s", names(a), unlist(a)), collapse = ","), "}")
-}
-str <- function(s) sprintf("\"%s\"", gsub("\"", "\\\\\"", s))
+source(file.path(dirname(sub("^--file=", "", grep("^--file=", commandArgs(FALSE), value = TRUE))), "reference-json.R"))
 
 out <- list()
 

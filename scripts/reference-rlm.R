@@ -6,8 +6,7 @@
 # rlm's MAD is median|r|/0.6745 where Curvewright's is 1.482602·median|r|; k is scaled by 0.6745·1.482602 so that
 # both put the threshold t = k·s at the same residual size (1.345 × 1.482602 × median|r|), i.e. the same objective.
 suppressPackageStartupMessages(library(MASS))
-num <- function(x) sprintf("%.17g", x)
-vec <- function(x) paste0("[", paste(vapply(x, num, ""), collapse = ","), "]")
+source(file.path(dirname(sub("^--file=", "", grep("^--file=", commandArgs(FALSE), value = TRUE))), "reference-json.R"))
 k <- 1.345 * 0.6745 * 1.482602218505602
 fit <- rlm(stack.loss ~ Air.Flow + Water.Temp + Acid.Conc., data = stackloss, psi = psi.huber, k = k,
            scale.est = "MAD", method = "M", acc = 1e-15, maxit = 5000)

@@ -8,8 +8,7 @@
 # that equals the (m−1)-weighted slope of log sd(y) on log |fitted| over the replicated x values, found here by
 # iterating gls/gnls and lm (the estimator of docs/robust.md, coded independently). The output is committed.
 suppressPackageStartupMessages(library(nlme))
-num <- function(x) sprintf("%.17g", x)
-vec <- function(x) paste0("[", paste(vapply(x, num, ""), collapse = ","), "]")
+source(file.path(dirname(sub("^--file=", "", grep("^--file=", commandArgs(FALSE), value = TRUE))), "reference-json.R"))
 ctl <- glsControl(tolerance = 1e-12, returnObject = TRUE, maxIter = 500, msMaxIter = 500)
 slope <- function(y, x, mu) {
   g <- split(seq_along(y), x)

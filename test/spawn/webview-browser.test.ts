@@ -10,10 +10,8 @@ import type { Browser, BrowserContext, Page } from 'playwright-core';
 import type { ErrorReport, FitReport, RunResult } from '../../src/engine/report';
 import { buildReportHtml, panelHtml } from '../../src/shared/html';
 import { panelCss, repoRoot, sampleReport, webviewBundle } from '../unit/webview-helpers';
+import { launchChromium } from './chromium';
 
-const CHROMIUM = process.env.CHROMIUM_PATH || '/usr/bin/chromium';
-const ARGS = ['--headless', '--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run', '--disable-background-networking',
-  '--disable-component-update', '--disable-sync'];
 const SHOTS = path.join(repoRoot, 'test', 'e2e', 'shots');
 
 /** Collects page errors, console errors/warnings (CSP violations are reported there) and failed requests. */
@@ -82,18 +80,10 @@ describe('webview in a real browser (headless Chromium)', function () {
   let js = '';
 
   before(async function () {
-    if (!fs.existsSync(CHROMIUM)) {
-      const msg = `Chromium not found at ${CHROMIUM} (set CHROMIUM_PATH): the real-browser webview checks did NOT run.`;
-      if (process.env.CI === 'true') throw new Error(msg);
-      console.warn(`\n  !!! ${msg}\n`);
-      this.skip();
-    }
+    browser = await launchChromium(this, 'the real-browser webview checks');
     js = await webviewBundle();
     dir = fs.mkdtempSync(path.join(os.tmpdir(), 'cw-webview-'));
     fs.mkdirSync(SHOTS, { recursive: true });
-    // eslint-disable-next-line @typescript-eslint/no-require-imports
-    const { chromium } = require('playwright-core') as typeof import('playwright-core');
-    browser = await chromium.launch({ executablePath: CHROMIUM, args: ARGS });
   });
 
   after(async function () {

@@ -11,8 +11,8 @@ import { isErrorReport, type FitReport } from '../../src/engine/report';
 import { buildReportHtml } from '../../src/shared/html';
 import { mulberry32, normalSource } from '../../scripts/generate-demo';
 import { panelCss, webviewBundle } from '../unit/webview-helpers';
+import { launchChromium } from './chromium';
 
-const CHROMIUM = process.env.CHROMIUM_PATH || '/usr/bin/chromium';
 
 describe('webview: a grouped report (headless Chromium)', function () {
   this.timeout(120000);
@@ -20,16 +20,8 @@ describe('webview: a grouped report (headless Chromium)', function () {
   let dir = '';
 
   before(async function () {
-    if (!fs.existsSync(CHROMIUM)) {
-      const msg = `Chromium not found at ${CHROMIUM} (set CHROMIUM_PATH): the grouped-report browser check did NOT run.`;
-      if (process.env.CI === 'true') throw new Error(msg);
-      console.warn(`\n  !!! ${msg}\n`);
-      this.skip();
-    }
+    browser = await launchChromium(this, 'the grouped-report browser check');
     dir = fs.mkdtempSync(path.join(os.tmpdir(), 'cw-webview-groups-'));
-    // eslint-disable-next-line @typescript-eslint/no-require-imports
-    const { chromium } = require('playwright-core') as typeof import('playwright-core');
-    browser = await chromium.launch({ executablePath: CHROMIUM, args: ['--headless', '--no-sandbox', '--disable-gpu', '--no-first-run'] });
   });
   after(async function () {
     await browser?.close();

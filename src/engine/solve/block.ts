@@ -7,7 +7,7 @@
 import type { LsqProblem, SolveOptions, SolveResult } from './types';
 import type { Termination } from '../report';
 import { CONVERGED, prepare, type Prepared, stopReason } from './problem';
-import { EPS, rankTolerance } from './linalg';
+import { EPS, rankTolerance, solveUpper, solveUpperT } from './linalg';
 import { DEFAULTS } from '../spec/defaults';
 
 /**
@@ -174,30 +174,12 @@ function factor(lay: Layout, bs: BlockStructure, A: Float64Array, r: Float64Arra
   return { L, S, R, T, c, RS, cS, full };
 }
 
-/** x ← R⁻¹ x for upper-triangular R (k×k column-major) */
-function backSolve(R: Float64Array, k: number, x: Float64Array): void {
-  for (let i = k - 1; i >= 0; i--) {
-    let s = x[i];
-    for (let j = i + 1; j < k; j++) s -= R[j * k + i] * x[j];
-    x[i] = s / R[i * k + i];
-  }
-}
-
-/** x ← R⁻ᵀ x */
-function forwardSolveT(R: Float64Array, k: number, x: Float64Array): void {
-  for (let i = 0; i < k; i++) {
-    let s = x[i];
-    for (let j = 0; j < i; j++) s -= R[i * k + j] * x[j];
-    x[i] = s / R[i * k + i];
-  }
-}
-
 /** the step δ (θ-indexed, zero outside the factored columns) minimising ‖A δ + r‖² + λ‖D δ‖² */
 function stepOf(F: Factors, p: number): Float64Array {
   const delta = new Float64Array(p);
   const qS = F.S.length;
   const dS = Float64Array.from(F.cS, v => -v);
-  backSolve(F.RS, qS, dS);
+  solveUpper(F.RS, qS, qS, dS);
   for (let t = 0; t < qS; t++) delta[F.S[t]] = dS[t];
   for (let g = 0; g < F.L.length; g++) {
     const k = F.L[g].length;
@@ -207,7 +189,7 @@ function stepOf(F: Factors, p: number): Float64Array {
       for (let t = 0; t < qS; t++) s -= F.T[g][t * k + i] * dS[t];
       x[i] = s;
     }
-    backSolve(F.R[g], k, x);
+    solveUpper(F.R[g], k, k, x);
     for (let i = 0; i < k; i++) delta[F.L[g][i]] = x[i];
   }
   return delta;
@@ -518,7 +500,7 @@ export function blockCovariance(bs: BlockStructure, J: Float64Array, n: number, 
   for (let t = 0; t < qS; t++) {
     const e = new Float64Array(qS);
     e[t] = 1;
-    backSolve(F.RS, qS, e);
+    solveUpper(F.RS, qS, qS, e);
     RSinv.set(e, t * qS);
   }
   const CS = new Float64Array(qS * qS);
@@ -539,13 +521,13 @@ export function blockCovariance(bs: BlockStructure, J: Float64Array, n: number, 
     for (let t = 0; t < k; t++) {
       const e = new Float64Array(k);
       e[t] = 1;
-      backSolve(F.R[g], k, e);
+      solveUpper(F.R[g], k, k, e);
       Ri.set(e, t * k);
     }
     const Mg = new Float64Array(k * qS);
     for (let t = 0; t < qS; t++) {
       const x = F.T[g].slice(t * k, t * k + k);
-      backSolve(F.R[g], k, x);
+      solveUpper(F.R[g], k, k, x);
       Mg.set(x, t * k);
     }
     const Ng = new Float64Array(k * qS);
@@ -597,8 +579,8 @@ export function blockCovariance(bs: BlockStructure, J: Float64Array, n: number, 
         for (let a = 0; a < k; a++) s -= uL[a] * M[g][t * k + a];
         uS[t] = s;
       }
-      forwardSolveT(F.R[g], k, uL);
-      forwardSolveT(F.RS, qS, uS);
+      solveUpperT(F.R[g], k, k, uL);
+      solveUpperT(F.RS, qS, qS, uS);
       let s = 0;
       for (let t = 0; t < k; t++) s += uL[t] * uL[t];
       for (let t = 0; t < qS; t++) s += uS[t] * uS[t];
